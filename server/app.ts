@@ -1,0 +1,65 @@
+import express, { Router } from 'express'
+import helmet from 'helmet'
+import { existsSync } from 'node:fs'
+import { join } from 'node:path'
+import { PROJECT_ROOT, type Config } from './config.ts'
+import type { Db } from './db/client.ts'
+import { errorHandler } from './http/error-handler.ts'
+import { HttpProblem } from './http/problem.ts'
+import { healthRoutes } from './routes/health.routes.ts'
+import { logger } from './lib/logger.ts'
+import { buildRoutes } from './routes/index.ts'
+import type { Mailer } from './lib/mailer.ts'
+import type { JobQueue } from './services/jobs.service.ts'
+
+export interface AppDeps {
+  db: Db
+  config: Config
+  mailer: Mailer
+  /** Background queue (pg-boss); without it recomputes run in this process. */
+  jobs?: JobQueue
+  /** Serve the built client from dist/ (off in API tests). */
+  serveClient?: boolean
+}
+
+export function createApp(deps: AppDeps) {
+  const app = express()
+  app.disable('x-powered-by')
+  app.set('trust proxy', 'loopback')
+  app.use(helmet({
+    contentSecurityPolicy: {
+      directives: {
+        // plotly injects style elements; scripts stay same-origin only (no inline scripts).
+        'script-src': ["'self'"],
+        'style-src': ["'self'", "'unsafe-inline'"],
+        'img-src': ["'self'", 'data:', 'blob:'],
+        'worker-src': ["'self'", 'blob:'],
+        'upgrade-insecure-requests': deps.config.secureCookies ? [] : null,
+      },
+    },
+    strictTransportSecurity: deps.config.secureCookies,
+  }))
+  app.use((req, res, next) => {
+    const start = process.hrtime.bigint()
+    res.on('finish', () => {
+      if (req.path.startsWith('/api/')) {
+        logger.debug({ method: req.method, path: req.path, status: res.statusCode, ms: Number(process.hrtime.bigint() - start) / 1e6 }, 'request')
+      }
+    })
+    next()
+  })
+
+  app.use('/api', healthRoutes(deps.db))
+  app.use('/api', buildRoutes(deps))
+  app.use('/api', (_req, _res, next) => next(new HttpProblem(404, 'Not Found', 'no such route')))
+
+  const dist = join(PROJECT_ROOT, 'dist')
+  if (deps.serveClient && existsSync(dist)) {
+    app.use(express.static(dist, { index: false, maxAge: '1h' }))
+    const spa = Router()
+    spa.get('/{*splat}', (_req, res) => res.sendFile(join(dist, 'index.html')))
+    app.use(spa)
+  }
+  app.use(errorHandler)
+  return app
+}

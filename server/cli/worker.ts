@@ -1,0 +1,17 @@
+import { loadConfig } from '../config.ts'
+import { connect } from '../db/client.ts'
+import { startJobQueue, startRecomputeWorker } from '../services/jobs.service.ts'
+
+// `npm run worker`: a recompute worker in its own process (this machine or another) on DATABASE_URL.
+const config = loadConfig()
+if (!config.databaseUrl) {
+  console.error('set DATABASE_URL to the PostgreSQL that the Ratiograph server uses')
+  process.exit(2)
+}
+const db = connect(config.databaseUrl, 4)
+const { boss, queue } = await startJobQueue(config.databaseUrl)
+await startRecomputeWorker(boss, db)
+console.log('recompute worker running; Ctrl-C stops it')
+const stop = async () => { await queue.stop(); await db.$client.end(); process.exit(0) }
+process.on('SIGINT', stop)
+process.on('SIGTERM', stop)

@@ -1,0 +1,58 @@
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { randomBytes } from 'node:crypto'
+import { dirname, join, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
+
+export const PROJECT_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '..')
+
+export interface Config {
+  port: number
+  host: string
+  production: boolean
+  databaseUrl: string | undefined
+  smtpUrl: string | undefined
+  jwtSecret: string
+  dataDir: string
+  uploadLimitBytes: number
+  embeddedPgPort: number
+  appUrl: string
+  /** Secure cookies only when served over HTTPS (behind a proxy that says so). */
+  secureCookies: boolean
+  /** Requests per minute per address on sign-in / sign-up / reset. */
+  authRateLimit: number
+}
+
+function readOrCreateSecret(dataDir: string): string {
+  const file = join(dataDir, 'jwt-secret')
+  if (!existsSync(file)) {
+    mkdirSync(dataDir, { recursive: true })
+    writeFileSync(file, randomBytes(32).toString('hex'), { mode: 0o600 })
+  }
+  return readFileSync(file, 'utf8').trim()
+}
+
+/** Reads the environment once; throws for settings that would be unsafe. */
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  const production = env.NODE_ENV === 'production'
+  const dataDir = resolve(env.DATA_DIR ?? join(PROJECT_ROOT, '.data'))
+  if (production && !env.JWT_SECRET) {
+    throw new Error('JWT_SECRET must be set when NODE_ENV=production (refusing to start)')
+  }
+  const port = Number(env.PORT ?? 8080)
+  if (!Number.isInteger(port) || port < 0 || port > 65535) throw new Error(`PORT must be a port number, got ${env.PORT}`)
+  const host = env.HOST ?? '127.0.0.1'
+  return {
+    port,
+    host,
+    production,
+    databaseUrl: env.DATABASE_URL || undefined,
+    smtpUrl: env.SMTP_URL || undefined,
+    jwtSecret: env.JWT_SECRET ?? readOrCreateSecret(dataDir),
+    dataDir,
+    uploadLimitBytes: Number(env.UPLOAD_LIMIT_MB ?? 50) * 1024 * 1024,
+    embeddedPgPort: Number(env.EMBEDDED_PG_PORT ?? 54329),
+    appUrl: (env.APP_URL ?? `http://${host}:${port}`).replace(/\/$/, ''),
+    secureCookies: env.SECURE_COOKIES === '1' || (env.APP_URL ?? '').startsWith('https:'),
+    authRateLimit: Number(env.AUTH_RATE_LIMIT ?? 20),
+  }
+}

@@ -1,0 +1,22 @@
+import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres'
+import { migrate } from 'drizzle-orm/node-postgres/migrator'
+import pg from 'pg'
+import { join } from 'node:path'
+import { PROJECT_ROOT } from '../config.ts'
+import * as schema from './schema.ts'
+
+export type Db = NodePgDatabase<typeof schema> & { $client: pg.Pool }
+
+// bigint counts come back as strings by default; ours fit in a double.
+pg.types.setTypeParser(20, (v) => Number(v))
+
+export function connect(url: string, max = 10): Db {
+  const pool = new pg.Pool({ connectionString: url, max, connectionTimeoutMillis: 5000 })
+  // An idle client losing its server (database restart) must not crash the process.
+  pool.on('error', () => {})
+  return drizzle(pool, { schema, casing: 'snake_case' }) as Db
+}
+
+export async function runMigrations(db: Db) {
+  await migrate(db, { migrationsFolder: join(PROJECT_ROOT, 'drizzle') })
+}

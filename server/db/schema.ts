@@ -1,0 +1,214 @@
+import { sql } from 'drizzle-orm'
+import {
+  bigint, bigserial, boolean, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey,
+  real, smallint, text, timestamp, uniqueIndex, uuid,
+} from 'drizzle-orm/pg-core'
+
+const createdAt = () => timestamp({ withTimezone: true }).notNull().defaultNow()
+
+export const projectRole = pgEnum('project_role', ['owner', 'analyst', 'viewer'])
+export const keyAccess = pgEnum('key_access', ['read', 'write'])
+
+export const users = pgTable('users', {
+  id: uuid().primaryKey().defaultRandom(),
+  email: text().notNull(),
+  name: text().notNull(),
+  passwordHash: text().notNull(),
+  isSiteAdmin: boolean().notNull().default(false),
+  disabledAt: timestamp({ withTimezone: true }),
+  failedSignIns: integer().notNull().default(0),
+  lockedUntil: timestamp({ withTimezone: true }),
+  /** Sessions issued before this instant are void (sign-out, password reset). */
+  sessionsValidAfter: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('users_email_lower').on(sql`lower(${t.email})`)])
+
+export const projects = pgTable('projects', {
+  id: uuid().primaryKey().defaultRandom(),
+  name: text().notNull(),
+  description: text().notNull().default(''),
+  /** Latest assumptions revision (new intakes are computed under it). */
+  currentRevision: integer().notNull().default(1),
+  /** Latest revision whose recompute is complete: what queries, diagrams and exports show. */
+  resultsRevision: integer().notNull().default(1),
+  createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+})
+
+export const memberships = pgTable('memberships', {
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  userId: uuid().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  role: projectRole().notNull(),
+  createdAt: createdAt(),
+}, (t) => [primaryKey({ columns: [t.projectId, t.userId] }), index('memberships_user').on(t.userId)])
+
+export const apiKeys = pgTable('api_keys', {
+  id: uuid().primaryKey().defaultRandom(),
+  userId: uuid().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  prefix: text().notNull(),
+  /** SHA-256 of the whole key, hex; the key itself is never stored. */
+  keyHash: text().notNull(),
+  projectId: uuid().references(() => projects.id, { onDelete: 'cascade' }),
+  access: keyAccess().notNull(),
+  expiresAt: timestamp({ withTimezone: true }),
+  revokedAt: timestamp({ withTimezone: true }),
+  lastUsedAt: timestamp({ withTimezone: true }),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('api_keys_hash').on(t.keyHash), index('api_keys_user').on(t.userId)])
+
+export const invitations = pgTable('invitations', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  email: text().notNull(),
+  role: projectRole().notNull(),
+  tokenHash: text().notNull(),
+  invitedBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  expiresAt: timestamp({ withTimezone: true }).notNull(),
+  acceptedAt: timestamp({ withTimezone: true }),
+  revokedAt: timestamp({ withTimezone: true }),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('invitations_token').on(t.tokenHash), index('invitations_project').on(t.projectId)])
+
+export const passwordResets = pgTable('password_resets', {
+  id: uuid().primaryKey().defaultRandom(),
+  userId: uuid().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  tokenHash: text().notNull(),
+  expiresAt: timestamp({ withTimezone: true }).notNull(),
+  usedAt: timestamp({ withTimezone: true }),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('password_resets_token').on(t.tokenHash)])
+
+export const auditEvents = pgTable('audit_events', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  projectId: uuid().references(() => projects.id, { onDelete: 'cascade' }),
+  actorUserId: uuid().references(() => users.id, { onDelete: 'set null' }),
+  action: text().notNull(),
+  target: text(),
+  details: jsonb().notNull().default({}),
+  ip: text(),
+  createdAt: createdAt(),
+}, (t) => [index('audit_project_time').on(t.projectId, t.createdAt)])
+
+export const assumptionRevisions = pgTable('assumption_revisions', {
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  revision: integer().notNull(),
+  settings: jsonb().notNull(),
+  note: text().notNull().default(''),
+  createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+}, (t) => [primaryKey({ columns: [t.projectId, t.revision] })])
+
+export const intakes = pgTable('intakes', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  kind: text().notNull(), // 'api' | 'csv'
+  status: text().notNull(), // 'staged' | 'committed' | 'rejected' | 'failed'
+  userId: uuid().references(() => users.id, { onDelete: 'set null' }),
+  apiKeyId: uuid().references(() => apiKeys.id, { onDelete: 'set null' }),
+  fileName: text(),
+  filePath: text(),
+  rowsTotal: integer().notNull().default(0),
+  rowsAccepted: integer().notNull().default(0),
+  rowsRejected: integer().notNull().default(0),
+  revision: integer(),
+  report: jsonb(),
+  idempotencyKey: text(),
+  requestHash: text(),
+  response: jsonb(),
+  createdAt: createdAt(),
+  finishedAt: timestamp({ withTimezone: true }),
+}, (t) => [
+  index('intakes_project_time').on(t.projectId, t.createdAt),
+  uniqueIndex('intakes_idempotency').on(t.projectId, t.idempotencyKey),
+])
+
+export const columnMappings = pgTable('column_mappings', {
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  mapping: jsonb().notNull(),
+  createdAt: createdAt(),
+}, (t) => [primaryKey({ columns: [t.projectId, t.name] })])
+
+/** One nucleus of a project; `key` is the pipeline's own ID. Inputs are kept as the contract's JSON. */
+export const galaxies = pgTable('galaxies', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  key: text().notNull(),
+  redshift: doublePrecision(),
+  ra: doublePrecision(),
+  dec: doublePrecision(),
+  fluxUnit: doublePrecision().notNull().default(1),
+  input: jsonb().notNull(),
+  lastIntakeId: uuid(),
+  createdAt: createdAt(),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [uniqueIndex('galaxies_project_key').on(t.projectId, t.key)])
+
+export const galaxyIntakes = pgTable('galaxy_intakes', {
+  galaxyId: bigint({ mode: 'number' }).notNull().references(() => galaxies.id, { onDelete: 'cascade' }),
+  intakeId: uuid().notNull().references(() => intakes.id, { onDelete: 'cascade' }),
+}, (t) => [primaryKey({ columns: [t.galaxyId, t.intakeId] })])
+
+/**
+ * Everything derived for a galaxy under one assumptions revision and one method version. The full
+ * result is JSON; the columns beside it are copies for filtering, sorting and the diagram endpoint.
+ */
+export const results = pgTable('results', {
+  galaxyId: bigint({ mode: 'number' }).notNull().references(() => galaxies.id, { onDelete: 'cascade' }),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  revision: integer().notNull(),
+  methodVersion: text().notNull(),
+  computedAt: createdAt(),
+  classOverall: smallint(),
+  classNii: smallint(),
+  classSii: smallint(),
+  classOi: smallint(),
+  classWhan: smallint(),
+  xNii: real(), xSii: real(), xOi: real(), yOiii: real(),
+  xNiiErr: real(), xSiiErr: real(), xOiErr: real(), yOiiiErr: real(),
+  /** Bit field of limits: see server/services/result-columns.ts. */
+  limits: smallint().notNull().default(0),
+  ewHalpha: real(),
+  snrMin: real(),
+  ebv: real(), ebvError: real(), av: real(),
+  neSii: real(), neOii: real(), teOiii: real(),
+  n2Pp04: real(), o3n2Pp04: real(),
+  sfrHalpha: real(),
+  flagCount: smallint().notNull().default(0),
+  result: jsonb().notNull(),
+}, (t) => [
+  primaryKey({ columns: [t.galaxyId, t.revision] }),
+  index('results_project_revision').on(t.projectId, t.revision),
+])
+
+export const jobs = pgTable('jobs', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  kind: text().notNull(),
+  status: text().notNull().default('queued'),
+  revision: integer(),
+  total: integer().notNull().default(0),
+  done: integer().notNull().default(0),
+  error: text(),
+  createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+  finishedAt: timestamp({ withTimezone: true }),
+}, (t) => [index('jobs_project_time').on(t.projectId, t.createdAt)])
+
+/** Mail received by the local catcher (development and tests); site admins read it on the Outbox. */
+export const outboxMessages = pgTable('outbox_messages', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  toAddress: text().notNull(),
+  fromAddress: text().notNull(),
+  subject: text().notNull(),
+  text: text().notNull(),
+  html: text(),
+  receivedAt: createdAt(),
+})
+
+/** Demo seed bookkeeping: makes the seed run once per database. */
+export const seedRuns = pgTable('seed_runs', {
+  name: text().primaryKey(),
+  createdAt: createdAt(),
+})

@@ -1,0 +1,34 @@
+import type { ErrorRequestHandler } from 'express'
+import { HttpProblem, unavailable } from './problem.ts'
+import { logger } from '../lib/logger.ts'
+
+const DB_DOWN_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', '57P01', '57P02', '57P03', '08000', '08001', '08003', '08006', '53300'])
+
+/** True for errors that mean "the database is not reachable right now" rather than a bug. */
+export function isDatabaseUnavailable(err: unknown): boolean {
+  if (!err || typeof err !== 'object') return false
+  const e = err as { code?: string; message?: string; cause?: unknown }
+  if (e.code && DB_DOWN_CODES.has(e.code)) return true
+  const m = e.message ?? ''
+  if (/Connection terminated|connection timeout|timeout exceeded when trying to connect|the database system is (starting up|shutting down)|terminating connection/i.test(m)) return true
+  return e.cause ? isDatabaseUnavailable(e.cause) : false
+}
+
+function fromBodyParser(err: { type?: string; status?: number }): HttpProblem | null {
+  if (err.type === 'entity.parse.failed') return new HttpProblem(400, 'Bad Request', 'the body is not valid JSON')
+  if (err.type === 'entity.too.large') return new HttpProblem(413, 'Content Too Large', 'the body is larger than the limit')
+  if (err.type === 'encoding.unsupported' || err.type === 'charset.unsupported') return new HttpProblem(415, 'Unsupported Media Type', 'unsupported body encoding')
+  if (err.type === 'request.aborted') return new HttpProblem(400, 'Bad Request', 'the request was aborted')
+  return null
+}
+
+export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
+  let known = err instanceof HttpProblem ? err : fromBodyParser(err)
+  if (!known && isDatabaseUnavailable(err)) known = unavailable()
+  if (!known) logger.error({ err, method: req.method, url: req.path }, 'unhandled error')
+  const p = known ?? new HttpProblem(500, 'Internal Server Error')
+  if (res.headersSent) { res.destroy(); return }
+  for (const [k, v] of Object.entries(p.headers)) res.setHeader(k, v)
+  res.status(p.status).type('application/problem+json')
+    .send(JSON.stringify({ type: p.type, title: p.title, status: p.status, detail: p.detail, errors: p.errors ?? [] }))
+}

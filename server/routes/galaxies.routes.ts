@@ -1,0 +1,68 @@
+import type { NextFunction, Request, Response, Router } from 'express'
+import { z } from 'zod'
+import type { AppDeps } from '../app.ts'
+import { requireAuth } from '../http/auth.ts'
+import { route } from '../http/route.ts'
+import { HttpProblem } from '../http/problem.ts'
+import { galaxiesService, ingestBatch, requestHash } from '../services/galaxies.service.ts'
+import { BatchRequestSchema, MAX_GALAXIES_PER_REQUEST } from '../../shared/schemas/galaxy.schema.ts'
+import { GalaxyListQuerySchema, DiagramQuerySchema } from '../../shared/schemas/query.schema.ts'
+import { BatchResponseSchema, GalaxyPathSchema, GalaxyRevisionPathSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
+import type { Guard } from './index.ts'
+
+/** 413 before validation when a request carries more galaxies than one request may. */
+export function galaxyCountLimit(req: Request, _res: Response, next: NextFunction) {
+  const g = (req.body as { galaxies?: unknown })?.galaxies
+  if (Array.isArray(g) && g.length > MAX_GALAXIES_PER_REQUEST) {
+    return next(new HttpProblem(413, 'Content Too Large', `at most ${MAX_GALAXIES_PER_REQUEST} galaxies per request, got ${g.length}`,
+      [{ path: '/galaxies', message: `at most ${MAX_GALAXIES_PER_REQUEST} items` }]))
+  }
+  next()
+}
+
+export function galaxiesRoutes(r: Router, deps: AppDeps, guard: Guard) {
+  const galaxies = galaxiesService(deps.db)
+  const tag = 'Galaxies'
+
+  route(r, {
+    method: 'post', path: '/projects/:projectId/galaxies/batch', tag, access: 'analyst', write: true,
+    summary: 'Ingest up to 10,000 galaxies: upsert by ID, all or nothing, idempotent',
+    description: 'Each request is one intake. With an `Idempotency-Key` header, a resend of the same body returns the first answer; the same key with another body answers 409. On any invalid row nothing is stored and the 422 lists every problem with a JSON Pointer.',
+    params: ProjectPathSchema, body: BatchRequestSchema,
+    headers: [{ name: 'Idempotency-Key', description: 'any string up to 200 characters; makes a resend safe' }],
+    bodyExample: { galaxies: [{ id: 'LNS-0000001', redshift: 0.05, lines: { halpha: { flux: 300, error: 6 }, hbeta: { flux: 80, error: 3 }, nii_6584: { flux: 90, error: 4 }, oiii_5007: { upperLimit: 9 } }, ew: { halpha: 24.5 } }] },
+    responses: { 200: { description: 'stored', schema: BatchResponseSchema }, 409: { description: 'idempotency conflict' }, 413: { description: 'more than 10,000 galaxies' }, 422: { description: 'invalid rows; nothing stored' } },
+  }, (spec) => { const g = guard(spec); return (req, res, next) => g(req, res, (err?: unknown) => (err ? next(err) : galaxyCountLimit(req, res, next))) },
+  async (req, res, { params, body }) => {
+    const key = req.get('idempotency-key')
+    if (key !== undefined && (key.length === 0 || key.length > 200)) throw new HttpProblem(422, 'Unprocessable Content', 'Idempotency-Key must be 1–200 characters', [{ path: '/headers/Idempotency-Key', message: '1–200 characters' }])
+    const out = await ingestBatch(deps.db, requireAuth(req), params.projectId, body.galaxies, key, requestHash(req.body))
+    if (out.replay) res.setHeader('Idempotent-Replayed', 'true')
+    res.json(out.body)
+  })
+
+  route(r, {
+    method: 'get', path: '/projects/:projectId/galaxies', tag, access: 'viewer', summary: 'A page of galaxies with results (filters, sort, cursor)',
+    params: ProjectPathSchema, query: GalaxyListQuerySchema, responses: { 200: { description: 'a page; pass nextCursor as cursor for the next' } },
+  }, guard, async (_req, res, { params, query }) => { res.json(await galaxies.list(params.projectId, query)) })
+
+  route(r, {
+    method: 'get', path: '/projects/:projectId/galaxies/:galaxyId', tag, access: 'viewer', summary: 'One galaxy: inputs, results, flags, intake history, revisions',
+    params: GalaxyPathSchema, responses: { 200: { description: 'the galaxy' } },
+  }, guard, async (_req, res, { params }) => { res.json(await galaxies.getOne(params.projectId, params.galaxyId)) })
+
+  route(r, {
+    method: 'get', path: '/projects/:projectId/galaxies/:galaxyId/results/:revision', tag, access: 'viewer', summary: 'A galaxy\'s results under one assumptions revision',
+    params: GalaxyRevisionPathSchema, responses: { 200: { description: 'results of that revision', schema: z.object({ revision: z.number().int().nullable(), methodVersion: z.string().nullable(), computedAt: z.string().nullable(), results: z.unknown() }) } },
+  }, guard, async (_req, res, { params }) => {
+    const g = await galaxies.getOne(params.projectId, params.galaxyId, params.revision)
+    res.json({ revision: g.revision, methodVersion: g.methodVersion, computedAt: g.computedAt, results: g.results })
+  })
+
+  route(r, {
+    method: 'get', path: '/projects/:projectId/diagram', tag: 'Diagrams', access: 'viewer',
+    summary: 'Columnar diagram data (IDs, x per diagram, y, classes as codes, errors, limit markers)',
+    description: 'Arrays are aligned by index. `class.*` are integer codes into `classNames.*`. `xLimit.*`/`yLimit`: 0 measured, 1 upper limit, −1 lower limit.',
+    params: ProjectPathSchema, query: DiagramQuerySchema, responses: { 200: { description: 'columnar arrays' } },
+  }, guard, async (_req, res, { params, query }) => { res.type('application/json').send(await galaxies.diagram(params.projectId, query)) })
+}

@@ -1,0 +1,43 @@
+import express, { Router } from 'express'
+import { rateLimit } from 'express-rate-limit'
+import type { AppDeps } from '../app.ts'
+import { authenticate, guardFor } from '../http/auth.ts'
+import { HttpProblem } from '../http/problem.ts'
+import { accountsRoutes } from './accounts.routes.ts'
+import { projectsRoutes } from './projects.routes.ts'
+import { galaxiesRoutes } from './galaxies.routes.ts'
+import { diagnosticsRoutes } from './diagnostics.routes.ts'
+import { openapiRoutes } from './openapi.routes.ts'
+import { assumptionsRoutes } from './assumptions.routes.ts'
+import { intakeRoutes } from './intake.routes.ts'
+import { exportRoutes } from './exports.routes.ts'
+import { adminRoutes } from './admin.routes.ts'
+
+export const JSON_LIMIT = '32mb'
+
+export function buildRoutes(deps: AppDeps): Router {
+  const router = Router()
+  const v1 = Router()
+  const guard = guardFor(deps.db)
+  router.use(openapiRoutes())
+  router.use('/v1', express.json({ limit: JSON_LIMIT, strict: false, type: ['application/json', 'application/*+json'] }))
+  router.use('/v1', authenticate(deps.db, deps.config))
+  // per key (or signed-in user) and per address
+  router.use('/v1', rateLimit({
+    windowMs: 60_000, limit: Number(process.env.API_RATE_LIMIT ?? 1200), standardHeaders: 'draft-8', legacyHeaders: false,
+    keyGenerator: (req) => req.auth?.key ? `key:${req.auth.key.id}` : req.auth ? `user:${req.auth.user.id}` : `ip:${req.ip}`,
+    handler: (_req, _res, next, options) => next(new HttpProblem(429, 'Too Many Requests', 'rate limit reached; slow down', undefined, { 'Retry-After': String(Math.ceil(options.windowMs / 1000)) })),
+  }))
+  accountsRoutes(v1, deps, guard)
+  projectsRoutes(v1, deps, guard)
+  galaxiesRoutes(v1, deps, guard)
+  diagnosticsRoutes(v1, deps, guard)
+  assumptionsRoutes(v1, deps, guard)
+  intakeRoutes(v1, deps, guard)
+  exportRoutes(v1, deps, guard)
+  adminRoutes(v1, deps, guard)
+  router.use('/v1', v1)
+  return router
+}
+
+export type Guard = ReturnType<typeof guardFor>

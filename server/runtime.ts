@@ -1,0 +1,115 @@
+import { spawnSync } from 'node:child_process'
+import { existsSync, readdirSync, statSync } from 'node:fs'
+import { join } from 'node:path'
+import type { Server } from 'node:http'
+import { PROJECT_ROOT, loadConfig, type Config } from './config.ts'
+import { connect, runMigrations, type Db } from './db/client.ts'
+import { startEmbeddedPostgres, portIsFree, type EmbeddedPostgres } from './db/embedded-postgres.ts'
+import { startMailCatcher } from './lib/mail-catcher.ts'
+import { smtpMailer, type Mailer } from './lib/mailer.ts'
+import { createApp } from './app.ts'
+import { logger } from './lib/logger.ts'
+import { startJobQueue, startRecomputeWorker } from './services/jobs.service.ts'
+
+export interface Runtime {
+  config: Config
+  db: Db
+  mailer: Mailer
+  url: string
+  server: Server
+  stop: () => Promise<void>
+}
+
+function newestMtime(path: string): number {
+  if (!existsSync(path)) return 0
+  const st = statSync(path)
+  if (!st.isDirectory()) return st.mtimeMs
+  let newest = st.mtimeMs
+  for (const name of readdirSync(path)) newest = Math.max(newest, newestMtime(join(path, name)))
+  return newest
+}
+
+/** Builds the client with Vite when dist/ is missing or older than any client source. */
+export function buildClientIfStale(log: (m: string) => void) {
+  const built = join(PROJECT_ROOT, 'dist', 'index.html')
+  const sources = ['src', 'shared', 'public', 'index.html', 'vite.config.ts', 'package.json']
+    .map((p) => newestMtime(join(PROJECT_ROOT, p)))
+  const builtAt = existsSync(built) ? statSync(built).mtimeMs : 0
+  if (builtAt >= Math.max(...sources)) return
+  log('building the client (vite build) …')
+  const r = spawnSync(process.execPath, [join(PROJECT_ROOT, 'node_modules', 'vite', 'bin', 'vite.js'), 'build', '--logLevel', 'warn'],
+    { cwd: PROJECT_ROOT, stdio: 'inherit', env: { ...process.env, NODE_ENV: 'production' } })
+  if (r.status !== 0) throw new Error('the client build failed')
+}
+
+export interface StartOptions {
+  env?: NodeJS.ProcessEnv
+  serveClient?: boolean
+  buildClient?: boolean
+  seed?: boolean
+  /** Throwaway cluster for tests: no durability, own folder. */
+  embeddedDir?: string
+  durable?: boolean
+  log?: (m: string) => void
+}
+
+export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
+  const log = opts.log ?? ((m: string) => console.log(m))
+  const config = loadConfig(opts.env ?? process.env)
+  if (!(await portIsFree(config.port, config.host)) && config.port !== 0) {
+    throw new Error(`port ${config.port} on ${config.host} is already in use — stop the other process or set PORT to a free port`)
+  }
+  let pg: EmbeddedPostgres | undefined
+  let databaseUrl = config.databaseUrl
+  if (!databaseUrl) {
+    pg = await startEmbeddedPostgres({
+      dir: opts.embeddedDir ?? join(config.dataDir, 'pg'),
+      port: config.embeddedPgPort,
+      durable: opts.durable ?? true,
+      log,
+    })
+    databaseUrl = pg.url
+    log(`embedded PostgreSQL on 127.0.0.1:${pg.port}`)
+  }
+  const db = connect(databaseUrl, 20)
+  await runMigrations(db)
+
+  let catcher: Awaited<ReturnType<typeof startMailCatcher>> | undefined
+  let smtpUrl = config.smtpUrl
+  if (!smtpUrl) {
+    catcher = await startMailCatcher(db, Number(process.env.MAIL_CATCHER_PORT ?? 0))
+    smtpUrl = catcher.url
+  }
+  const mailer = smtpMailer(smtpUrl)
+  // one in-process worker; more can run as `npm run worker` against the same database
+  const jobs = await startJobQueue(databaseUrl)
+  await startRecomputeWorker(jobs.boss, db)
+
+  if (opts.seed) {
+    const { seedDemo } = await import('./seed/demo.ts')
+    await seedDemo(db, log)
+  }
+  if (opts.buildClient) buildClientIfStale(log)
+
+  const app = createApp({ db, config, mailer, jobs: jobs.queue, serveClient: opts.serveClient })
+  const server = await new Promise<Server>((ok, fail) => {
+    const s = app.listen(config.port, config.host, () => ok(s))
+    s.once('error', (err: NodeJS.ErrnoException) => fail(err.code === 'EADDRINUSE'
+      ? new Error(`port ${config.port} on ${config.host} is already in use — stop the other process or set PORT to a free port`)
+      : err))
+  })
+  const addr = server.address()
+  const port = typeof addr === 'object' && addr ? addr.port : config.port
+  const url = `http://${config.host}:${port}`
+  let stopping: Promise<void> | undefined
+  const stop = () => stopping ??= (async () => {
+    await new Promise<void>((ok) => { server.close(() => ok()); server.closeAllConnections() })
+    await jobs.queue.stop().catch(() => {})
+    mailer.close()
+    await catcher?.close()
+    await db.$client.end().catch(() => {})
+    pg?.stop()
+  })()
+  logger.debug({ url }, 'listening')
+  return { config, db, mailer, url, server, stop }
+}

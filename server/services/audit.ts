@@ -1,0 +1,17 @@
+import type { Db } from '../db/client.ts'
+import { auditEvents } from '../db/schema.ts'
+
+export type AuditAction =
+  | 'sign-in' | 'sign-in-failed' | 'sign-up' | 'password-reset' | 'api-key-created' | 'api-key-revoked'
+  | 'member-added' | 'member-role-changed' | 'member-removed' | 'invitation-sent' | 'invitation-revoked'
+  | 'assumptions-changed' | 'project-created' | 'project-renamed' | 'project-deleted' | 'user-disabled' | 'user-enabled'
+
+/** Appends one audit event; runs inside the caller's transaction when given one. */
+export async function audit(db: Pick<Db, 'insert'>, e: {
+  action: AuditAction; actorUserId?: string | null; projectId?: string | null; target?: string; details?: Record<string, unknown>; ip?: string
+}) {
+  await db.insert(auditEvents).values({
+    action: e.action, actorUserId: e.actorUserId ?? null, projectId: e.projectId ?? null,
+    target: e.target ?? null, details: e.details ?? {}, ip: e.ip ?? null,
+  })
+}

@@ -1,0 +1,105 @@
+import type { Response } from 'express'
+import { stringify } from 'csv-stringify'
+import { sql } from 'drizzle-orm'
+import type { Db } from '../db/client.ts'
+import { HttpProblem } from '../http/problem.ts'
+import { EXPORT_COLUMNS, type ExportColumn } from '../../shared/schemas/export-columns.ts'
+import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
+import { filterSql, projectRevisionForQueries } from './galaxies.service.ts'
+import { revisionSettings } from './projects.service.ts'
+import { METHOD_VERSION } from '../../shared/science.ts'
+import { FORMULA_START } from './csv-rows.ts'
+import { APP_VERSION } from '../lib/version.ts'
+
+const CHUNK = 2000
+
+export function pickColumns(names: string[] | undefined): ExportColumn[] {
+  if (!names?.length) return EXPORT_COLUMNS
+  const unknown = names.filter((n) => !EXPORT_COLUMNS.some((c) => c.name === n))
+  if (unknown.length) throw new HttpProblem(422, 'Unprocessable Content', 'unknown export columns', unknown.map((n) => ({ path: '/columns', message: `unknown column "${n}"` })))
+  const set = new Set(['galaxy_id', ...names])
+  return EXPORT_COLUMNS.filter((c) => set.has(c.name))
+}
+
+/** Text cells that a spreadsheet would evaluate get a leading apostrophe; numbers stay numbers. */
+export const safeCell = (v: string | number | null) => (typeof v === 'string' && FORMULA_START.test(v) ? `'${v}` : v)
+
+async function* rowsOf(db: Db, projectId: string, revision: number, f: GalaxyFilter) {
+  const where = filterSql(projectId, revision, { ...f, revision })
+  let lastId = 0
+  for (;;) {
+    const res = await db.execute<{ id: number; key: string; redshift: number | null; ra: number | null; dec: number | null; flux_unit: number; result: unknown }>(sql`
+      select g.id, g.key, g.redshift, g.ra, g.dec, g.flux_unit, r.result from galaxies g join results r on r.galaxy_id = g.id
+      where ${where} and g.id > ${lastId} order by g.id limit ${CHUNK}`)
+    if (!res.rows.length) return
+    for (const row of res.rows) yield row
+    lastId = res.rows[res.rows.length - 1].id
+  }
+}
+
+const xml = (s: string) => s.replace(/[<>&"']/g, (c) => ({ '<': '&lt;', '>': '&gt;', '&': '&amp;', '"': '&quot;', "'": '&apos;' })[c]!)
+  // XML 1.0 forbids most control characters even escaped
+  .replace(/[\u0000-\u0008\u000b\u000c\u000e-\u001f]/g, '')
+
+export function exportsService(db: Db) {
+  async function context(projectId: string, f: GalaxyFilter) {
+    const revision = await projectRevisionForQueries(db, projectId, f.revision)
+    const { settings } = await revisionSettings(db, projectId, revision)
+    return { revision, settings }
+  }
+  return {
+    /** Streams CSV: a commented header block (provenance, units), then one row per galaxy. */
+    async csv(res: Response, projectId: string, projectName: string, f: GalaxyFilter, columns: ExportColumn[]) {
+      const { revision, settings } = await context(projectId, f)
+      res.setHeader('Content-Type', 'text/csv; charset=utf-8')
+      res.setHeader('Content-Disposition', `attachment; filename="ratiograph-${projectId.slice(0, 8)}-rev${revision}.csv"`)
+      const lines = [
+        `# Ratiograph ${APP_VERSION} export of project "${projectName.replace(/[\r\n]/g, ' ')}"`,
+        `# assumptions revision: ${revision}`,
+        `# method version: ${METHOD_VERSION}`,
+        `# settings: ${JSON.stringify(settings)}`,
+        `# generated: ${new Date().toISOString()}`,
+        '# equivalent widths: emission positive; fluxes corrected for dust in erg s-1 cm-2; ratios are log10 of observed fluxes except the doublets',
+        '# units: ' + columns.filter((c) => c.unit).map((c) => `${c.name}=${c.unit}`).join(' '),
+        '# text cells that begin with = + - @ are prefixed with an apostrophe',
+      ]
+      res.write(lines.join('\n') + '\n')
+      const out = stringify({ header: true, columns: columns.map((c) => c.name), cast: { number: (v) => String(v) } })
+      out.pipe(res)
+      for await (const row of rowsOf(db, projectId, revision, f)) {
+        const g = { key: row.key, redshift: row.redshift, ra: row.ra, dec: row.dec, fluxUnit: row.flux_unit }
+        if (!out.write(columns.map((c) => safeCell(c.get(g, row.result))))) await new Promise((ok) => out.once('drain', ok))
+      }
+      out.end()
+    },
+
+    /** Streams a VOTable 1.4 document with a unit and a UCD on every field. */
+    async votable(res: Response, projectId: string, projectName: string, f: GalaxyFilter, columns: ExportColumn[]) {
+      const { revision, settings } = await context(projectId, f)
+      res.setHeader('Content-Type', 'application/x-votable+xml; charset=utf-8')
+      res.setHeader('Content-Disposition', `attachment; filename="ratiograph-${projectId.slice(0, 8)}-rev${revision}.vot"`)
+      const fields = columns.map((c) => {
+        const type = c.datatype === 'char' ? 'datatype="char" arraysize="*"' : c.datatype === 'int' ? 'datatype="int"' : 'datatype="double"'
+        return `      <FIELD name="${xml(c.name)}" ${type}${c.unit ? ` unit="${xml(c.unit)}"` : ''} ucd="${xml(c.ucd)}"><DESCRIPTION>${xml(c.description)}</DESCRIPTION></FIELD>`
+      })
+      res.write(`<?xml version="1.0" encoding="UTF-8"?>
+<VOTABLE version="1.4" xmlns="http://www.ivoa.net/xml/VOTable/v1.3" xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">
+  <RESOURCE type="results" name="ratiograph">
+    <DESCRIPTION>Ratiograph ${xml(APP_VERSION)} export of project "${xml(projectName)}"; assumptions revision ${revision}; method version ${xml(METHOD_VERSION)}</DESCRIPTION>
+    <INFO name="assumptionsRevision" value="${revision}"/>
+    <INFO name="methodVersion" value="${xml(METHOD_VERSION)}"/>
+    <INFO name="settings" value="${xml(JSON.stringify(settings))}"/>
+    <TABLE name="galaxies">
+${fields.join('\n')}
+      <DATA><TABLEDATA>
+`)
+      let buf = ''
+      for await (const row of rowsOf(db, projectId, revision, f)) {
+        const g = { key: row.key, redshift: row.redshift, ra: row.ra, dec: row.dec, fluxUnit: row.flux_unit }
+        buf += '        <TR>' + columns.map((c) => { const v = c.get(g, row.result); return v === null ? '<TD/>' : `<TD>${xml(String(v))}</TD>` }).join('') + '</TR>\n'
+        if (buf.length > 1 << 16) { if (!res.write(buf)) await new Promise((ok) => res.once('drain', ok)); buf = '' }
+      }
+      res.end(buf + '      </TABLEDATA></DATA>\n    </TABLE>\n  </RESOURCE>\n</VOTABLE>\n')
+    },
+  }
+}

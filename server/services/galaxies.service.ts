@@ -1,0 +1,286 @@
+import { createHash } from 'node:crypto'
+import { and, eq, sql, type SQL } from 'drizzle-orm'
+import type { Db } from '../db/client.ts'
+import { galaxies, galaxyIntakes, intakes, projects, results, users } from '../db/schema.ts'
+import type { Auth } from '../http/auth.ts'
+import { HttpProblem, conflict, notFound, type FieldError } from '../http/problem.ts'
+import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
+import { CLASS_NAMES, classCode, type ClassDiagram } from '../../shared/schemas/classes.ts'
+import { diagnoseMany, METHOD_VERSION, ScienceInputError, type GalaxyInput } from '../../shared/science.ts'
+import { RESULT_COLUMN_SQL, resultColumns, LIMIT_BITS } from './result-columns.ts'
+import { intakeDto, revisionSettings } from './projects.service.ts'
+import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
+
+type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
+type Executor = Db | Tx
+
+/** Checks the project's own rules that a schema alone cannot: unique IDs, negative fluxes. */
+export function checkBatchRules(gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies'): FieldError[] {
+  const errors: FieldError[] = []
+  const seen = new Map<string, number>()
+  gals.forEach((g, i) => {
+    const first = seen.get(g.id)
+    if (first !== undefined) errors.push({ path: `${prefix}/${i}/id`, message: `duplicate galaxy id "${g.id}" (also at ${prefix}/${first}/id)` })
+    else seen.set(g.id, i)
+    if (!settings.allowNegative) {
+      for (const [line, v] of Object.entries(g.lines)) {
+        if (v && v.flux !== undefined && v.flux < 0) errors.push({ path: `${prefix}/${i}/lines/${line}/flux`, message: 'negative flux (set allowNegative in the assumptions to accept it)' })
+      }
+    }
+  })
+  return errors
+}
+
+/** Runs the science chain, turning impossible inputs into a 422 that names the field. */
+export function computeAll(gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies') {
+  try {
+    return diagnoseMany(gals as GalaxyInput[], settings)
+  } catch (err) {
+    if (err instanceof ScienceInputError) throw new HttpProblem(422, 'Unprocessable Content', err.message, [{ path: prefix + err.path, message: err.message }])
+    if (err instanceof RangeError) throw new HttpProblem(422, 'Unprocessable Content', err.message, [{ path: '/settings', message: err.message }])
+    throw err
+  }
+}
+
+const storedInput = (g: GalaxyInputDto) => ({ lines: g.lines, ...(g.ew ? { ew: g.ew } : {}), ...(g.fwhm ? { fwhm: g.fwhm } : {}) })
+
+/** Writes galaxies and their results for the given revisions inside the caller's transaction. */
+export async function writeGalaxies(tx: Executor, projectId: string, intakeId: string, gals: GalaxyInputDto[],
+  computed: Array<{ revision: number; results: unknown[] }>) {
+  let inserted = 0, updated = 0
+  const CHUNK = 5000
+  for (let start = 0; start < gals.length; start += CHUNK) {
+    const part = gals.slice(start, start + CHUNK)
+    const rows = part.map((g) => ({ key: g.id, redshift: g.redshift ?? null, ra: g.ra ?? null, dec: g.dec ?? null, flux_unit: g.fluxUnit ?? 1, input: storedInput(g) }))
+    const ids = await tx.execute<{ id: number; key: string; inserted: boolean }>(sql`
+      insert into galaxies (project_id, key, redshift, ra, dec, flux_unit, input, last_intake_id)
+      select ${projectId}::uuid, t.key, t.redshift, t.ra, t.dec, t.flux_unit, t.input, ${intakeId}::uuid
+      from jsonb_to_recordset(${JSON.stringify(rows)}::jsonb) as t(key text, redshift float8, ra float8, dec float8, flux_unit float8, input jsonb)
+      on conflict (project_id, key) do update set redshift = excluded.redshift, ra = excluded.ra, dec = excluded.dec,
+        flux_unit = excluded.flux_unit, input = excluded.input, last_intake_id = excluded.last_intake_id, updated_at = now()
+      returning id, key, (xmax = 0) as inserted`)
+    const idByKey = new Map<string, number>()
+    for (const r of ids.rows) { idByKey.set(r.key, r.id); if (r.inserted) inserted++; else updated++ }
+    await tx.execute(sql`insert into galaxy_intakes (galaxy_id, intake_id)
+      select unnest(${'{' + [...idByKey.values()].join(',') + '}'}::bigint[]), ${intakeId}::uuid on conflict do nothing`)
+    for (const c of computed) {
+      const resultRows = part.map((g, j) => ({ galaxy_id: idByKey.get(g.id), ...snake(resultColumns(g, c.results[start + j])), result: c.results[start + j] }))
+      await upsertResults(tx, projectId, c.revision, resultRows)
+    }
+  }
+  return { inserted, updated }
+}
+
+function snake(cols: ReturnType<typeof resultColumns>) {
+  const out: Record<string, unknown> = {}
+  for (const [k, col] of RESULT_COLUMN_SQL) out[col] = cols[k]
+  return out
+}
+
+const RESULT_COLS = RESULT_COLUMN_SQL.map(([, c]) => c)
+const RESULT_RECORD = sql.raw(RESULT_COLUMN_SQL.map(([, c, t]) => `${c} ${t}`).join(', '))
+const RESULT_LIST = sql.raw(RESULT_COLS.join(', '))
+const RESULT_T_LIST = sql.raw(RESULT_COLS.map((c) => `t.${c}`).join(', '))
+const RESULT_UPDATE = sql.raw(RESULT_COLS.map((c) => `${c} = excluded.${c}`).join(', '))
+
+export async function upsertResults(tx: Executor, projectId: string, revision: number, rows: Array<Record<string, unknown>>) {
+  await tx.execute(sql`
+    insert into results (galaxy_id, project_id, revision, method_version, computed_at, ${RESULT_LIST}, result)
+    select t.galaxy_id, ${projectId}::uuid, ${revision}, ${METHOD_VERSION}, now(), ${RESULT_T_LIST}, t.result
+    from jsonb_to_recordset(${JSON.stringify(rows)}::jsonb) as t(galaxy_id bigint, ${RESULT_RECORD}, result jsonb)
+    on conflict (galaxy_id, revision) do update set method_version = excluded.method_version, computed_at = now(),
+      ${RESULT_UPDATE}, result = excluded.result`)
+}
+
+export const requestHash = (body: unknown) => createHash('sha256').update(JSON.stringify(body)).digest('hex')
+
+// ---- queries ---------------------------------------------------------------------------------
+
+export const SORT_FIELDS = {
+  id: sql`g.key`, redshift: sql`g.redshift`, ebv: sql`r.ebv`, av: sql`r.av`, neSii: sql`r.ne_sii`, teOiii: sql`r.te_oiii`,
+  n2Pp04: sql`r.n2_pp04`, o3n2Pp04: sql`r.o3n2_pp04`, sfrHalpha: sql`r.sfr_halpha`, niiHa: sql`r.x_nii`, oiiiHb: sql`r.y_oiii`,
+  siiHa: sql`r.x_sii`, oiHa: sql`r.x_oi`, flagCount: sql`r.flag_count`, classOverall: sql`r.class_overall`,
+} as const
+
+export const RANGE_FIELDS: Record<string, SQL> = {
+  redshift: sql`g.redshift`, ebv: sql`r.ebv`, av: sql`r.av`, neSii: sql`r.ne_sii`, neOii: sql`r.ne_oii`, teOiii: sql`r.te_oiii`,
+  n2Pp04: sql`r.n2_pp04`, o3n2Pp04: sql`r.o3n2_pp04`, sfrHalpha: sql`r.sfr_halpha`, niiHa: sql`r.x_nii`, oiiiHb: sql`r.y_oiii`,
+  siiHa: sql`r.x_sii`, oiHa: sql`r.x_oi`, ewHalpha: sql`r.ew_halpha`, snrMin: sql`r.snr_min`,
+}
+
+const CLASS_COLUMNS: Record<ClassDiagram, SQL> = {
+  overall: sql`r.class_overall`, nii: sql`r.class_nii`, sii: sql`r.class_sii`, oi: sql`r.class_oi`, whan: sql`r.class_whan`,
+}
+
+/** WHERE clause of the shared galaxy filters (galaxies `g` joined with results `r`). */
+export function filterSql(projectId: string, revision: number, f: GalaxyFilter): SQL {
+  const parts: SQL[] = [sql`g.project_id = ${projectId}::uuid`, sql`r.revision = ${revision}`]
+  const classFilters: Array<[ClassDiagram, string[] | undefined]> = [
+    ['overall', f.class], ['nii', f.classNii], ['sii', f.classSii], ['oi', f.classOi], ['whan', f.classWhan]]
+  for (const [d, names] of classFilters) {
+    if (names?.length) parts.push(sql`${CLASS_COLUMNS[d]} in (${sql.join(names.map((n) => sql`${classCode(d, n)}`), sql`, `)})`)
+  }
+  if (f.q) parts.push(sql`g.key ilike ${'%' + f.q.replace(/[\\%_]/g, (c) => '\\' + c) + '%'}`)
+  if (f.zMin !== undefined) parts.push(sql`g.redshift >= ${f.zMin}`)
+  if (f.zMax !== undefined) parts.push(sql`g.redshift <= ${f.zMax}`)
+  if (f.minSnr !== undefined) parts.push(sql`r.snr_min >= ${f.minSnr}`)
+  for (const r of f.range ?? []) {
+    const col = RANGE_FIELDS[r.field]
+    if (r.min !== null) parts.push(sql`${col} >= ${r.min}`)
+    if (r.max !== null) parts.push(sql`${col} <= ${r.max}`)
+  }
+  return sql.join(parts, sql` and `)
+}
+
+export async function projectRevisionForQueries(db: Db, projectId: string, revision?: number) {
+  const [p] = await db.select({ current: projects.currentRevision, shown: projects.resultsRevision }).from(projects).where(eq(projects.id, projectId))
+  if (!p) throw notFound('project')
+  return revision ?? p.shown
+}
+
+const encodeCursor = (v: unknown[]) => Buffer.from(JSON.stringify(v)).toString('base64url')
+function decodeCursor(c: string): [unknown, number] {
+  try {
+    const v = JSON.parse(Buffer.from(c, 'base64url').toString('utf8'))
+    if (Array.isArray(v) && v.length === 2 && typeof v[1] === 'number') return v as [unknown, number]
+  } catch { /* fall through */ }
+  throw new HttpProblem(422, 'Unprocessable Content', 'invalid cursor', [{ path: '/cursor', message: 'not a cursor from this API' }])
+}
+
+export function summary(row: Record<string, unknown>) {
+  const r = row.result as Record<string, any>
+  return {
+    id: row.key as string, redshift: row.redshift as number | null,
+    classes: { nii: r.classes?.nii, sii: r.classes?.sii, oi: r.classes?.oi, whan: r.classes?.whan, overall: r.classes?.overall },
+    ebv: r.extinction?.ebv ?? null, ebvError: r.extinction?.ebvError ?? null, av: r.extinction?.av ?? null,
+    neSii: r.density?.sii?.ne ?? null, teOiii: r.temperature?.oiii?.te ?? null,
+    n2Pp04: r.metallicity?.n2Pp04 ?? null, o3n2Pp04: r.metallicity?.o3n2Pp04 ?? null, sfrHalpha: r.sfr?.sfrHalpha ?? null,
+    ratios: { niiHa: r.ratios?.niiHa ?? null, oiiiHb: r.ratios?.oiiiHb ?? null, siiHa: r.ratios?.siiHa ?? null, oiHa: r.ratios?.oiHa ?? null },
+    flagCount: Array.isArray(r.flags) ? r.flags.length : 0,
+  }
+}
+
+export function galaxiesService(db: Db) {
+  return {
+    /** One page of galaxies by keyset pagination on (sort value, internal id). */
+    async list(projectId: string, f: GalaxyFilter & { limit: number; cursor?: string; sort: string }) {
+      const revision = await projectRevisionForQueries(db, projectId, f.revision)
+      const desc = f.sort.startsWith('-')
+      const field = (desc ? f.sort.slice(1) : f.sort) as keyof typeof SORT_FIELDS
+      const isText = field === 'id'
+      const col = SORT_FIELDS[field]
+      // nulls sort last either way: replace them by the far end of the order
+      const key = isText ? col : sql`coalesce(${col}::float8, ${desc ? sql`'-Infinity'::float8` : sql`'Infinity'::float8`})`
+      const where = filterSql(projectId, revision, f)
+      let page = where
+      if (f.cursor) {
+        const [v, id] = decodeCursor(f.cursor)
+        const val = isText ? sql`${String(v)}` : sql`${v === null ? (desc ? -Infinity : Infinity) : Number(v)}::float8`
+        page = sql`${where} and (${key}, g.id) ${desc ? sql`<` : sql`>`} (${val}, ${id})`
+      }
+      const rows = await db.execute<Record<string, unknown>>(sql`
+        select g.id, g.key, g.redshift, r.result, ${key} as sort_value from galaxies g join results r on r.galaxy_id = g.id
+        where ${page} order by ${key} ${desc ? sql`desc` : sql`asc`}, g.id ${desc ? sql`desc` : sql`asc`} limit ${f.limit + 1}`)
+      const [{ n }] = (await db.execute<{ n: number }>(sql`select count(*)::int as n from galaxies g join results r on r.galaxy_id = g.id where ${where}`)).rows
+      const items = rows.rows.slice(0, f.limit)
+      const last = items[items.length - 1]
+      const sv = last ? (typeof last.sort_value === 'number' && !Number.isFinite(last.sort_value) ? null : last.sort_value) : null
+      return {
+        revision, total: n, items: items.map(summary),
+        nextCursor: rows.rows.length > f.limit && last ? encodeCursor([sv, last.id]) : null,
+      }
+    },
+
+    async getOne(projectId: string, key: string, revision?: number) {
+      const shown = await projectRevisionForQueries(db, projectId)
+      const [g] = await db.select().from(galaxies).where(and(eq(galaxies.projectId, projectId), eq(galaxies.key, key)))
+      if (!g) throw notFound('galaxy')
+      const revs = await db.select({ revision: results.revision, methodVersion: results.methodVersion, computedAt: results.computedAt })
+        .from(results).where(eq(results.galaxyId, g.id)).orderBy(results.revision)
+      const want = revision ?? (revs.some((r) => r.revision === shown) ? shown : revs[revs.length - 1]?.revision)
+      const [res] = want === undefined ? [] : await db.select().from(results).where(and(eq(results.galaxyId, g.id), eq(results.revision, want)))
+      if (revision !== undefined && !res) throw notFound('result for that revision')
+      const history = await db.select({ i: intakes, byName: users.name }).from(galaxyIntakes)
+        .innerJoin(intakes, eq(intakes.id, galaxyIntakes.intakeId)).leftJoin(users, eq(users.id, intakes.userId))
+        .where(eq(galaxyIntakes.galaxyId, g.id)).orderBy(intakes.createdAt)
+      const input = g.input as { lines: unknown; ew?: unknown; fwhm?: unknown }
+      return {
+        id: g.key, redshift: g.redshift, fluxUnit: g.fluxUnit, ra: g.ra, dec: g.dec,
+        lines: input.lines, ew: input.ew ?? null, fwhm: input.fwhm ?? null,
+        revision: res?.revision ?? null, methodVersion: res?.methodVersion ?? null, computedAt: res?.computedAt.toISOString() ?? null,
+        results: res?.result ?? null,
+        history: history.map((h) => ({ intakeId: h.i.id, kind: h.i.kind, fileName: h.i.fileName, createdAt: h.i.createdAt.toISOString(), by: h.byName })),
+        revisions: revs.map((r) => ({ revision: r.revision, methodVersion: r.methodVersion, computedAt: r.computedAt.toISOString() })),
+      }
+    },
+
+    /**
+     * Columnar diagram data built by PostgreSQL itself (one row of arrays), so 10⁵–10⁶ galaxies
+     * cost one scan and no per-row JavaScript.
+     */
+    async diagram(projectId: string, f: GalaxyFilter): Promise<string> {
+      const revision = await projectRevisionForQueries(db, projectId, f.revision)
+      const where = filterSql(projectId, revision, f)
+      const lim = (b: { upper: number; lower: number }) =>
+        sql.raw(`array_agg(case when r.limits & ${b.upper} <> 0 then 1 when r.limits & ${b.lower} <> 0 then -1 else 0 end order by g.id)`)
+      const res = await db.execute<{ doc: string }>(sql`
+        select json_build_object(
+          'revision', ${revision}::int, 'count', count(*),
+          'ids', coalesce(array_agg(g.key order by g.id), '{}'), 'redshift', coalesce(array_agg(g.redshift order by g.id), '{}'),
+          'class', json_build_object('overall', coalesce(array_agg(r.class_overall order by g.id), '{}'), 'nii', coalesce(array_agg(r.class_nii order by g.id), '{}'),
+            'sii', coalesce(array_agg(r.class_sii order by g.id), '{}'), 'oi', coalesce(array_agg(r.class_oi order by g.id), '{}'), 'whan', coalesce(array_agg(r.class_whan order by g.id), '{}')),
+          'x', json_build_object('nii', coalesce(array_agg(r.x_nii order by g.id), '{}'), 'sii', coalesce(array_agg(r.x_sii order by g.id), '{}'), 'oi', coalesce(array_agg(r.x_oi order by g.id), '{}')),
+          'y', coalesce(array_agg(r.y_oiii order by g.id), '{}'),
+          'xErr', json_build_object('nii', coalesce(array_agg(r.x_nii_err order by g.id), '{}'), 'sii', coalesce(array_agg(r.x_sii_err order by g.id), '{}'), 'oi', coalesce(array_agg(r.x_oi_err order by g.id), '{}')),
+          'yErr', coalesce(array_agg(r.y_oiii_err order by g.id), '{}'),
+          'xLimit', json_build_object('nii', coalesce(${lim(LIMIT_BITS.niiHa)}, '{}'), 'sii', coalesce(${lim(LIMIT_BITS.siiHa)}, '{}'), 'oi', coalesce(${lim(LIMIT_BITS.oiHa)}, '{}')),
+          'yLimit', coalesce(${lim(LIMIT_BITS.oiiiHb)}, '{}'),
+          'ewHalpha', coalesce(array_agg(r.ew_halpha order by g.id), '{}')
+        )::text as doc
+        from galaxies g join results r on r.galaxy_id = g.id where ${where}`)
+      const doc = res.rows[0].doc
+      return doc.slice(0, -1) + `,"classNames":${JSON.stringify(CLASS_NAMES)}}`
+    },
+  }
+}
+
+/** Ingests one API batch as an intake: all or nothing, idempotent by key. */
+export async function ingestBatch(db: Db, auth: Auth, projectId: string, gals: GalaxyInputDto[], idempotencyKey: string | undefined, hash: string) {
+  if (idempotencyKey) {
+    const [prev] = await db.select().from(intakes).where(and(eq(intakes.projectId, projectId), eq(intakes.idempotencyKey, idempotencyKey)))
+    if (prev) {
+      if (prev.requestHash !== hash) throw conflict('this Idempotency-Key was used with a different body')
+      if (prev.response) return { replay: true, body: prev.response }
+    }
+  }
+  const { revision, settings } = await revisionSettings(db, projectId)
+  const [p] = await db.select({ shown: projects.resultsRevision }).from(projects).where(eq(projects.id, projectId))
+  const errors = checkBatchRules(gals, settings)
+  if (errors.length) throw new HttpProblem(422, 'Unprocessable Content', `${errors.length} problem(s) in the batch; nothing was stored`, errors)
+  const computed = [{ revision, results: computeAll(gals, settings) }]
+  if (p.shown !== revision) {
+    const older = await revisionSettings(db, projectId, p.shown)
+    computed.push({ revision: p.shown, results: computeAll(gals, older.settings) })
+  }
+  try {
+    return await db.transaction(async (tx) => {
+      const [intake] = await tx.insert(intakes).values({
+        projectId, kind: 'api', status: 'committed', userId: auth.user.id, apiKeyId: auth.key?.id ?? null,
+        rowsTotal: gals.length, rowsAccepted: gals.length, rowsRejected: 0, revision,
+        idempotencyKey: idempotencyKey ?? null, requestHash: hash, finishedAt: new Date(),
+      }).returning()
+      const counts = await writeGalaxies(tx, projectId, intake.id, gals, computed)
+      const body = { intake: intakeDto(intake, { id: auth.user.id, name: auth.user.name }), ...counts, revision, methodVersion: METHOD_VERSION }
+      await tx.update(intakes).set({ response: body }).where(eq(intakes.id, intake.id))
+      return { replay: false, body }
+    })
+  } catch (err) {
+    // a concurrent request with the same key won the race: answer as it did
+    if ((err as { code?: string }).code === '23505' && idempotencyKey) {
+      const [prev] = await db.select().from(intakes).where(and(eq(intakes.projectId, projectId), eq(intakes.idempotencyKey, idempotencyKey)))
+      if (prev && prev.requestHash === hash && prev.response) return { replay: true, body: prev.response }
+      if (prev) throw conflict('this Idempotency-Key was used with a different body')
+    }
+    throw err
+  }
+}

@@ -1,0 +1,64 @@
+import { classCode } from '../../shared/schemas/classes.ts'
+import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
+
+/** Bits of results.limits: which diagram coordinate is a limit, and which way. */
+export const LIMIT_BITS = {
+  niiHa: { upper: 1, lower: 2 }, siiHa: { upper: 4, lower: 8 }, oiHa: { upper: 16, lower: 32 }, oiiiHb: { upper: 64, lower: 128 },
+} as const
+
+type Num = number | null | undefined
+const num = (v: Num) => (typeof v === 'number' && Number.isFinite(v) ? v : null)
+
+// The result is the science library's GalaxyResult; read defensively, it is also what was stored.
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+type AnyResult = any
+
+/** S/N of a detected line; 0 for a limit, null when not measured. */
+function snr(g: GalaxyInputDto, id: 'halpha' | 'hbeta'): number | null {
+  const v = g.lines[id]
+  if (!v) return null
+  if (v.upperLimit !== undefined) return 0
+  return v.flux! / v.error!
+}
+
+/** The columns stored beside each result for filters, sorting and the diagram endpoint. */
+export function resultColumns(g: GalaxyInputDto, r: AnyResult) {
+  let limits = 0
+  for (const [key, bits] of Object.entries(LIMIT_BITS)) {
+    const dir = r.ratioLimits?.[key]
+    if (dir === 'upper') limits |= bits.upper
+    else if (dir === 'lower') limits |= bits.lower
+  }
+  const sa = snr(g, 'halpha'), sb = snr(g, 'hbeta')
+  return {
+    classOverall: classCode('overall', r.classes?.overall),
+    classNii: classCode('nii', r.classes?.nii),
+    classSii: classCode('sii', r.classes?.sii),
+    classOi: classCode('oi', r.classes?.oi),
+    classWhan: classCode('whan', r.classes?.whan),
+    xNii: num(r.ratios?.niiHa), xSii: num(r.ratios?.siiHa), xOi: num(r.ratios?.oiHa), yOiii: num(r.ratios?.oiiiHb),
+    xNiiErr: num(r.ratioErrors?.niiHa), xSiiErr: num(r.ratioErrors?.siiHa), xOiErr: num(r.ratioErrors?.oiHa), yOiiiErr: num(r.ratioErrors?.oiiiHb),
+    limits,
+    ewHalpha: num(g.ew?.halpha),
+    snrMin: sa === null || sb === null ? null : Math.min(sa, sb),
+    ebv: num(r.extinction?.ebv), ebvError: num(r.extinction?.ebvError), av: num(r.extinction?.av),
+    neSii: num(r.density?.sii?.ne), neOii: num(r.density?.oii?.ne), teOiii: num(r.temperature?.oiii?.te),
+    n2Pp04: num(r.metallicity?.n2Pp04), o3n2Pp04: num(r.metallicity?.o3n2Pp04),
+    sfrHalpha: num(r.sfr?.sfrHalpha),
+    flagCount: Array.isArray(r.flags) ? Math.min(r.flags.length, 32767) : 0,
+  }
+}
+export type ResultColumns = ReturnType<typeof resultColumns>
+
+/** Column name in SQL for each stored column, with its SQL type (for jsonb_to_recordset). */
+export const RESULT_COLUMN_SQL: Array<[keyof ResultColumns, string, string]> = [
+  ['classOverall', 'class_overall', 'smallint'], ['classNii', 'class_nii', 'smallint'], ['classSii', 'class_sii', 'smallint'],
+  ['classOi', 'class_oi', 'smallint'], ['classWhan', 'class_whan', 'smallint'],
+  ['xNii', 'x_nii', 'real'], ['xSii', 'x_sii', 'real'], ['xOi', 'x_oi', 'real'], ['yOiii', 'y_oiii', 'real'],
+  ['xNiiErr', 'x_nii_err', 'real'], ['xSiiErr', 'x_sii_err', 'real'], ['xOiErr', 'x_oi_err', 'real'], ['yOiiiErr', 'y_oiii_err', 'real'],
+  ['limits', 'limits', 'smallint'], ['ewHalpha', 'ew_halpha', 'real'], ['snrMin', 'snr_min', 'real'],
+  ['ebv', 'ebv', 'real'], ['ebvError', 'ebv_error', 'real'], ['av', 'av', 'real'],
+  ['neSii', 'ne_sii', 'real'], ['neOii', 'ne_oii', 'real'], ['teOiii', 'te_oiii', 'real'],
+  ['n2Pp04', 'n2_pp04', 'real'], ['o3n2Pp04', 'o3n2_pp04', 'real'], ['sfrHalpha', 'sfr_halpha', 'real'],
+  ['flagCount', 'flag_count', 'smallint'],
+]

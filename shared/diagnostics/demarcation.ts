@@ -1,0 +1,228 @@
+/**
+ * Demarcation curves of the line-ratio diagrams and signed perpendicular distances to them
+ * (REFERENCE.md §2.2, §2.6). x and y are log10 ratios (dex): x = log([N II]/Hα), log([S II]/Hα) or
+ * log([O I]/Hα); y = log([O III]5007/Hβ).
+ */
+
+/** A hyperbola y = a/(x − x0) + c, used on its left branch x < x0. */
+export interface HyperbolaCurve {
+  a: number
+  x0: number
+  c: number
+}
+
+/** A straight line y = m x + q. */
+export interface StraightLine {
+  m: number
+  q: number
+}
+
+/** Kauffmann et al. 2003, MNRAS 346, 1055, eq. 1: y = 0.61/(x_N − 0.05) + 1.30 ([I]; eq. no. from memory). */
+export const KA03: HyperbolaCurve = { a: 0.61, x0: 0.05, c: 1.3 }
+/** Kewley et al. 2001, ApJ 556, 121, eq. 5: y = 0.61/(x_N − 0.47) + 1.19 ([I]). */
+export const KE01_NII: HyperbolaCurve = { a: 0.61, x0: 0.47, c: 1.19 }
+/** Kewley et al. 2001, eq. 6: y = 0.72/(x_S − 0.32) + 1.30 ([I]). */
+export const KE01_SII: HyperbolaCurve = { a: 0.72, x0: 0.32, c: 1.3 }
+/** Kewley et al. 2001, eq. 7: y = 0.73/(x_O + 0.59) + 1.33 ([I]). */
+export const KE01_OI: HyperbolaCurve = { a: 0.73, x0: -0.59, c: 1.33 }
+/** Kewley et al. 2006, MNRAS 372, 961: Seyfert/LINER line on [S II], y = 1.89 x_S + 0.76 ([I]). */
+export const KE06_SII: StraightLine = { m: 1.89, q: 0.76 }
+/** Kewley et al. 2006: Seyfert/LINER line on [O I], y = 1.18 x_O + 1.30 ([I]). */
+export const KE06_OI: StraightLine = { m: 1.18, q: 1.3 }
+/** Schawinski et al. 2007, MNRAS 382, 1415: Seyfert/LINER line on [N II], y = 1.05 x_N + 0.45 ([I]). */
+export const S07_NII: StraightLine = { m: 1.05, q: 0.45 }
+
+/** x_N where Ka03 and Ke01 [N II] cross; left of it Ka03 lies above Ke01 (REFERENCE.md §2.2 [C]). */
+export const KA03_KE01_CROSSING_X = -1.2805
+
+/**
+ * y of a hyperbolic demarcation curve on its left branch; null at or right of the asymptote, where
+ * the formula's value belongs to the other branch (e.g. Ka03 at x = 0.10 would give +13.5).
+ * Source: the curve's paper (see KA03, KE01_*); REFERENCE.md §2.2.
+ *
+ * @param curve  the curve
+ * @param x      log ratio, dex
+ * @returns y in dex, or null for x ≥ x0
+ * @example hyperbolaY(KA03, -0.4) // ≈ -0.0556 (REFERENCE.md §2.2 [C])
+ */
+export function hyperbolaY(curve: HyperbolaCurve, x: number): number | null {
+  return x < curve.x0 ? curve.a / (x - curve.x0) + curve.c : null
+}
+
+/**
+ * Kauffmann et al. 2003 line (MNRAS 346, 1055, eq. 1): y = 0.61/(x − 0.05) + 1.30 for x < 0.05.
+ * @param x  log([N II]6584/Hα), dex
+ * @returns log([O III]5007/Hβ) of the curve in dex, or null at/right of the asymptote x = 0.05
+ * @example kauffmann2003Line(0) // -10.9
+ */
+export const kauffmann2003Line = (x: number): number | null => hyperbolaY(KA03, x)
+
+/**
+ * Kewley et al. 2001 maximum-starburst line on [N II] (ApJ 556, 121, eq. 5).
+ * @param x  log([N II]6584/Hα), dex
+ * @returns y in dex, or null for x ≥ 0.47
+ * @example kewley2001NiiLine(-0.5) // ≈ 0.5611
+ */
+export const kewley2001NiiLine = (x: number): number | null => hyperbolaY(KE01_NII, x)
+
+/**
+ * Kewley et al. 2001 line on [S II] (eq. 6).
+ * @param x  log(([S II]6717+6731)/Hα), dex
+ * @returns y in dex, or null for x ≥ 0.32
+ * @example kewley2001SiiLine(-0.5) // ≈ 0.4220
+ */
+export const kewley2001SiiLine = (x: number): number | null => hyperbolaY(KE01_SII, x)
+
+/**
+ * Kewley et al. 2001 line on [O I] (eq. 7).
+ * @param x  log([O I]6300/Hα), dex
+ * @returns y in dex, or null for x ≥ −0.59
+ * @example kewley2001OiLine(-1.5) // ≈ 0.5278
+ */
+export const kewley2001OiLine = (x: number): number | null => hyperbolaY(KE01_OI, x)
+
+/**
+ * y of a straight Seyfert/LINER line, y = m x + q (Kewley et al. 2006; Schawinski et al. 2007).
+ * @param line  the line
+ * @param x     log ratio, dex
+ * @returns y in dex
+ * @example straightLineY(S07_NII, 0) // 0.45
+ */
+export function straightLineY(line: StraightLine, x: number): number {
+  return line.m * x + line.q
+}
+
+/**
+ * Whether a point is on the star-forming side of a hyperbolic curve: strictly left of the asymptote
+ * and strictly below the curve (REFERENCE.md §2.3; at/right of the asymptote is the AGN side).
+ *
+ * @param curve  the curve
+ * @param x      dex
+ * @param y      dex
+ * @returns true on the star-forming side
+ * @example isBelowHyperbola(KA03, 0.1, -5) // false (right of the asymptote)
+ */
+export function isBelowHyperbola(curve: HyperbolaCurve, x: number, y: number): boolean {
+  return x < curve.x0 && y < curve.a / (x - curve.x0) + curve.c
+}
+
+/**
+ * Signed perpendicular distance from (x, y) to a straight line, positive above (the Seyfert side):
+ * (y − m x − q)/√(1 + m²). Source: REFERENCE.md §2.6 (project convention).
+ *
+ * @param line  the line
+ * @param x     dex
+ * @param y     dex
+ * @returns distance in dex
+ * @example signedDistanceToLine(S07_NII, 0.6, 0) // ≈ -0.7448 (REFERENCE.md §2.6 [C])
+ */
+export function signedDistanceToLine(line: StraightLine, x: number, y: number): number {
+  return (y - line.m * x - line.q) / Math.sqrt(1 + line.m * line.m)
+}
+
+// p(t) = t⁴ + u t³ − a v t − a² and p′(t) for the closest point on a hyperbola (see below).
+function quarticP(t: number, u: number, av: number, a2: number): number {
+  return ((t + u) * t * t - av) * t - a2
+}
+function quarticDp(t: number, u: number, av: number): number {
+  return (4 * t + 3 * u) * t * t - av
+}
+function quarticDdp(t: number, u: number): number {
+  return 6 * t * (2 * t + u)
+}
+
+// Root of g on [lo, hi] (g(lo)·g(hi) ≤ 0) by bracketed Newton steps; `which` selects p or p′.
+function polyRoot(which: 0 | 1, lo: number, hi: number, u: number, av: number, a2: number): number {
+  let glo = which === 0 ? quarticP(lo, u, av, a2) : quarticDp(lo, u, av)
+  let a = lo
+  let b = hi
+  if (glo > 0) {
+    a = hi
+    b = lo
+  }
+  let t = 0.5 * (lo + hi)
+  for (let i = 0; i < 100; i++) {
+    const g = which === 0 ? quarticP(t, u, av, a2) : quarticDp(t, u, av)
+    if (g === 0) return t
+    if (g < 0) a = t
+    else b = t
+    const d = which === 0 ? quarticDp(t, u, av) : quarticDdp(t, u)
+    let next = t - g / d
+    if (!((next - a) * (next - b) < 0)) next = 0.5 * (a + b)
+    if (Math.abs(next - t) <= 1e-15 * (1 + Math.abs(t))) return next
+    t = next
+  }
+  glo = 0
+  return t
+}
+
+/**
+ * Signed perpendicular (Euclidean) distance from (x, y) to the left branch of a hyperbolic
+ * demarcation curve, positive on the AGN side (above the curve, or at/right of the asymptote),
+ * negative on the star-forming side, together with the unit normal at the closest point (for error
+ * propagation: σ_d² = (n_x σ_x)² + (n_y σ_y)²).
+ *
+ * Method: with the curve point (x0 − t, c − a/t), t > 0, the squared distance is stationary where
+ * p(t) = t⁴ + u t³ − a v t − a² = 0 (u = x − x0, v = y − c). Every positive root is bracketed using the
+ * sign of p″ (p has at most two turning points on t > 0) and refined by bracketed Newton steps; the
+ * root with the smallest distance wins, so the global minimum is found even where several local
+ * minima exist. Source: REFERENCE.md §2.6 (project convention); derivation, common practice.
+ *
+ * @param curve  hyperbola (a > 0)
+ * @param x      dex
+ * @param y      dex
+ * @param out    optional [distance, n_x, n_y] receiver (avoids an allocation in the kernel)
+ * @returns the signed distance in dex
+ * @example signedDistanceToHyperbola(KE01_NII, -0.3, 0.49885) // ≈ +0.0070 (REFERENCE.md §2.6 [C])
+ */
+export function signedDistanceToHyperbola(curve: HyperbolaCurve, x: number, y: number, out?: Float64Array | number[]): number {
+  const a = curve.a
+  const u = x - curve.x0
+  const v = y - curve.c
+  const av = a * v
+  const a2 = a * a
+  const bound = 1 + Math.max(Math.abs(u), Math.abs(av), a2)
+  // turning points of p on (0, bound)
+  let c1 = -1
+  let c2 = -1
+  if (u < 0) {
+    const tm = Math.min(-u / 2, bound)
+    const dp0 = -av
+    const dpm = quarticDp(tm, u, av)
+    if (dp0 > 0 && dpm < 0) c1 = polyRoot(1, 0, tm, u, av, a2)
+    if (dpm < 0) c2 = polyRoot(1, tm, bound, u, av, a2)
+  }
+  let bestD2 = Infinity
+  let bestT = 1
+  const consider = (lo: number, hi: number): void => {
+    if (hi <= lo) return
+    const plo = quarticP(lo, u, av, a2)
+    const phi = quarticP(hi, u, av, a2)
+    if (plo * phi > 0) return
+    const t = polyRoot(0, lo, hi, u, av, a2)
+    if (!(t > 0)) return
+    const dx = u + t
+    const dy = v + a / t
+    const d2 = dx * dx + dy * dy
+    if (d2 < bestD2) {
+      bestD2 = d2
+      bestT = t
+    }
+  }
+  const edges = [0]
+  if (c1 > 0) edges.push(c1)
+  if (c2 > 0) edges.push(c2)
+  edges.push(bound)
+  for (let i = 0; i + 1 < edges.length; i++) consider(edges[i], edges[i + 1])
+  const sign = isBelowHyperbola(curve, x, y) ? -1 : 1
+  const distance = sign * Math.sqrt(bestD2)
+  if (out) {
+    // normal of y = c − a/t at x = x0 − t: slope dy/dx = −a/t², normal ∝ (a/t², 1), pointing to the AGN side
+    const s = a / (bestT * bestT)
+    const norm = Math.sqrt(1 + s * s)
+    out[0] = distance
+    out[1] = s / norm
+    out[2] = 1 / norm
+  }
+  return distance
+}

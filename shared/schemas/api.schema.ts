@@ -1,0 +1,71 @@
+import { z } from 'zod'
+
+export const RoleSchema = z.enum(['owner', 'analyst', 'viewer'])
+const uuid = z.uuid()
+
+export const SignUpSchema = z.object({
+  email: z.email().max(200),
+  password: z.string().min(10, 'at least 10 characters').max(200),
+  name: z.string().trim().min(1).max(120),
+}).strict().meta({ id: 'SignUp' })
+export const SignInSchema = z.object({ email: z.string().max(200), password: z.string().max(200) }).strict().meta({ id: 'SignIn' })
+export const ResetRequestSchema = z.object({ email: z.string().max(200) }).strict()
+export const ResetConfirmSchema = z.object({ token: z.string().min(10).max(200), password: z.string().min(10, 'at least 10 characters').max(200) }).strict()
+export const AcceptInvitationSchema = z.object({ name: z.string().trim().min(1).max(120).optional(), password: z.string().min(10).max(200).optional() }).strict()
+export const TokenPathSchema = z.object({ token: z.string().min(10).max(200) })
+
+export const ApiKeyCreateSchema = z.object({
+  name: z.string().trim().min(1).max(120),
+  projectId: uuid.optional().meta({ description: 'limit the key to one project (default: all of your projects)' }),
+  access: z.enum(['read', 'write']),
+  expiresAt: z.iso.datetime({ offset: true }).optional(),
+}).strict().meta({ id: 'ApiKeyCreate' })
+export const IdPathSchema = z.object({ id: uuid })
+
+export const ProjectCreateSchema = z.object({ name: z.string().trim().min(1).max(200), description: z.string().max(5000).optional() }).strict().meta({ id: 'ProjectCreate' })
+export const ProjectUpdateSchema = z.object({ name: z.string().trim().min(1).max(200).optional(), description: z.string().max(5000).optional() }).strict()
+export const ProjectPathSchema = z.object({ projectId: uuid })
+export const MemberPathSchema = z.object({ projectId: uuid, userId: uuid })
+export const RoleChangeSchema = z.object({ role: RoleSchema }).strict()
+export const InvitationCreateSchema = z.object({ email: z.email().max(200), role: RoleSchema }).strict()
+export const InvitationPathSchema = z.object({ projectId: uuid, id: uuid })
+export const GalaxyPathSchema = z.object({ projectId: uuid, galaxyId: z.string().min(1).max(120) })
+export const GalaxyRevisionPathSchema = GalaxyPathSchema.extend({ revision: z.coerce.number().int().positive() })
+export const JobPathSchema = z.object({ projectId: uuid, jobId: uuid })
+export const IntakePathSchema = z.object({ projectId: uuid, intakeId: uuid })
+export const UserPathSchema = z.object({ userId: uuid })
+export const UserAdminUpdateSchema = z.object({ disabled: z.boolean() }).strict()
+export const OutboxPathSchema = z.object({ id: z.coerce.number().int().positive() })
+
+// ---- responses (documented shapes; the server builds them) --------------------------------------
+export const UserSchema = z.object({ id: uuid, email: z.string(), name: z.string(), isSiteAdmin: z.boolean(), createdAt: z.string() }).meta({ id: 'User' })
+export const MeSchema = UserSchema.extend({
+  via: z.enum(['session', 'key']),
+  projects: z.array(z.object({ id: uuid, name: z.string(), role: RoleSchema })),
+}).meta({ id: 'Me' })
+export const ApiKeySchema = z.object({
+  id: uuid, name: z.string(), prefix: z.string(), projectId: uuid.nullable(), access: z.enum(['read', 'write']),
+  expiresAt: z.string().nullable(), createdAt: z.string(), lastUsedAt: z.string().nullable(), revokedAt: z.string().nullable(),
+}).meta({ id: 'ApiKey' })
+export const ApiKeyCreatedSchema = ApiKeySchema.extend({ key: z.string().meta({ description: 'the secret; shown only in this answer' }) }).meta({ id: 'ApiKeyCreated' })
+export const ProjectSchema = z.object({
+  id: uuid, name: z.string(), description: z.string(), role: RoleSchema.nullable(), createdAt: z.string(),
+  galaxyCount: z.number().int(), currentRevision: z.number().int(), resultsRevision: z.number().int(),
+}).meta({ id: 'Project' })
+export const IntakeSchema = z.object({
+  id: uuid, kind: z.enum(['api', 'csv']), status: z.enum(['staged', 'committed', 'rejected', 'failed']), fileName: z.string().nullable(),
+  createdAt: z.string(), finishedAt: z.string().nullable(), by: z.object({ id: uuid, name: z.string().nullable() }).nullable(),
+  rowsTotal: z.number().int(), rowsAccepted: z.number().int(), rowsRejected: z.number().int(), revision: z.number().int().nullable(),
+}).meta({ id: 'Intake' })
+export const BatchResponseSchema = z.object({
+  intake: IntakeSchema, inserted: z.number().int(), updated: z.number().int(), revision: z.number().int(), methodVersion: z.string(),
+}).meta({ id: 'BatchResponse' })
+export const JobSchema = z.object({
+  id: uuid, kind: z.string(), status: z.enum(['queued', 'running', 'done', 'failed']), revision: z.number().int().nullable(),
+  total: z.number().int(), done: z.number().int(), error: z.string().nullable(), createdAt: z.string(), finishedAt: z.string().nullable(),
+}).meta({ id: 'Job' })
+export const ProblemSchema = z.object({
+  type: z.string(), title: z.string(), status: z.number().int(), detail: z.string().optional(),
+  errors: z.array(z.object({ path: z.string().meta({ description: 'JSON Pointer (RFC 6901) into the request' }), message: z.string() })),
+}).meta({ id: 'Problem' })
+export const ListOf = <T extends z.ZodType>(item: T) => z.object({ items: z.array(item) })

@@ -1,0 +1,79 @@
+import { z } from 'zod'
+
+/** The contract's line identifiers (API-CONTRACT.md "Line identifiers"). */
+export const LINE_ID_LIST = [
+  'halpha', 'hbeta', 'hgamma', 'hdelta', 'oiii_5007', 'oiii_4959', 'oiii_4363', 'nii_6584', 'nii_6548',
+  'nii_5755', 'sii_6717', 'sii_6731', 'oi_6300', 'oii_3726', 'oii_3729', 'halpha_broad',
+] as const
+export const LineIdSchema = z.enum(LINE_ID_LIST)
+
+/**
+ * One line: `{flux, error}` or `{upperLimit}`. Checked field by field (not a bare union) so that an
+ * error names the leaf, e.g. /galaxies/3/lines/hbeta/error.
+ */
+export const LineValueSchema = z.object({
+  flux: z.number().optional().meta({ description: 'measured flux in the galaxy\'s fluxUnit' }),
+  error: z.number().positive().optional().meta({ description: '1σ error of the flux, > 0' }),
+  upperLimit: z.number().positive().optional().meta({ description: 'a non-detection: the flux is below this value' }),
+}).strict().superRefine((v, ctx) => {
+  if (v.upperLimit !== undefined) {
+    if (v.flux !== undefined) ctx.addIssue({ code: 'custom', path: ['flux'], message: 'give either upperLimit or flux and error, not both' })
+    if (v.error !== undefined) ctx.addIssue({ code: 'custom', path: ['error'], message: 'give either upperLimit or flux and error, not both' })
+    return
+  }
+  if (v.flux === undefined) ctx.addIssue({ code: 'custom', path: ['flux'], message: 'flux is required unless upperLimit is given' })
+  if (v.error === undefined) ctx.addIssue({ code: 'custom', path: ['error'], message: 'error is required with flux' })
+}).meta({ id: 'LineValue', description: '`{flux, error}` (error > 0) or `{upperLimit}` (> 0)' })
+
+const perLine = <T extends z.ZodType>(value: T) =>
+  z.object(Object.fromEntries(LINE_ID_LIST.map((id) => [id, value.optional()])) as Record<(typeof LINE_ID_LIST)[number], z.ZodOptional<T>>).strict()
+
+export const GalaxyInputSchema = z.object({
+  id: z.string().min(1).max(120).regex(/^[^\u0000-\u001f]+$/, 'no control characters').meta({ description: 'the pipeline\'s own galaxy ID' }),
+  redshift: z.number().min(0).max(20).optional(),
+  fluxUnit: z.number().positive().optional().meta({ description: 'erg s⁻¹ cm⁻² per flux unit (default 1); matters only for luminosities' }),
+  ra: z.number().min(0).lt(360).optional().meta({ description: 'right ascension, degrees (ICRS)' }),
+  dec: z.number().min(-90).max(90).optional().meta({ description: 'declination, degrees (ICRS)' }),
+  lines: perLine(LineValueSchema),
+  ew: perLine(z.number()).optional().meta({ description: 'equivalent widths in Å, emission positive' }),
+  fwhm: perLine(z.number().positive()).optional().meta({ description: 'line FWHM in km/s (halpha_broad for black-hole masses)' }),
+}).strict().meta({ id: 'GalaxyInput' })
+export type GalaxyInputDto = z.infer<typeof GalaxyInputSchema>
+
+export const EXTINCTION_LAWS = ['ccm89', 'odonnell94', 'calzetti00', 'fitzpatrick99'] as const
+
+/** Analysis settings (assumptions). Every field optional; defaults as in API-CONTRACT.md. */
+export const SettingsInputSchema = z.object({
+  extinctionLaw: z.enum(EXTINCTION_LAWS).default('ccm89'),
+  rv: z.number().min(1).max(8).optional().meta({ description: 'R_V; default 3.1, or 4.05 (R′_V) for calzetti00' }),
+  intrinsicBalmer: z.number().min(2).max(5).default(2.86).meta({ description: 'intrinsic Hα/Hβ: 2.86 Case B (10⁴ K, 10² cm⁻³); 3.1 is the customary AGN narrow-line value' }),
+  electronTemperature: z.number().min(5000).max(30000).default(10000).meta({ description: 'K, used for the density diagnostics' }),
+  minSnr: z.number().min(0).max(100).default(3),
+  allowNegative: z.boolean().default(false),
+  sfrCalibration: z.enum(['kennicutt98', 'kennicuttEvans12']).default('kennicutt98'),
+  cosmology: z.object({
+    h0: z.number().min(20).max(150).default(70),
+    omegaM: z.number().min(0).max(1).default(0.3),
+  }).strict().prefault({}),
+  monteCarlo: z.object({
+    draws: z.number().int().min(0).max(5000).default(0),
+    seed: z.number().int().min(0).max(2 ** 32 - 1).default(1),
+  }).strict().prefault({}),
+}).strict()
+
+export const SettingsSchema = SettingsInputSchema.transform((s) => ({
+  ...s,
+  rv: s.rv ?? (s.extinctionLaw === 'calzetti00' ? 4.05 : 3.1),
+})).meta({ id: 'Settings' })
+export type Settings = z.output<typeof SettingsSchema>
+
+export const MAX_GALAXIES_PER_REQUEST = 10_000
+
+export const DiagnosticsRequestSchema = z.object({
+  settings: SettingsSchema.prefault({}),
+  galaxies: z.array(GalaxyInputSchema).min(1),
+}).strict().meta({ id: 'DiagnosticsRequest' })
+
+export const BatchRequestSchema = z.object({
+  galaxies: z.array(GalaxyInputSchema).min(1),
+}).strict().meta({ id: 'GalaxyBatch' })

@@ -1,0 +1,99 @@
+/**
+ * First-order (linear) propagation of independent Gaussian flux errors (REFERENCE.md §9).
+ * Source: first-order Taylor expansion of the output in the inputs, e.g. Bevington & Robinson 2003,
+ * Data Reduction and Error Analysis, 3rd ed., eq. 3.14 (equation number from memory — verify).
+ */
+
+export const LN10 = Math.LN10
+
+/**
+ * Relative error of a ratio or product of two independent quantities: √((σ₁/F₁)² + (σ₂/F₂)²).
+ *
+ * @param relative1  σ₁/F₁, dimensionless
+ * @param relative2  σ₂/F₂, dimensionless
+ * @returns σ_R/R, dimensionless
+ * @example relativeErrorOfRatio(0.03, 0.04) // 0.05
+ */
+export function relativeErrorOfRatio(relative1: number, relative2: number): number {
+  return Math.sqrt(relative1 * relative1 + relative2 * relative2)
+}
+
+/**
+ * Error in dex of log10 of a quantity with relative error σ/F: σ_log = (σ/F)/ln 10.
+ *
+ * @param relativeError  σ/F, dimensionless
+ * @returns σ of log10, dex
+ * @example log10Error(0.1) // ≈ 0.04343
+ */
+export function log10Error(relativeError: number): number {
+  return relativeError / LN10
+}
+
+/**
+ * Error of a sum of two independent fluxes: √(σ₁² + σ₂²) (e.g. [S II] 6717 + 6731).
+ *
+ * @param error1  σ₁ (flux unit)
+ * @param error2  σ₂ (flux unit)
+ * @returns σ of the sum (flux unit)
+ * @example errorOfSum(3, 4) // 5
+ */
+export function errorOfSum(error1: number, error2: number): number {
+  return Math.sqrt(error1 * error1 + error2 * error2)
+}
+
+/** Role of a term in a dust-corrected combination: an ordinary line, or one of the two Balmer lines that set E(B−V). */
+export const ROLE_OTHER = 0
+export const ROLE_DUST_NUMERATOR = 1
+export const ROLE_DUST_DENOMINATOR = 2
+
+/**
+ * Variance of Q = Σᵢ aᵢ ln F_corr,i, a linear combination of natural logs of dereddened fluxes, with
+ * independent Gaussian errors of the observed fluxes, including the covariance through E(B−V).
+ *
+ * With E(B−V) = (C/ln 10)·(ln F_D1 − ln F_D2) + const (C = 2.5/(k_D2 − k_D1); D1, D2 = Hα, Hβ, or
+ * Hβ, Hγ for the fallback) and ln F_corr,i = ln F_i + 0.4 ln10 · k_i · E(B−V), the partial derivative
+ * of Q is aᵢ with respect to ln F_i and ±η = ±Σᵢ aᵢ · 0.4 · kᵢ · C with respect to ln F_D1 / ln F_D2
+ * (merged with aᵢ when term i is itself D1 or D2). Var(Q) = Σ (∂Q/∂ln F)² (σ/F)².
+ * Source: REFERENCE.md §9 ("linearise the whole chain"; the Hα/Hβ covariance formula there is the
+ * one-term case); derivation, common practice.
+ *
+ * @param n            number of terms used (≤ the array lengths)
+ * @param coefficient  aᵢ, dimensionless
+ * @param relative     σᵢ/Fᵢ of each term's own measurement (for a summed pseudo-line, σ_sum/F_sum)
+ * @param role         ROLE_OTHER, ROLE_DUST_NUMERATOR or ROLE_DUST_DENOMINATOR for each term
+ * @param k            k(λ) of each term (mag/mag; a summed pseudo-line uses its flux-weighted k)
+ * @param dustC        C = 2.5/(k_D2 − k_D1), or 0 when no extinction correction depends on the fluxes
+ * @param relativeD1   σ/F of the dust numerator line (ignored when dustC = 0)
+ * @param relativeD2   σ/F of the dust denominator line (ignored when dustC = 0)
+ * @returns Var(Q) in (natural-log units)²
+ * @example linearisedLogVariance(1, [1], [0.05], [ROLE_OTHER], [3.47], 0, 0, 0) // 0.0025
+ */
+export function linearisedLogVariance(
+  n: number,
+  coefficient: ArrayLike<number>,
+  relative: ArrayLike<number>,
+  role: ArrayLike<number>,
+  k: ArrayLike<number>,
+  dustC: number,
+  relativeD1: number,
+  relativeD2: number,
+): number {
+  let eta = 0
+  let cD1 = 0
+  let cD2 = 0
+  let variance = 0
+  for (let i = 0; i < n; i++) {
+    const a = coefficient[i]
+    eta += a * 0.4 * k[i] * dustC
+    const r = role[i]
+    if (dustC !== 0 && r === ROLE_DUST_NUMERATOR) cD1 += a
+    else if (dustC !== 0 && r === ROLE_DUST_DENOMINATOR) cD2 += a
+    else variance += a * a * relative[i] * relative[i]
+  }
+  if (dustC !== 0) {
+    cD1 += eta
+    cD2 -= eta
+    variance += cD1 * cD1 * relativeD1 * relativeD1 + cD2 * cD2 * relativeD2 * relativeD2
+  }
+  return variance
+}

@@ -1,0 +1,7 @@
+import { http } from './http'
+import type { ItemList, OutboxItem, OutboxMessage } from './types'
+
+export const adminApi = {
+  outbox: () => http.get<ItemList<OutboxItem>>('/admin/outbox'),
+  message: (id: string) => http.get<OutboxMessage>(`/admin/outbox/${encodeURIComponent(id)}`),
+}

@@ -1,0 +1,41 @@
+import { ApiProblem, apiUrl, csrfHeaders, http } from './http'
+import { projectPath } from './projects'
+import type { ColumnMapping, CsvUpload, Intake, ItemList, NonDetection, ValidationReport } from './types'
+
+export interface CommitOptions { mapping: ColumnMapping; fluxUnit: number; nonDetection: NonDetection; saveMappingAs?: string }
+
+/**
+ * Upload a CSV with XMLHttpRequest rather than fetch: fetch gives no upload progress, and a large
+ * survey table can take a while on a slow link.
+ */
+function uploadCsv(projectId: string, file: File, onProgress: (fraction: number) => void): Promise<CsvUpload> {
+  return new Promise((resolve, reject) => {
+    const xhr = new XMLHttpRequest()
+    xhr.open('POST', apiUrl(`${projectPath(projectId)}/intakes/csv`))
+    xhr.withCredentials = true
+    xhr.setRequestHeader('Accept', 'application/json')
+    for (const [k, v] of Object.entries(csrfHeaders('POST'))) xhr.setRequestHeader(k, v)
+    xhr.upload.onprogress = (e) => { if (e.lengthComputable) onProgress(e.loaded / e.total) }
+    xhr.onerror = () => reject(new ApiProblem({ status: 0, title: 'Network error' }))
+    xhr.onload = () => {
+      let body: unknown
+      try { body = xhr.responseText ? JSON.parse(xhr.responseText) : undefined } catch { body = undefined }
+      if (xhr.status >= 200 && xhr.status < 300) { onProgress(1); resolve(body as CsvUpload); return }
+      const doc = body && typeof body === 'object' ? body : {}
+      reject(new ApiProblem({ title: xhr.statusText, ...doc, status: xhr.status }))
+    }
+    const form = new FormData()
+    form.append('file', file)
+    xhr.send(form)
+  })
+}
+
+export const intakesApi = {
+  list: (projectId: string) => http.get<ItemList<Intake>>(`${projectPath(projectId)}/intakes`),
+  get: (projectId: string, intakeId: string) => http.get<Intake>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}`),
+  uploadCsv,
+  validate: (projectId: string, intakeId: string, options: CommitOptions) =>
+    http.post<ValidationReport>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/validate`, options),
+  commit: (projectId: string, intakeId: string, options: CommitOptions) =>
+    http.post<{ intake: Intake }>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/commit`, options),
+}

@@ -1,0 +1,243 @@
+/**
+ * What the dashboard reads and sends, as described in server/API-DESIGN.md and the team's API
+ * contract. Kept here rather than imported from the server so the client states what it relies on.
+ */
+
+export const LINE_IDS = [
+  'halpha', 'hbeta', 'hgamma', 'hdelta', 'oiii_5007', 'oiii_4959', 'oiii_4363', 'nii_6584', 'nii_6548',
+  'nii_5755', 'sii_6717', 'sii_6731', 'oi_6300', 'oii_3726', 'oii_3729', 'halpha_broad',
+] as const
+export type LineId = (typeof LINE_IDS)[number]
+
+export type Role = 'owner' | 'analyst' | 'viewer'
+export type DiagramKey = 'nii' | 'sii' | 'oi' | 'whan'
+export type ClassDiagram = DiagramKey | 'overall'
+
+export type LineValue = { flux: number; error: number } | { upperLimit: number }
+
+export interface ProjectRoleRef { id: string; name: string; role: Role }
+
+export interface Me {
+  id: string
+  email: string
+  name: string
+  isSiteAdmin: boolean
+  projects: ProjectRoleRef[]
+}
+
+export interface UserRef { id: string; name: string; email?: string }
+
+export interface Project {
+  id: string
+  name: string
+  description: string | null
+  role: Role
+  createdAt: string
+  galaxyCount: number
+  currentRevision: number
+}
+
+export interface Settings {
+  extinctionLaw: 'ccm89' | 'odonnell94' | 'calzetti00' | 'fitzpatrick99'
+  rv: number
+  intrinsicBalmer: number
+  electronTemperature: number
+  minSnr: number
+  allowNegative?: boolean
+  sfrCalibration?: 'kennicutt98' | 'kennicuttEvans12'
+  cosmology: { h0: number; omegaM: number }
+  monteCarlo: { draws: number; seed: number }
+  [extra: string]: unknown
+}
+
+export interface Revision {
+  revision: number
+  settings: Settings
+  note: string | null
+  createdAt: string
+  createdBy: UserRef | null
+}
+
+export interface Job {
+  id: string
+  kind: 'recompute' | 'intake'
+  status: 'queued' | 'running' | 'done' | 'failed'
+  total: number
+  done: number
+  error: string | null
+  createdAt: string
+  finishedAt: string | null
+}
+
+export interface Intake {
+  id: string
+  kind: 'api' | 'csv'
+  status: 'staged' | 'committed' | 'rejected' | 'failed'
+  fileName: string | null
+  createdAt: string
+  finishedAt: string | null
+  by: UserRef | null
+  rowsTotal: number
+  rowsAccepted: number
+  rowsRejected: number
+  report?: unknown
+}
+
+export interface Histogram { edges: number[]; counts: number[] }
+
+export interface ProjectOverview {
+  project: Project
+  revision: { revision: number; createdAt: string }
+  classCounts: Record<ClassDiagram, Record<string, number>>
+  histograms: { ebv: Histogram; neSii: Histogram }
+  latestIntakes: Intake[]
+}
+
+export interface GalaxySummary {
+  id: string
+  redshift: number | null
+  classes: Record<ClassDiagram, string>
+  ebv: number | null
+  ebvError: number | null
+  av: number | null
+  neSii: number | null
+  teOiii: number | null
+  n2Pp04: number | null
+  o3n2Pp04: number | null
+  sfrHalpha: number | null
+  ratios: { niiHa: number | null; oiiiHb: number | null; siiHa: number | null; oiHa: number | null }
+  flagCount: number
+}
+
+export interface GalaxyPage { items: GalaxySummary[]; nextCursor: string | null; total: number }
+
+/** Filters shared by the galaxies list, the diagram columns and the exports. */
+export interface GalaxyFilters {
+  class?: string
+  classNii?: string
+  classSii?: string
+  classOi?: string
+  classWhan?: string
+  q?: string
+  zMin?: number | null
+  zMax?: number | null
+  minSnr?: number | null
+  range?: string[]
+}
+
+export interface GalaxyQuery extends GalaxyFilters {
+  limit?: number
+  cursor?: string | null
+  sort?: string
+}
+
+/** Results for one galaxy under one revision; the shape of one POST /diagnostics result. */
+export interface GalaxyResult {
+  id?: string
+  extinction?: { balmerDecrement: number | null; ebv: number | null; ebvError: number | null; av: number | null; flags: string[] } | null
+  dereddened?: Partial<Record<LineId, { flux: number | null; error: number | null } | { upperLimit: number }>> | null
+  ratios?: Record<string, number | null> | null
+  classes?: Partial<Record<ClassDiagram, string>> & { classProbabilities?: unknown }
+  density?: Record<string, { ne: number | null; neError: number | null; flag: string | null } | null> | null
+  temperature?: Record<string, unknown> | null
+  metallicity?: Record<string, unknown> | null
+  sfr?: Record<string, unknown> | null
+  blackHoleMass?: unknown
+  flags?: string[]
+  [extra: string]: unknown
+}
+
+export interface GalaxyDetail {
+  id: string
+  redshift: number | null
+  fluxUnit: number | null
+  ra: number | null
+  dec: number | null
+  lines: Partial<Record<LineId, LineValue>>
+  ew: Partial<Record<LineId, number>> | null
+  fwhm: Partial<Record<LineId, number>> | null
+  revision: number
+  methodVersion: string
+  computedAt: string
+  results: GalaxyResult
+  history: { intakeId: string; kind: 'api' | 'csv'; fileName: string | null; createdAt: string; by: UserRef | null }[]
+  revisions: { revision: number; methodVersion: string; computedAt: string }[]
+}
+
+export interface GalaxyRevisionResults {
+  revision: number
+  methodVersion: string
+  computedAt: string
+  results: GalaxyResult
+}
+
+type PerDiagram<T> = { nii: T; sii: T; oi: T }
+type Nullable = (number | null)[]
+
+/** Columnar diagram data: one entry per galaxy in every array (see API-DESIGN.md). */
+export interface DiagramColumns {
+  revision: number
+  count: number
+  ids: string[]
+  redshift: Nullable
+  class: Record<ClassDiagram, number[]>
+  classNames: Record<ClassDiagram, string[]>
+  x: PerDiagram<Nullable>
+  y: Nullable
+  xErr: PerDiagram<Nullable>
+  yErr: Nullable
+  xLimit: PerDiagram<number[]>
+  yLimit: number[]
+  ewHalpha: Nullable
+}
+
+export interface ColumnMapping {
+  id: string
+  redshift?: string
+  ra?: string
+  dec?: string
+  lines: Partial<Record<LineId, { flux: string; error?: string; limit?: string }>>
+  ew: Partial<Record<LineId, string>>
+  fwhm: Partial<Record<LineId, string>>
+}
+
+export type NonDetection = 'limit-column' | 'negative-error' | 'snr-only'
+
+export interface CsvUpload {
+  intake: Intake
+  headers: string[]
+  previewRows: string[][]
+  rowCount: number
+  suggestedMapping: ColumnMapping
+  savedMappings: { name: string; mapping: ColumnMapping }[]
+}
+
+export interface ValidationProblem { row: number; column: string | null; field: string | null; message: string }
+
+export interface ValidationReport { rowsTotal: number; rowsValid: number; problems: ValidationProblem[] }
+
+export interface Member { userId: string; email: string; name: string; role: Role; joinedAt: string }
+
+export interface Invitation { id: string; email: string; role: Role; expiresAt: string; acceptedAt: string | null; createdAt: string }
+
+export interface InvitationInfo { projectName: string; email: string; role: Role; expiresAt: string; accountExists: boolean }
+
+export interface ApiKey {
+  id: string
+  name: string
+  prefix: string
+  projectId: string | null
+  access: 'read' | 'write'
+  expiresAt: string | null
+  createdAt: string
+  lastUsedAt: string | null
+  revokedAt: string | null
+}
+
+export interface CreatedApiKey extends ApiKey { key: string }
+
+export interface OutboxItem { id: string; to: string; subject: string; receivedAt: string }
+
+export interface OutboxMessage extends OutboxItem { from: string; text: string | null; html: string | null }
+
+export interface ItemList<T> { items: T[] }

@@ -1,0 +1,52 @@
+import type { DiagramKey, GalaxyResult } from '../../api/types'
+import { isNum } from '../../utils/format'
+
+/**
+ * Results nest their numbers in a few shapes (a bare number, `{ value, error }`, `{ ne, neError }`,
+ * Monte Carlo `{ p16, p50, p84 }` siblings). This reads any of them into one form for display.
+ */
+export interface ReadValue { value: number | null; error: number | null; p16?: number | null; p84?: number | null }
+
+export function readValue(v: unknown, key?: string): ReadValue {
+  if (isNum(v)) return { value: v, error: null }
+  if (!v || typeof v !== 'object') return { value: null, error: null }
+  const o = v as Record<string, unknown>
+  const pick = (...names: string[]) => { for (const n of names) if (isNum(o[n])) return o[n] as number; return null }
+  const value = pick('value', ...(key ? [key] : []), 'ne', 'te', 'p50')
+  const error = pick('error', ...(key ? [`${key}Error`] : []), 'neError', 'teError')
+  return { value, error, p16: pick('p16'), p84: pick('p84') }
+}
+
+/** The flags attached to a nested result object, if it has any. */
+export function nestedFlags(v: unknown): string[] {
+  if (!v || typeof v !== 'object') return []
+  const o = v as Record<string, unknown>
+  const out: string[] = []
+  if (Array.isArray(o.flags)) out.push(...o.flags.filter((f): f is string => typeof f === 'string'))
+  if (typeof o.flag === 'string') out.push(o.flag)
+  return out
+}
+
+export interface DiagramPoint { x: number | null; y: number | null; xLimit: 0 | 1 | -1; yLimit: 0 | 1 | -1 }
+
+function limitOf(flags: readonly string[], key: string): 0 | 1 | -1 {
+  if (flags.includes(`ratio-limit:${key}:upper`)) return 1
+  if (flags.includes(`ratio-limit:${key}:lower`)) return -1
+  return 0
+}
+
+const X_RATIO: Record<Exclude<DiagramKey, 'whan'>, string> = { nii: 'niiHa', sii: 'siiHa', oi: 'oiHa' }
+
+/** Where one galaxy sits on each diagram; WHAN y is EW(Hα) in Å. */
+export function galaxyPoints(result: GalaxyResult | null | undefined, ewHalpha: number | null | undefined): Record<DiagramKey, DiagramPoint> {
+  const r = result?.ratios ?? {}
+  const flags = result?.flags ?? []
+  const y = isNum(r.oiiiHb) ? r.oiiiHb : null
+  const yLimit = limitOf(flags, 'oiiiHb')
+  const out = {} as Record<DiagramKey, DiagramPoint>
+  for (const [d, key] of Object.entries(X_RATIO) as [Exclude<DiagramKey, 'whan'>, string][]) {
+    out[d] = { x: isNum(r[key]) ? (r[key] as number) : null, y, xLimit: limitOf(flags, key), yLimit }
+  }
+  out.whan = { x: out.nii.x, y: isNum(ewHalpha) && ewHalpha > 0 ? ewHalpha : null, xLimit: out.nii.xLimit, yLimit: 0 }
+  return out
+}

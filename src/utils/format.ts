@@ -1,0 +1,43 @@
+/** Number formatting for tables and panels; every number shown goes through here. */
+
+export function isNum(v: unknown): v is number {
+  return typeof v === 'number' && Number.isFinite(v)
+}
+
+/** Fixed decimals for moderate values, scientific for very large or small ones; '—' for missing. */
+export function fmt(v: unknown, digits = 3): string {
+  if (!isNum(v)) return '—'
+  const a = Math.abs(v)
+  if (a !== 0 && (a >= 1e5 || a < 10 ** -digits)) return v.toExponential(Math.max(1, digits - 1))
+  return v.toFixed(digits)
+}
+
+/** value ± error with the error at the same number of decimals. */
+export function fmtErr(v: unknown, err: unknown, digits = 3): string {
+  if (!isNum(v)) return '—'
+  return isNum(err) ? `${fmt(v, digits)} ± ${fmt(err, digits)}` : fmt(v, digits)
+}
+
+/** Integers with thin grouping (2 431). */
+export function fmtInt(v: unknown): string {
+  if (!isNum(v)) return '—'
+  return Math.round(v).toLocaleString('en-GB').replace(/,/g, '\u2009')
+}
+
+export function fmtDate(iso: string | null | undefined): string {
+  if (!iso) return '—'
+  const d = new Date(iso)
+  if (Number.isNaN(d.getTime())) return iso
+  return d.toLocaleString('en-GB', { year: 'numeric', month: 'short', day: '2-digit', hour: '2-digit', minute: '2-digit' })
+}
+
+export function fmtRelative(iso: string | null | undefined, now = Date.now()): string {
+  if (!iso) return 'never'
+  const t = new Date(iso).getTime()
+  if (Number.isNaN(t)) return iso
+  const s = Math.round((now - t) / 1000)
+  if (s < 60) return 'just now'
+  if (s < 3600) return `${Math.round(s / 60)} min ago`
+  if (s < 86400) return `${Math.round(s / 3600)} h ago`
+  return `${Math.round(s / 86400)} d ago`
+}

@@ -1,0 +1,25 @@
+import { mkdtempSync, rmSync } from 'node:fs'
+import { join } from 'node:path'
+import { PROJECT_ROOT } from '../../server/config.ts'
+import { freePort, startEmbeddedPostgres } from '../../server/db/embedded-postgres.ts'
+import { startRuntime } from '../../server/runtime.ts'
+
+/** A benchmark's own PostgreSQL (durability defaults on, as in production) and server on loopback. */
+export async function benchServer(extraEnv: Record<string, string> = {}) {
+  const dir = mkdtempSync(join(PROJECT_ROOT, '.pg-bench-'))
+  const pg = await startEmbeddedPostgres({ dir, port: await freePort(), durable: true })
+  const rt = await startRuntime({
+    env: { ...process.env, DATABASE_URL: pg.url, PORT: String(await freePort()), JWT_SECRET: 'bench', LOG_LEVEL: 'silent', AUTH_RATE_LIMIT: '100000', API_RATE_LIMIT: '10000000', DIAGNOSTICS_ANON_RATE_LIMIT: '10000000', ...extraEnv },
+    log: () => {},
+  })
+  const res = await fetch(`${rt.url}/api/v1/auth/sign-up`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: 'bench@example.org', password: 'benchmark password', name: 'Bench' }) })
+  const cookies = res.headers.getSetCookie().map((c) => c.split(';')[0])
+  const csrf = decodeURIComponent(cookies.find((c) => c.startsWith('rg_csrf='))!.split('=')[1])
+  const session = { cookie: cookies.join('; '), 'x-csrf-token': csrf, 'content-type': 'application/json' }
+  const project = await (await fetch(`${rt.url}/api/v1/projects`, { method: 'POST', headers: session, body: JSON.stringify({ name: 'bench' }) })).json()
+  const key = (await (await fetch(`${rt.url}/api/v1/me/api-keys`, { method: 'POST', headers: session, body: JSON.stringify({ name: 'bench', access: 'write' }) })).json()).key as string
+  return {
+    rt, pg, projectId: project.id as string, key,
+    async close() { await rt.stop(); pg.stop(); rmSync(dir, { recursive: true, force: true }) },
+  }
+}

@@ -1,0 +1,28 @@
+import { chromium, type Browser, type Page } from 'playwright-core'
+import { existsSync, mkdirSync } from 'node:fs'
+import { join } from 'node:path'
+import { PROJECT_ROOT } from '../../server/config.ts'
+
+export const CHROMIUM_ARGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
+  '--disable-background-networking', '--disable-component-update', '--disable-sync', '--disable-dev-shm-usage']
+
+/** Debian's chromium (the real binary when present: it starts a little faster than the wrapper). */
+export function launchChromium(): Promise<Browser> {
+  const executablePath = existsSync('/usr/lib/chromium/chromium') ? '/usr/lib/chromium/chromium' : '/usr/bin/chromium'
+  return chromium.launch({ executablePath, args: CHROMIUM_ARGS, headless: true })
+}
+
+export const SCREENSHOTS = join(PROJECT_ROOT, 'tests', 'screenshots')
+export async function shot(page: Page, name: string) {
+  mkdirSync(SCREENSHOTS, { recursive: true })
+  await page.screenshot({ path: join(SCREENSHOTS, `${name}.png`), fullPage: true })
+}
+
+/** Collects page errors and failed requests; a test asserts the list is empty. */
+export function watch(page: Page, origin: string) {
+  const problems: string[] = []
+  page.on('pageerror', (e) => problems.push(`pageerror: ${e.message}`))
+  page.on('console', (m) => { if (m.type() === 'error') problems.push(`console: ${m.text()}`) })
+  page.on('request', (r) => { if (!r.url().startsWith(origin) && !r.url().startsWith('data:') && !r.url().startsWith('blob:')) problems.push(`external request: ${r.url()}`) })
+  return problems
+}

@@ -1,0 +1,38 @@
+// `npm test`: a throwaway PostgreSQL on loopback, migrations into a template database, every vitest
+// project (science, unit, api, e2e), then the plain "N passed, N failed" line and a clean stop.
+import { spawnSync } from 'node:child_process'
+import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs'
+import { join } from 'node:path'
+import { PROJECT_ROOT } from '../server/config.ts'
+import { freePort, startEmbeddedPostgres } from '../server/db/embedded-postgres.ts'
+import { connect, runMigrations } from '../server/db/client.ts'
+
+const dir = join(PROJECT_ROOT, `.pg-test-${process.pid}`)
+const port = await freePort()
+const pg = await startEmbeddedPostgres({ dir, port, durable: false, createdb: true, database: 'ratiograph_template', log: (m) => console.log(m) })
+let code = 1
+try {
+  const db = connect(pg.url, 2)
+  await runMigrations(db)
+  await db.$client.end()
+  const out = join(PROJECT_ROOT, 'tests', '.output')
+  mkdirSync(out, { recursive: true })
+  const report = join(out, 'vitest.json')
+  rmSync(report, { force: true })
+  const r = spawnSync(process.execPath, [join(PROJECT_ROOT, 'node_modules', 'vitest', 'vitest.mjs'), 'run',
+    '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, ...process.argv.slice(2)], {
+    cwd: PROJECT_ROOT, stdio: 'inherit',
+    env: { ...process.env, TEST_TEMPLATE_URL: pg.url, NODE_ENV: 'test', DATA_DIR: join(dir, 'app-data') },
+  })
+  let passed = 0, failed = 0, skipped = 0
+  if (existsSync(report)) {
+    const j = JSON.parse(readFileSync(report, 'utf8'))
+    passed = j.numPassedTests; failed = j.numFailedTests + (j.numRuntimeErrorTestSuites ?? 0); skipped = j.numPendingTests + (j.numTodoTests ?? 0)
+  } else failed = 1
+  code = r.status === 0 && failed === 0 ? 0 : 1
+  console.log(`\n${passed} passed, ${failed} failed, ${skipped} skipped`)
+} finally {
+  pg.stop()
+  rmSync(dir, { recursive: true, force: true })
+}
+process.exit(code)

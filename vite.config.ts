@@ -1,0 +1,42 @@
+import { defineConfig } from 'vitest/config'
+import vue from '@vitejs/plugin-vue'
+import vuetify from 'vite-plugin-vuetify'
+
+const apiPort = process.env.PORT ?? '8080'
+
+export default defineConfig({
+  plugins: [vue(), vuetify({ autoImport: true })],
+  resolve: { alias: { '@shared': new URL('./shared', import.meta.url).pathname } },
+  build: { chunkSizeWarningLimit: 6000, sourcemap: false },
+  server: {
+    host: '127.0.0.1',
+    proxy: { '/api': { target: `http://127.0.0.1:${apiPort}`, changeOrigin: false } },
+  },
+  test: {
+    projects: [
+      {
+        test: { name: 'science', environment: 'node', include: ['tests/unit/shared/**/*.test.ts'] },
+      },
+      {
+        plugins: [vue(), vuetify({ autoImport: true })],
+        test: {
+          name: 'unit', environment: 'happy-dom', include: ['tests/unit/src/**/*.test.ts'],
+          server: { deps: { inline: ['vuetify'] } },
+        },
+      },
+      {
+        test: {
+          name: 'api', environment: 'node', include: ['tests/api/**/*.test.ts'],
+          testTimeout: 60_000, hookTimeout: 120_000, fileParallelism: false,
+        },
+      },
+      {
+        test: {
+          name: 'e2e', environment: 'node', include: ['tests/e2e/**/*.test.ts'],
+          globalSetup: ['tests/e2e/global-setup.ts'],
+          testTimeout: 120_000, hookTimeout: 180_000, fileParallelism: false,
+        },
+      },
+    ],
+  },
+})
