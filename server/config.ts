@@ -20,6 +20,8 @@ export interface Config {
   secureCookies: boolean
   /** Requests per minute per address on sign-in / sign-up / reset. */
   authRateLimit: number
+  /** Intakes at least this large mail their starter when they finish. */
+  largeIntakeRows: number
 }
 
 function readOrCreateSecret(dataDir: string): string {
@@ -54,5 +56,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     appUrl: (env.APP_URL ?? `http://${host}:${port}`).replace(/\/$/, ''),
     secureCookies: env.SECURE_COOKIES === '1' || (env.APP_URL ?? '').startsWith('https:'),
     authRateLimit: Number(env.AUTH_RATE_LIMIT ?? 20),
+    largeIntakeRows: Number(env.LARGE_INTAKE_ROWS ?? 5000),
   }
 }

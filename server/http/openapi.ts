@@ -4,8 +4,27 @@ import { ROUTES } from './route.ts'
 import { ProblemSchema } from '../../shared/schemas/api.schema.ts'
 import { APP_VERSION } from '../lib/version.ts'
 
-const toSchema = (s: z.ZodType, io: 'input' | 'output') =>
-  z.toJSONSchema(s, { target: 'draft-2020-12', io, unrepresentable: 'any', reused: 'inline' }) as SchemaObject & { $schema?: string }
+/** Named schemas (zod `.meta({ id })`) collected for components/schemas while the document is built. */
+let components: Record<string, SchemaObject> = {}
+
+/**
+ * zod → JSON Schema 2020-12 (what OpenAPI 3.1 uses). Named sub-schemas land in components/schemas;
+ * an input variant that differs from the output one (defaults make fields optional) gets "Input".
+ */
+function toSchema(s: z.ZodType, io: 'input' | 'output'): SchemaObject & { $schema?: string } {
+  const js = z.toJSONSchema(s, { target: 'draft-2020-12', io, unrepresentable: 'any', reused: 'inline' }) as SchemaObject & { $defs?: Record<string, SchemaObject> }
+  const defs = js.$defs ?? {}
+  delete js.$defs
+  const names: Record<string, string> = {}
+  for (const [id, def] of Object.entries(defs)) {
+    const text = JSON.stringify(def)
+    names[id] = components[id] === undefined || JSON.stringify(components[id]) === text ? id
+      : io === 'input' ? `${id}Input` : `${id}Output`
+  }
+  const rename = (v: unknown) => JSON.parse(JSON.stringify(v).replace(/"#\/\$defs\/([^"]+)"/g, (_m, id: string) => `"#/components/schemas/${names[id] ?? id}"`))
+  for (const [id, def] of Object.entries(defs)) components[names[id]] = rename(def)
+  return rename(js)
+}
 
 function clean(s: SchemaObject & { $schema?: string }): SchemaObject {
   const { $schema: _drop, ...rest } = s
@@ -17,6 +36,7 @@ export const openapiPath = (p: string) => '/api/v1' + p.replace(/:([A-Za-z]+)/g,
 
 /** The OpenAPI 3.1 document of every registered route, built from the same zod schemas that validate. */
 export function buildOpenApi() {
+  components = {}
   const b = OpenApiBuilder.create({
     openapi: '3.1.0',
     info: {
@@ -76,5 +96,6 @@ export function buildOpenApi() {
     ;(paths[p] ??= {})[r.method] = op
   }
   for (const [p, ops] of Object.entries(paths)) b.addPath(p, ops)
+  for (const [name, schema] of Object.entries(components)) { if (name !== 'Problem') b.addSchema(name, schema) }
   return b.getSpec()
 }

@@ -1,5 +1,5 @@
 import express, { Router } from 'express'
-import { rateLimit } from 'express-rate-limit'
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit'
 import type { AppDeps } from '../app.ts'
 import { authenticate, guardFor } from '../http/auth.ts'
 import { HttpProblem } from '../http/problem.ts'
@@ -25,7 +25,7 @@ export function buildRoutes(deps: AppDeps): Router {
   // per key (or signed-in user) and per address
   router.use('/v1', rateLimit({
     windowMs: 60_000, limit: Number(process.env.API_RATE_LIMIT ?? 1200), standardHeaders: 'draft-8', legacyHeaders: false,
-    keyGenerator: (req) => req.auth?.key ? `key:${req.auth.key.id}` : req.auth ? `user:${req.auth.user.id}` : `ip:${req.ip}`,
+    keyGenerator: (req) => req.auth?.key ? `key:${req.auth.key.id}` : req.auth ? `user:${req.auth.user.id}` : `ip:${ipKeyGenerator(req.ip ?? '')}`,
     handler: (_req, _res, next, options) => next(new HttpProblem(429, 'Too Many Requests', 'rate limit reached; slow down', undefined, { 'Retry-After': String(Math.ceil(options.windowMs / 1000)) })),
   }))
   accountsRoutes(v1, deps, guard)

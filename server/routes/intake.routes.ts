@@ -16,7 +16,7 @@ import type { Guard } from './index.ts'
 const CSV_TYPES = new Set(['text/csv', 'text/plain', 'text/tab-separated-values', 'application/csv', 'application/vnd.ms-excel', 'application/octet-stream'])
 
 export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
-  const intake = intakeService(deps.db, deps.mailer, deps.config.dataDir, deps.config.appUrl)
+  const intake = intakeService(deps.db, deps.mailer, deps.config.dataDir, deps.config.appUrl, deps.config.largeIntakeRows)
   const dir = join(deps.config.dataDir, 'uploads')
   mkdirSync(dir, { recursive: true })
   const upload = multer({

@@ -1,6 +1,8 @@
 import { createRng, type Rng } from '../../shared/stats/rng.ts'
 import { extinctionK } from '../../shared/extinction/index.ts'
 import { LINES } from '../../shared/lines/index.ts'
+import { doubletRatioFromDensity, SANDERS16_OII, SANDERS16_SII } from '../../shared/diagnostics/density.ts'
+import { KA03, KE01_NII, hyperbolaY } from '../../shared/diagnostics/demarcation.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 
 /**
@@ -13,8 +15,9 @@ export type Population = 'star-forming' | 'composite' | 'seyfert' | 'liner'
 
 const uniform = (rng: Rng, a: number, b: number) => a + (b - a) * rng.nextFloat()
 const normal = (rng: Rng, mu: number, sigma: number) => mu + sigma * rng.nextNormal()
-const ka03 = (x: number) => 0.61 / (x - 0.05) + 1.3
-const ke01 = (x: number) => 0.61 / (x - 0.47) + 1.19
+// the demo stays left of both asymptotes, where these are finite
+const ka03 = (x: number) => hyperbolaY(KA03, x)!
+const ke01 = (x: number) => hyperbolaY(KE01_NII, x)!
 
 /** Intrinsic log ratios (x_N, y, x_S, x_O) and EW(Hα) for one population member. */
 function ratiosFor(pop: Population, rng: Rng) {
@@ -39,9 +42,8 @@ function ratiosFor(pop: Population, rng: Rng) {
   }
 }
 
-/** [S II] 6717/6731 at density n (cm⁻³), from the Sanders et al. 2016 fit used by the science library. */
-const siiRatio = (n: number) => (0.4315 * (2107 + n)) / (627.1 + n)
-const oiiRatio = (n: number) => (0.3771 * (2468 + n)) / (638.4 + n)
+const siiRatio = (n: number) => doubletRatioFromDensity(SANDERS16_SII, n, 1e4)
+const oiiRatio = (n: number) => doubletRatioFromDensity(SANDERS16_OII, n, 1e4)
 
 const wavelength = (id: string) => LINES.find((l) => l.id === id)!.airAngstrom
 

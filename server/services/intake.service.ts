@@ -1,7 +1,7 @@
 import { createReadStream } from 'node:fs'
 import { mkdir, open, rm } from 'node:fs/promises'
 import { join } from 'node:path'
-import { parse } from 'csv-parse'
+import { CsvError, parse } from 'csv-parse'
 import { and, eq, sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { columnMappings, intakes, users } from '../db/schema.ts'
@@ -17,8 +17,6 @@ import { projects } from '../db/schema.ts'
 
 const PREVIEW_ROWS = 20
 const MAX_PROBLEMS = 500
-/** Intakes at least this large mail their starter when they finish. */
-export const LARGE_INTAKE_ROWS = Number(process.env.LARGE_INTAKE_ROWS ?? 5000)
 
 const bad = (detail: string, path = '/file') => new HttpProblem(422, 'Unprocessable Content', detail, [{ path, message: detail }])
 
@@ -49,8 +47,7 @@ async function* records(path: string, delimiter: string): AsyncGenerator<{ recor
   try {
     for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) yield { record: item.record, line: item.info.lines }
   } catch (err) {
-    const e = err as { code?: string; message?: string; lines?: number }
-    if (e.code?.startsWith('CSV_')) throw bad(`the file is not valid CSV near line ${e.lines ?? '?'}: ${e.message}`)
+    if (err instanceof CsvError) throw bad(`the file is not valid CSV: ${err.message}`)
     throw err
   }
 }
@@ -67,7 +64,7 @@ function checkHeaders(headers: string[]) {
   if (errors.length) throw new HttpProblem(422, 'Unprocessable Content', 'the header row has missing or repeated names', errors)
 }
 
-export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: string) {
+export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: string, largeIntakeRows: number) {
   const uploads = join(dataDir, 'uploads')
 
   async function staged(projectId: string, intakeId: string) {
@@ -172,7 +169,7 @@ export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: s
         return { intake: intakeDto(done, { id: auth.user.id, name: auth.user.name }), ...counts }
       })
       await rm(i.filePath!, { force: true })
-      if (galaxies.length >= LARGE_INTAKE_ROWS) {
+      if (galaxies.length >= largeIntakeRows) {
         const [u] = await db.select().from(users).where(eq(users.id, auth.user.id))
         await mailer.send({
           to: u.email, subject: `Intake finished: ${i.fileName} (${galaxies.length} galaxies)`,

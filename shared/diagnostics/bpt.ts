@@ -66,6 +66,13 @@ export function niiSubtypeOfPoint(x: number, y: number): number {
   return y > S07_NII.m * x + S07_NII.q ? CLASS_SEYFERT : CLASS_LINER
 }
 
+function upperOk(status: number): boolean {
+  return status === RATIO_EXACT || status === RATIO_UPPER
+}
+function lowerOk(status: number): boolean {
+  return status === RATIO_EXACT || status === RATIO_LOWER
+}
+
 /**
  * Whether the class of a point built from limits is proven (REFERENCE.md §9, project convention).
  * All SF/AGN curves fall with x, so the star-forming region is a lower set and the AGN region an
@@ -81,8 +88,6 @@ export function niiSubtypeOfPoint(x: number, y: number): number {
  */
 export function classProvenByLimits(cls: number, xStatus: number, yStatus: number): number {
   if (xStatus === RATIO_EXACT && yStatus === RATIO_EXACT) return cls
-  const upperOk = (s: number) => s === RATIO_EXACT || s === RATIO_UPPER
-  const lowerOk = (s: number) => s === RATIO_EXACT || s === RATIO_LOWER
   switch (cls) {
     case CLASS_STAR_FORMING:
       return upperOk(xStatus) && upperOk(yStatus) ? cls : CLASS_UNCLASSIFIED

@@ -133,7 +133,7 @@ function quarticDdp(t: number, u: number): number {
 
 // Root of g on [lo, hi] (g(lo)·g(hi) ≤ 0) by bracketed Newton steps; `which` selects p or p′.
 function polyRoot(which: 0 | 1, lo: number, hi: number, u: number, av: number, a2: number): number {
-  let glo = which === 0 ? quarticP(lo, u, av, a2) : quarticDp(lo, u, av)
+  const glo = which === 0 ? quarticP(lo, u, av, a2) : quarticDp(lo, u, av)
   let a = lo
   let b = hi
   if (glo > 0) {
@@ -149,11 +149,29 @@ function polyRoot(which: 0 | 1, lo: number, hi: number, u: number, av: number, a
     const d = which === 0 ? quarticDp(t, u, av) : quarticDdp(t, u)
     let next = t - g / d
     if (!((next - a) * (next - b) < 0)) next = 0.5 * (a + b)
-    if (Math.abs(next - t) <= 1e-15 * (1 + Math.abs(t))) return next
+    if (Math.abs(next - t) <= 1e-13 * (1 + Math.abs(t))) return next
     t = next
   }
-  glo = 0
   return t
+}
+
+// closest stationary point found so far (module state: the search allocates nothing per call)
+let bestD2 = Infinity
+let bestT = 1
+
+// If p changes sign on [lo, hi] (p is monotone there), refine its root and keep it if it is the closest point.
+function considerInterval(lo: number, hi: number, u: number, v: number, a: number, av: number, a2: number): void {
+  if (!(hi > lo)) return
+  if (quarticP(lo, u, av, a2) * quarticP(hi, u, av, a2) > 0) return
+  const t = polyRoot(0, lo, hi, u, av, a2)
+  if (!(t > 0)) return
+  const dx = u + t
+  const dy = v + a / t
+  const d2 = dx * dx + dy * dy
+  if (d2 < bestD2) {
+    bestD2 = d2
+    bestT = t
+  }
 }
 
 /**
@@ -192,28 +210,18 @@ export function signedDistanceToHyperbola(curve: HyperbolaCurve, x: number, y: n
     if (dp0 > 0 && dpm < 0) c1 = polyRoot(1, 0, tm, u, av, a2)
     if (dpm < 0) c2 = polyRoot(1, tm, bound, u, av, a2)
   }
-  let bestD2 = Infinity
-  let bestT = 1
-  const consider = (lo: number, hi: number): void => {
-    if (hi <= lo) return
-    const plo = quarticP(lo, u, av, a2)
-    const phi = quarticP(hi, u, av, a2)
-    if (plo * phi > 0) return
-    const t = polyRoot(0, lo, hi, u, av, a2)
-    if (!(t > 0)) return
-    const dx = u + t
-    const dy = v + a / t
-    const d2 = dx * dx + dy * dy
-    if (d2 < bestD2) {
-      bestD2 = d2
-      bestT = t
-    }
-  }
-  const edges = [0]
-  if (c1 > 0) edges.push(c1)
-  if (c2 > 0) edges.push(c2)
-  edges.push(bound)
-  for (let i = 0; i + 1 < edges.length; i++) consider(edges[i], edges[i + 1])
+  bestD2 = Infinity
+  bestT = 1
+  if (c1 > 0) {
+    considerInterval(0, c1, u, v, a, av, a2)
+    if (c2 > 0) {
+      considerInterval(c1, c2, u, v, a, av, a2)
+      considerInterval(c2, bound, u, v, a, av, a2)
+    } else considerInterval(c1, bound, u, v, a, av, a2)
+  } else if (c2 > 0) {
+    considerInterval(0, c2, u, v, a, av, a2)
+    considerInterval(c2, bound, u, v, a, av, a2)
+  } else considerInterval(0, bound, u, v, a, av, a2)
   const sign = isBelowHyperbola(curve, x, y) ? -1 : 1
   const distance = sign * Math.sqrt(bestD2)
   if (out) {

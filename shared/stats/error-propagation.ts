@@ -97,3 +97,28 @@ export function linearisedLogVariance(
   }
   return variance
 }
+
+/**
+ * `linearisedLogVariance` for a single term with coefficient 1 (the dereddened flux of one line),
+ * written out: Var(ln F_corr) = (1 + η·[D1] …)²… with η = 0.4·k·C; identical to the general function
+ * with n = 1 (tested), but without the loop, for the kernel's 16 lines per galaxy.
+ *
+ * @param relative    σ/F of the line
+ * @param role        ROLE_OTHER, ROLE_DUST_NUMERATOR or ROLE_DUST_DENOMINATOR
+ * @param k           k(λ) of the line, mag/mag
+ * @param dustC       C = 2.5/(k_D2 − k_D1), or 0
+ * @param relativeD1  σ/F of the dust numerator line
+ * @param relativeD2  σ/F of the dust denominator line
+ * @returns Var(ln F_corr)
+ * @example linearisedLogVarianceOfLine(0.05, ROLE_OTHER, 3.47, 0, 0, 0) // 0.0025
+ */
+export function linearisedLogVarianceOfLine(
+  relative: number, role: number, k: number, dustC: number, relativeD1: number, relativeD2: number,
+): number {
+  if (dustC === 0) return relative * relative
+  const eta = 0.4 * k * dustC
+  const c1 = role === ROLE_DUST_NUMERATOR ? 1 + eta : eta
+  const c2 = role === ROLE_DUST_DENOMINATOR ? 1 - eta : -eta
+  const own = role === ROLE_OTHER ? relative * relative : 0
+  return own + c1 * c1 * relativeD1 * relativeD1 + c2 * c2 * relativeD2 * relativeD2
+}

@@ -14,15 +14,16 @@ const GL_W = [
  * @param a  lower limit
  * @param b  upper limit
  * @returns ∫ₐᵇ f(x) dx (exact for polynomials of degree ≤ 19)
+ * @param param  optional parameter handed to f
  * @example gaussLegendre10((x) => x * x, 0, 3) // 9
  */
-export function gaussLegendre10(f: (x: number) => number, a: number, b: number): number {
+export function gaussLegendre10(f: (x: number, param: number) => number, a: number, b: number, param = 0): number {
   const half = 0.5 * (b - a)
   const mid = 0.5 * (a + b)
   let s = 0
   for (let i = 0; i < 5; i++) {
     const dx = half * GL_X[i]
-    s += GL_W[i] * (f(mid - dx) + f(mid + dx))
+    s += GL_W[i] * (f(mid - dx, param) + f(mid + dx, param))
   }
   return s * half
 }
@@ -36,19 +37,20 @@ export function gaussLegendre10(f: (x: number) => number, a: number, b: number):
  * @param a       lower limit
  * @param b       upper limit
  * @param relTol  relative tolerance (default 1e-10, comfortably below the 1e-8 the project needs)
+ * @param param   optional parameter handed to f (lets hot callers avoid allocating closures)
  * @returns ∫ₐᵇ f(x) dx
  * @example adaptiveGaussLegendre(Math.exp, 0, 1) // ≈ e − 1
  */
-export function adaptiveGaussLegendre(f: (x: number) => number, a: number, b: number, relTol = 1e-10): number {
-  const whole = gaussLegendre10(f, a, b)
-  return refine(f, a, b, whole, relTol * Math.abs(whole), 40)
+export function adaptiveGaussLegendre(f: (x: number, param: number) => number, a: number, b: number, relTol = 1e-10, param = 0): number {
+  const whole = gaussLegendre10(f, a, b, param)
+  return refine(f, a, b, whole, relTol * Math.abs(whole), 40, param)
 }
 
-function refine(f: (x: number) => number, a: number, b: number, whole: number, absTol: number, depth: number): number {
+function refine(f: (x: number, param: number) => number, a: number, b: number, whole: number, absTol: number, depth: number, param: number): number {
   const m = 0.5 * (a + b)
-  const left = gaussLegendre10(f, a, m)
-  const right = gaussLegendre10(f, m, b)
+  const left = gaussLegendre10(f, a, m, param)
+  const right = gaussLegendre10(f, m, b, param)
   const both = left + right
   if (depth <= 0 || Math.abs(both - whole) <= absTol) return both
-  return refine(f, a, m, left, 0.5 * absTol, depth - 1) + refine(f, m, b, right, 0.5 * absTol, depth - 1)
+  return refine(f, a, m, left, 0.5 * absTol, depth - 1, param) + refine(f, m, b, right, 0.5 * absTol, depth - 1, param)
 }

@@ -1,3 +1,8 @@
+/** A function of x with parameters passed alongside (lets hot callers avoid allocating closures). */
+export type ParametricFunction = (x: number, params: Float64Array) => number
+
+const NO_PARAMS = new Float64Array(0)
+
 /**
  * Root of a continuous function on a bracket [lo, hi] with f(lo)·f(hi) ≤ 0, by Newton steps that
  * fall back to bisection whenever a step would leave the current bracket (a "safeguarded" Newton
@@ -10,19 +15,23 @@
  * @param hi       upper end of the bracket
  * @param absTol   stop when the bracket or the step is below this (unit of x)
  * @param maxIter  iteration cap (default 100)
+ * @param params   optional parameters handed to f and fPrime
+ * @param start    optional first guess inside the bracket (default: its midpoint)
  * @returns the root, or null when f(lo) and f(hi) have the same sign (no bracketed root)
  * @example newtonBisect((x) => x * x - 2, (x) => 2 * x, 0, 2, 1e-12) // ≈ 1.41421356
  */
 export function newtonBisect(
-  f: (x: number) => number,
-  fPrime: (x: number) => number,
+  f: ParametricFunction,
+  fPrime: ParametricFunction,
   lo: number,
   hi: number,
   absTol: number,
   maxIter = 100,
+  params: Float64Array = NO_PARAMS,
+  start = Number.NaN,
 ): number | null {
-  let flo = f(lo)
-  const fhi = f(hi)
+  let flo = f(lo, params)
+  const fhi = f(hi, params)
   if (flo === 0) return lo
   if (fhi === 0) return hi
   if (flo * fhi > 0 || !Number.isFinite(flo) || !Number.isFinite(fhi)) return null
@@ -34,13 +43,13 @@ export function newtonBisect(
     b = lo
     flo = fhi
   }
-  let x = 0.5 * (lo + hi)
+  let x = start > Math.min(lo, hi) && start < Math.max(lo, hi) ? start : 0.5 * (lo + hi)
   for (let i = 0; i < maxIter; i++) {
-    const fx = f(x)
+    const fx = f(x, params)
     if (fx === 0) return x
     if (fx < 0) a = x
     else b = x
-    const d = fPrime(x)
+    const d = fPrime(x, params)
     let next = x - fx / d
     const inside = (next - a) * (next - b) < 0
     if (!inside || !Number.isFinite(next)) next = 0.5 * (a + b)

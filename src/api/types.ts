@@ -83,11 +83,13 @@ export interface Intake {
   report?: unknown
 }
 
-export interface Histogram { edges: number[]; counts: number[] }
+/** `log`: the edges are log10 of the quantity (the server bins densities logarithmically). */
+export interface Histogram { edges: number[]; counts: number[]; log?: boolean }
 
 export interface ProjectOverview {
   project: Project
-  revision: { revision: number; createdAt: string }
+  /** the revision the shown results were computed under (a number; older servers sent an object) */
+  revision: number | { revision: number; createdAt: string }
   classCounts: Record<ClassDiagram, Record<string, number>>
   histograms: { ebv: Histogram; neSii: Histogram }
   latestIntakes: Intake[]
@@ -137,6 +139,8 @@ export interface GalaxyResult {
   extinction?: { balmerDecrement: number | null; ebv: number | null; ebvError: number | null; av: number | null; flags: string[] } | null
   dereddened?: Partial<Record<LineId, { flux: number | null; error: number | null } | { upperLimit: number }>> | null
   ratios?: Record<string, number | null> | null
+  ratioErrors?: Record<string, number | null> | null
+  ratioLimits?: Record<string, 'upper' | 'lower'> | null
   classes?: Partial<Record<ClassDiagram, string>> & { classProbabilities?: unknown }
   density?: Record<string, { ne: number | null; neError: number | null; flag: string | null } | null> | null
   temperature?: Record<string, unknown> | null
@@ -212,7 +216,8 @@ export interface CsvUpload {
   savedMappings: { name: string; mapping: ColumnMapping }[]
 }
 
-export interface ValidationProblem { row: number; column: string | null; field: string | null; message: string }
+/** `field` is the file's column header, `column` its 1-based position (or a name on older servers). */
+export interface ValidationProblem { row: number; column: number | string | null; field: string | null; message: string }
 
 export interface ValidationReport { rowsTotal: number; rowsValid: number; problems: ValidationProblem[] }
 

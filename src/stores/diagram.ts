@@ -2,7 +2,8 @@ import { defineStore } from 'pinia'
 import { computed, ref, shallowRef } from 'vue'
 import { galaxiesApi } from '../api/galaxies'
 import { ApiProblem } from '../api/http'
-import type { DiagramColumns, DiagramKey, GalaxyFilters } from '../api/types'
+import { projectsApi } from '../api/projects'
+import type { DiagramColumns, DiagramKey, GalaxyFilters, Settings } from '../api/types'
 import { prepareDiagramArrays, type DiagramArrays } from '../components/diagrams/diagram-arrays'
 
 export type ColourBy = 'overall' | 'own'
@@ -25,6 +26,8 @@ export const useDiagramStore = defineStore('diagram', () => {
   const colourBy = ref<ColourBy>('overall')
   const showErrors = ref(false)
   const showReddening = ref(true)
+  /** the project's current assumptions: the reddening arrow follows its extinction law and R_V */
+  const settings = ref<Settings | null>(null)
   let controller: AbortController | null = null
 
   const selectionCount = computed(() => selection.value?.length ?? 0)
@@ -33,6 +36,9 @@ export const useDiagramStore = defineStore('diagram', () => {
     controller?.abort()
     controller = new AbortController()
     const signal = controller.signal
+    if (projectId.value !== id || !settings.value) {
+      projectsApi.assumptions(id).then((a) => { settings.value = a.current.settings }).catch(() => { settings.value = null })
+    }
     projectId.value = id
     loading.value = true
     problem.value = null
@@ -62,6 +68,6 @@ export const useDiagramStore = defineStore('diagram', () => {
 
   return {
     projectId, columns, arrays, loading, problem, filters, selection, selectionSource, selectionCount,
-    colourBy, showErrors, showReddening, load, select, clearSelection,
+    colourBy, showErrors, showReddening, settings, load, select, clearSelection,
   }
 })

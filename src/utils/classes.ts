@@ -26,7 +26,7 @@ export const CLASS_COLOURS: Record<string, string> = {
   'weak-agn': OKABE_ITO.orange,
   retired: OKABE_ITO.reddishPurple,
   passive: OKABE_ITO.yellow,
-  ambiguous: OKABE_ITO.skyBlue,
+  ambiguous: OKABE_ITO.reddishPurple, // never on the same panel as 'retired' (overall vs WHAN)
   unclassified: UNCLASSIFIED_GREY,
 }
 
@@ -72,5 +72,5 @@ export const DIAGRAM_LABELS = {
 
 /** Text on a class chip must stay readable: dark text on the light hues. */
 export function classTextColour(name: string | null | undefined): string {
-  return name === 'passive' || name === 'ambiguous' || name === 'liner' || name === 'weak-agn' ? '#1A1A1A' : '#FFFFFF'
+  return name === 'passive' || name === 'liner' || name === 'weak-agn' ? '#1A1A1A' : '#FFFFFF'
 }

@@ -12,6 +12,13 @@ export function fmt(v: unknown, digits = 3): string {
   return v.toFixed(digits)
 }
 
+/** Always fixed decimals: for logarithms and other values where 0.000 reads better than 4e-4. */
+export function fmtFixed(v: unknown, digits = 3): string {
+  if (!isNum(v)) return '—'
+  const s = v.toFixed(digits)
+  return /^-0\.?0*$/.test(s) ? s.slice(1) : s
+}
+
 /** value ± error with the error at the same number of decimals. */
 export function fmtErr(v: unknown, err: unknown, digits = 3): string {
   if (!isNum(v)) return '—'

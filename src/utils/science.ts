@@ -1,32 +1,64 @@
 /**
- * The dashboard's single doorway to the shared science library. Screens use the shapes declared
- * here; if the library's shapes change, only this file follows.
+ * The dashboard's single doorway to the shared science library (the same code the server runs).
+ * Screens use the shapes declared here; if the library's shapes change, only this file follows.
  */
-import { demarcationCurves, diagnoseGalaxy, reddeningVector, siiRatioCurve, whanLines } from '../../shared/science.ts'
+import {
+  DEFAULT_SETTINGS, defaultRvFor, demarcationCurves, diagnoseGalaxy as diagnoseWithLibrary, reddeningVector, siiRatioCurve, whanLines,
+  type DiagnosticSettings, type ExtinctionLaw, type GalaxyInput,
+} from '../../shared/science.ts'
 import type { GalaxyResult } from '../api/types'
 
 export type RatioDiagram = 'nii' | 'sii' | 'oi'
+export type { ExtinctionLaw }
 
 /** A line drawn on a diagram, in the diagram's own coordinates (WHAN: x = log [N II]/Hα, y = EW(Hα) in Å). */
-export interface DiagramLine { id: string; label: string; x: number[]; y: number[]; dash?: 'solid' | 'dash' | 'dot' }
+export interface DiagramLine { id: string; label: string; short: string; x: number[]; y: number[]; dash: 'solid' | 'dash' | 'dot' }
+
+// short names written on the plot; the full reference is the hover text
+const CURVE_STYLE: Record<string, { short: string; dash: DiagramLine['dash'] }> = {
+  ka03: { short: 'Ka03', dash: 'solid' },
+  ke01: { short: 'Ke01', dash: 'dash' },
+  ke06: { short: 'Ke06', dash: 'dot' },
+  s07: { short: 'S07', dash: 'dot' },
+  'sf-agn': { short: '', dash: 'solid' },
+  'strong-weak-agn': { short: '', dash: 'dash' },
+  retired: { short: '3 Å', dash: 'dot' },
+  passive: { short: '0.5 Å', dash: 'dot' },
+}
 
 export function curvesFor(diagram: RatioDiagram): DiagramLine[] {
-  return (demarcationCurves(diagram) as DiagramLine[]).map((c) => ({ ...c }))
+  return demarcationCurves(diagram).map((c) => ({
+    id: c.key, label: c.label, x: c.x, y: c.y, short: CURVE_STYLE[c.key]?.short ?? c.key, dash: CURVE_STYLE[c.key]?.dash ?? 'solid',
+  }))
 }
 
 export function whanDiagramLines(): DiagramLine[] {
-  return (whanLines() as DiagramLine[]).map((c) => ({ ...c }))
+  return whanLines().map((l) => ({
+    id: l.key, label: `WHAN ${l.label}`, x: l.x, y: l.y, short: CURVE_STYLE[l.key]?.short ?? '', dash: CURVE_STYLE[l.key]?.dash ?? 'solid',
+  }))
 }
 
-/** Shift of an observed point on a diagram for E(B−V) = `ebv` of foreground dust, in dex. */
-export function reddeningShift(diagram: RatioDiagram, ebv = 1): { dx: number; dy: number } {
-  return reddeningVector(diagram, ebv) as { dx: number; dy: number }
+/** Where E(B−V) = `ebv` of foreground dust moves an observed point on a diagram, in dex. */
+export function reddeningShift(diagram: RatioDiagram, law: ExtinctionLaw = 'ccm89', rv?: number, ebv = 1): { dx: number; dy: number } {
+  return reddeningVector(law, rv ?? defaultRvFor(law), ebv)[diagram]
 }
 
 /** [S II] 6717/6731 against n_e (cm⁻³) at the given temperature (K). */
 export function siiDensityCurve(temperatureK = 10000): { ne: number[]; ratio: number[] } {
-  return siiRatioCurve(temperatureK) as { ne: number[]; ratio: number[] }
+  return siiRatioCurve(temperatureK)
 }
 
-export { diagnoseGalaxy }
-export type CalculatorResult = GalaxyResult
+/** Settings as the Calculator holds them: any subset; the library's defaults fill the rest. */
+export interface PartialSettings { extinctionLaw?: ExtinctionLaw; rv?: number; intrinsicBalmer?: number; minSnr?: number }
+
+export function completeSettings(s: PartialSettings): DiagnosticSettings {
+  const law = s.extinctionLaw ?? DEFAULT_SETTINGS.extinctionLaw
+  return { ...DEFAULT_SETTINGS, ...s, extinctionLaw: law, rv: s.rv ?? defaultRvFor(law) }
+}
+
+/** One galaxy diagnosed in the browser with the same library the server uses. */
+export function diagnoseGalaxy(galaxy: GalaxyInput, settings: PartialSettings): GalaxyResult {
+  return diagnoseWithLibrary(galaxy, completeSettings(settings)) as unknown as GalaxyResult
+}
+
+export type { GalaxyInput }

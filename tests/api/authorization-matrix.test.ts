@@ -39,7 +39,7 @@ function expected(row: Row, p: Principal): 'ok' | 401 | 403 | 404 {
 const P = '/projects/:projectId'
 const TABLE: Row[] = [
   { method: 'post', path: '/auth/sign-up', level: 'public', body: { email: 'x', password: 'y', name: '' } },
-  { method: 'post', path: '/auth/sign-in', level: 'public', body: { email: 'nobody@example.org', password: 'nothing-here' } },
+  { method: 'post', path: '/auth/sign-in', level: 'public', body: { email: 'm-viewer@example.org', password: 'correct horse battery' } },
   { method: 'post', path: '/auth/password-reset', level: 'public', body: { email: 'nobody@example.org' } },
   { method: 'post', path: '/auth/password-reset/confirm', level: 'public', body: { token: 'not-a-real-token', password: 'long enough password' } },
   { method: 'get', path: '/invitations/:token', level: 'public' },

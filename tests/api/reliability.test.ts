@@ -81,7 +81,7 @@ describe('SIGKILL in the middle of a large intake', () => {
     const port = await freePort()
     const dataDir = mkdtempSync(join(PROJECT_ROOT, '.test-data-'))
     cleanups.push(() => rmSync(dataDir, { recursive: true, force: true }))
-    const start = () => spawn(process.execPath, [join(PROJECT_ROOT, 'node_modules', 'tsx', 'dist', 'cli.mjs'), join(PROJECT_ROOT, 'server', 'cli', 'start.ts')], {
+    const start = () => spawn(process.execPath, ['--import', 'tsx', join(PROJECT_ROOT, 'server', 'cli', 'start.ts')], {
       env: { ...process.env, DATABASE_URL: databaseUrl, PORT: String(port), SEED_DEMO: '0', BUILD_CLIENT: '0', DATA_DIR: dataDir, JWT_SECRET: 'kill-test', LOG_LEVEL: 'silent' },
       stdio: 'ignore',
     })
@@ -91,7 +91,7 @@ describe('SIGKILL in the middle of a large intake', () => {
     cleanups.push(() => { child.kill('SIGKILL') })
     await waitUp()
     const { agent, csrf, projectId } = await signUpAndProject(base)
-    const rows = 30_000
+    const rows = 60_000
     const csv = ['id,z,halpha_flux,halpha_err,hbeta_flux,hbeta_err,nii_6584_flux,nii_6584_err,oiii_5007_flux,oiii_5007_err',
       ...Array.from({ length: rows }, (_, i) => `K-${i},0.05,300,6,80,3,60,3,50,3`)].join('\n')
     const staged = await agent.post(`/api/v1/projects/${projectId}/intakes/csv`).set('X-CSRF-Token', csrf).attach('file', Buffer.from(csv), { filename: 'big.csv', contentType: 'text/csv' })
@@ -101,11 +101,14 @@ describe('SIGKILL in the middle of a large intake', () => {
     await client.connect()
     cleanups.push(() => client.end())
     // kill while the commit's transaction is writing: wait for its first inserts to be under way
-    for (let i = 0; i < 200; i++) {
-      const { rows: a } = await client.query("select count(*)::int as n from pg_stat_activity where query ilike '%insert into galaxies%' and state = 'active' and pid <> pg_backend_pid()")
-      if (a[0].n > 0) break
-      await sleep(25)
+    let seen = false
+    for (let i = 0; i < 4000 && !seen; i++) {
+      const { rows: a } = await client.query(`select count(*)::int as n from pg_stat_activity where pid <> pg_backend_pid()
+        and datname = current_database() and xact_start is not null and query ilike '%galaxies%'`)
+      seen = a[0].n > 0
+      if (!seen) await sleep(5)
     }
+    expect(seen).toBe(true)
     child.kill('SIGKILL')
     const outcome = await commit
     await sleep(500)

@@ -1,6 +1,6 @@
 import type { Annotation, Config, Data, Layout } from 'plotly.js-dist-min'
 import type { DiagramKey } from '../../api/types'
-import { curvesFor, reddeningShift, whanDiagramLines, type DiagramLine } from '../../utils/science'
+import { curvesFor, reddeningShift, whanDiagramLines, type DiagramLine, type ExtinctionLaw } from '../../utils/science'
 
 /** Axis titles, ranges and line styles of the four diagrams, shared by the sample and single-galaxy plots. */
 export interface DiagramSpec {
@@ -23,7 +23,7 @@ export const DIAGRAM_SPECS: Record<DiagramKey, DiagramSpec> = {
 
 export const DIAGRAM_ORDER: DiagramKey[] = ['nii', 'sii', 'oi', 'whan']
 
-const LINE_COLOURS = ['#3A3A3A', '#6E6E6E', '#9A9A9A']
+const LINE_COLOURS = ['#2B2B2B', '#4A4A4A', '#6E6E6E']
 
 export function linesFor(key: DiagramKey): DiagramLine[] {
   try {
@@ -45,20 +45,27 @@ export function lineTraces(key: DiagramKey, dark: boolean): Data[] {
     name: l.label,
     hoverinfo: 'name',
     showlegend: false,
-    line: { color: base[i % base.length], width: 1.6, dash: l.dash ?? (i === 0 ? 'solid' : i === 1 ? 'dash' : 'dot') },
+    line: { color: base[Math.min(i, base.length - 1)], width: 1.6, dash: l.dash },
   }) as Data)
 }
 
 /** Line labels written at the line ends so a printed figure still says which is which. */
 export function lineAnnotations(key: DiagramKey, dark: boolean): Partial<Annotation>[] {
   const spec = DIAGRAM_SPECS[key]
-  return linesFor(key).flatMap((l) => {
+  return linesFor(key).filter((l) => l.short).flatMap((l) => {
     // label at the last point still inside the plotted box
     for (let i = l.x.length - 1; i >= 0; i--) {
       const x = l.x[i]
       const y = spec.yLog ? Math.log10(l.y[i]) : l.y[i]
       if (x >= spec.xRange[0] && x <= spec.xRange[1] && y >= spec.yRange[0] && y <= spec.yRange[1]) {
-        return [{ x, y: l.y[i], text: l.label, showarrow: false, xanchor: 'left', yanchor: 'bottom', font: { size: 10, color: dark ? '#CFCFCF' : '#444' } } as Partial<Annotation>]
+        // labels near the right or top edge are written inwards so they are not clipped
+        const nearRight = x > spec.xRange[1] - 0.2 * (spec.xRange[1] - spec.xRange[0])
+        const nearTop = y > spec.yRange[1] - 0.1 * (spec.yRange[1] - spec.yRange[0])
+        return [{
+          // on a log axis plotly places annotations by log10 of the value
+          x, y: spec.yLog ? y : l.y[i], text: l.short, showarrow: false, xanchor: nearRight ? 'right' : 'left', yanchor: nearTop ? 'top' : 'bottom',
+          font: { size: 10, color: dark ? '#CFCFCF' : '#444' },
+        } as Partial<Annotation>]
       }
     }
     return []
@@ -66,10 +73,10 @@ export function lineAnnotations(key: DiagramKey, dark: boolean): Partial<Annotat
 }
 
 /** The reddening arrow: where one magnitude of E(B−V) would move an observed point. */
-export function reddeningAnnotation(key: DiagramKey, dark: boolean): Partial<Annotation>[] {
+export function reddeningAnnotation(key: DiagramKey, dark: boolean, law?: ExtinctionLaw, rv?: number): Partial<Annotation>[] {
   if (key === 'whan') return []
   let shift: { dx: number; dy: number }
-  try { shift = reddeningShift(key, 1) } catch { return [] }
+  try { shift = reddeningShift(key, law, rv, 1) } catch { return [] }
   const spec = DIAGRAM_SPECS[key]
   // anchor in the lower-left corner, clear of the star-forming sequence
   const x0 = spec.xRange[0] + 0.12 * (spec.xRange[1] - spec.xRange[0])
@@ -98,7 +105,7 @@ export function baseLayout(key: DiagramKey, dark: boolean): Partial<Layout> {
     font: { family: 'Roboto, sans-serif', size: 12, color: fg },
     title: { text: spec.title, font: { size: 14 }, x: 0.02, xanchor: 'left', y: 0.98 },
     xaxis: { ...axis, title: { text: spec.xTitle }, range: [...spec.xRange] },
-    yaxis: { ...axis, title: { text: spec.yTitle }, range: [...spec.yRange], type: spec.yLog ? 'log' : 'linear' },
+    yaxis: { ...axis, title: { text: spec.yTitle }, range: [...spec.yRange], type: spec.yLog ? 'log' : 'linear', ...(spec.yLog ? { dtick: 1 } : {}) },
     dragmode: 'select',
     hovermode: 'closest',
     showlegend: false,
@@ -113,4 +120,25 @@ export const PLOT_CONFIG: Partial<Config> = {
   showSendToCloud: false,
   modeBarButtonsToRemove: ['autoScale2d', 'toggleSpikelines', 'hoverCompareCartesian', 'hoverClosestCartesian'],
   toImageButtonOptions: { format: 'png', filename: 'ratiograph-diagram', scale: 2 },
+}
+
+let webGlTraces: boolean | null = null
+
+/**
+ * Whether WebGL traces can run here. Plotly's WebGL layer compiles its shaders' JavaScript with
+ * `new Function`, which a Content-Security-Policy without 'unsafe-eval' forbids; plotly then only
+ * draws "WebGL is not supported". In that case the panels fall back to SVG traces: slower for a
+ * very large sample, but the diagrams, selection and hover still work.
+ */
+export function canUseWebGlTraces(): boolean {
+  if (webGlTraces !== null) return webGlTraces
+  try {
+    // eslint-disable-next-line @typescript-eslint/no-implied-eval
+    webGlTraces = new Function('return 1')() === 1
+    const canvas = document.createElement('canvas')
+    webGlTraces = webGlTraces && !!(canvas.getContext('webgl') || canvas.getContext('experimental-webgl'))
+  } catch {
+    webGlTraces = false
+  }
+  return webGlTraces
 }

@@ -1,0 +1,140 @@
+import { newtonBisect } from '../stats/root-finding.ts'
+import { DENSITY_OK, densityRangeStatus, electronDensityFromDoubletRatio, SANDERS16_SII } from './density.ts'
+
+/**
+ * Low-density temperature-sensitive ratio model R(T) = A exp(B/T) / (1 + C n_e/T^½).
+ * Source: Osterbrock & Ferland 2006, Astrophysics of Gaseous Nebulae and AGN, 2nd ed., eqs. 5.4, 5.5
+ * (coefficients [I], REFERENCE.md §4).
+ */
+export interface TemperatureRatioModel {
+  /** A, dimensionless */
+  coefficient: number
+  /** B, K */
+  exponentK: number
+  /** C, K^½ cm³ */
+  densityCoefficient: number
+}
+
+/** Osterbrock & Ferland 2006, eq. 5.4: (j4959 + j5007)/j4363 = 7.90 exp(3.29×10⁴/T)/(1 + 4.5×10⁻⁴ n_e/T^½). */
+export const OIII_TEMPERATURE_MODEL: TemperatureRatioModel = { coefficient: 7.9, exponentK: 3.29e4, densityCoefficient: 4.5e-4 }
+/** Osterbrock & Ferland 2006, eq. 5.5: (j6548 + j6584)/j5755 = 8.23 exp(2.50×10⁴/T)/(1 + 4.4×10⁻³ n_e/T^½). */
+export const NII_TEMPERATURE_MODEL: TemperatureRatioModel = { coefficient: 8.23, exponentK: 2.5e4, densityCoefficient: 4.4e-3 }
+
+/** Search range for T_e, K (REFERENCE.md §4, project convention). */
+export const TEMPERATURE_MIN_K = 5000
+export const TEMPERATURE_MAX_K = 30000
+/** n_e assumed when [S II] gives no density (REFERENCE.md §4, project convention), cm⁻³. */
+export const ASSUMED_DENSITY_CM3 = 100
+/** Convergence of the T_e / n_e iteration, K (REFERENCE.md §4). */
+export const TEMPERATURE_ITERATION_TOL_K = 0.1
+
+/**
+ * [O III] (4959+5007)/4363 or [N II] (6548+6584)/5755 ratio predicted at T and n_e
+ * (Osterbrock & Ferland 2006, eqs. 5.4/5.5).
+ *
+ * @param model         OIII_TEMPERATURE_MODEL or NII_TEMPERATURE_MODEL
+ * @param temperatureK  T_e, K
+ * @param neCm3         n_e, cm⁻³
+ * @returns the line ratio, dimensionless
+ * @example temperatureRatio(OIII_TEMPERATURE_MODEL, 1e4, 100) // ≈ 211.96 (REFERENCE.md §4 [C])
+ */
+export function temperatureRatio(model: TemperatureRatioModel, temperatureK: number, neCm3: number): number {
+  return (model.coefficient * Math.exp(model.exponentK / temperatureK)) /
+    (1 + (model.densityCoefficient * neCm3) / Math.sqrt(temperatureK))
+}
+
+/**
+ * d ln R / dT of the model (for the first-order error σ_T = σ_lnR/|d ln R/dT|):
+ * −B/T² + (C n_e T^−3/2 / 2)/(1 + C n_e T^−½).
+ *
+ * @param model         temperature model
+ * @param temperatureK  K
+ * @param neCm3         cm⁻³
+ * @returns d ln R/dT in K⁻¹ (negative)
+ * @example temperatureRatioLogSlope(OIII_TEMPERATURE_MODEL, 1e4, 100) // ≈ -3.29e-4
+ */
+export function temperatureRatioLogSlope(model: TemperatureRatioModel, temperatureK: number, neCm3: number): number {
+  const s = Math.sqrt(temperatureK)
+  const q = (model.densityCoefficient * neCm3) / s
+  return -model.exponentK / (temperatureK * temperatureK) + (0.5 * q) / temperatureK / (1 + q)
+}
+
+/**
+ * Electron temperature from a temperature-sensitive ratio at fixed n_e, by bracketing root-finding on
+ * 5000–30 000 K (the model decreases monotonically with T). The root is sought in u = 1/T, where
+ * ln R is almost linear, with safeguarded Newton steps (`newtonBisect`).
+ * Source: inverse of Osterbrock & Ferland 2006, eqs. 5.4/5.5; search range REFERENCE.md §4.
+ *
+ * @param model   OIII_TEMPERATURE_MODEL or NII_TEMPERATURE_MODEL
+ * @param ratio   observed (dereddened) ratio, dimensionless, > 0
+ * @param neCm3   n_e, cm⁻³
+ * @param guessK  optional first guess of T (K) for the Newton steps (e.g. the previous iteration's T)
+ * @returns T_e in K, or null when no root lies in 5000–30 000 K (`te-out-of-range`)
+ * @example temperatureFromRatio(OIII_TEMPERATURE_MODEL, 200, 100) // ≈ 10180 (REFERENCE.md §4 [C])
+ */
+export function temperatureFromRatio(model: TemperatureRatioModel, ratio: number, neCm3: number, guessK = 1e4): number | null {
+  if (!(ratio > 0)) return null
+  solverParams[0] = model.exponentK
+  solverParams[1] = model.densityCoefficient * neCm3
+  solverParams[2] = Math.log(ratio / model.coefficient)
+  const u = newtonBisect(lnRatioResidual, lnRatioResidualSlope, 1 / TEMPERATURE_MAX_K, 1 / TEMPERATURE_MIN_K, 1e-14, 100, solverParams, 1 / guessK)
+  return u === null ? null : 1 / u
+}
+
+// ln R(1/u) − ln R_obs + ln A as a function of u = 1/T; params [B, C·n_e, ln(R_obs/A)]
+const solverParams = new Float64Array(3)
+function lnRatioResidual(u: number, p: Float64Array): number {
+  return p[0] * u - Math.log(1 + p[1] * Math.sqrt(u)) - p[2]
+}
+function lnRatioResidualSlope(u: number, p: Float64Array): number {
+  const s = Math.sqrt(u)
+  return p[0] - (0.5 * p[1]) / s / (1 + p[1] * s)
+}
+
+/** Result of the T_e / n_e iteration. */
+export interface TemperatureSolution {
+  /** T_e, K, or null out of range */
+  temperatureK: number | null
+  /** n_e used in the last step, cm⁻³ */
+  neCm3: number
+  /** true when n_e = 100 cm⁻³ was assumed (no usable [S II] ratio) */
+  densityAssumed: boolean
+}
+
+/**
+ * T_e iterated with the [S II] density (REFERENCE.md §4, project convention): start at 10⁴ K; n_e from
+ * the [S II] ratio at T (Sanders et al. 2016 with the (T/10⁴)^½ scaling); solve T at that n_e; repeat
+ * until |ΔT| < 0.1 K. Without a usable [S II] ratio (missing, or at a density limit) n_e = 100 cm⁻³.
+ *
+ * @param model     OIII_TEMPERATURE_MODEL or NII_TEMPERATURE_MODEL
+ * @param ratio     dereddened temperature-sensitive ratio, dimensionless
+ * @param siiRatio  observed F(6717)/F(6731), or NaN when not usable
+ * @param out       optional object to fill (the kernel reuses one instead of allocating per galaxy)
+ * @returns the solution
+ * @example temperatureWithDensityIteration(OIII_TEMPERATURE_MODEL, 211.96, NaN).temperatureK // ≈ 10000
+ */
+export function temperatureWithDensityIteration(
+  model: TemperatureRatioModel, ratio: number, siiRatio: number,
+  out: TemperatureSolution = { temperatureK: null, neCm3: 0, densityAssumed: false },
+): TemperatureSolution {
+  const useSii = Number.isFinite(siiRatio) && densityRangeStatus(SANDERS16_SII, siiRatio) === DENSITY_OK
+  let t = 1e4
+  let ne = ASSUMED_DENSITY_CM3
+  for (let i = 0; i < 50; i++) {
+    ne = useSii ? electronDensityFromDoubletRatio(SANDERS16_SII, siiRatio, t) : ASSUMED_DENSITY_CM3
+    const next = temperatureFromRatio(model, ratio, ne, t)
+    if (next === null) {
+      out.temperatureK = null
+      out.neCm3 = ne
+      out.densityAssumed = !useSii
+      return out
+    }
+    const done = Math.abs(next - t) < TEMPERATURE_ITERATION_TOL_K
+    t = next
+    if (done || !useSii) break
+  }
+  out.temperatureK = t
+  out.neCm3 = ne
+  out.densityAssumed = !useSii
+  return out
+}

@@ -1,0 +1,44 @@
+import { describe, expect, it } from 'vitest'
+import { mount, RouterLinkStub } from '@vue/test-utils'
+import { createVuetify } from 'vuetify'
+import SelectionTable from '../../../../../src/components/diagrams/SelectionTable.vue'
+import type { DiagramColumns } from '../../../../../src/api/types'
+
+const n = 5
+const columns: DiagramColumns = {
+  revision: 1, count: n, ids: ['LNS-1', 'LNS-2', 'LNS-3', 'LNS-4', 'LNS-5'], redshift: [0.1, 0.2, 0.3, 0.4, 0.5],
+  class: { overall: [0, 1, 2, 3, 5], nii: [0, 1, 2, 2, 3], sii: [0, 0, 1, 2, 3], oi: [0, 0, 1, 2, 3], whan: [0, 0, 1, 2, 5] },
+  classNames: {
+    overall: ['star-forming', 'composite', 'seyfert', 'liner', 'ambiguous', 'unclassified'],
+    nii: ['star-forming', 'composite', 'agn', 'unclassified'], sii: ['star-forming', 'seyfert', 'liner', 'unclassified'],
+    oi: ['star-forming', 'seyfert', 'liner', 'unclassified'], whan: ['star-forming', 'strong-agn', 'weak-agn', 'retired', 'passive', 'unclassified'],
+  },
+  x: { nii: [-0.5, -0.3, 0.1, 0.2, null], sii: [-0.4, -0.3, 0, 0.1, null], oi: [-1.5, -1.2, -0.5, -0.3, null] },
+  y: [-0.2, 0.1, 0.8, 0.2, null], xErr: { nii: [], sii: [], oi: [] }, yErr: [],
+  xLimit: { nii: [], sii: [], oi: [] }, yLimit: [], ewHalpha: [20, 10, 8, 2, null],
+}
+
+function mountTable(selection: number[] | null) {
+  return mount(SelectionTable, {
+    props: { projectId: 'p1', columns, selection },
+    global: { plugins: [createVuetify()], stubs: { RouterLink: RouterLinkStub } },
+  })
+}
+
+describe('SelectionTable', () => {
+  it('lists one row per selected galaxy with its ID and a link to it', () => {
+    const w = mountTable([1, 3])
+    const rows = w.findAll('[data-testid="selection-row"]')
+    expect(rows).toHaveLength(2)
+    expect(rows[0].text()).toContain('LNS-2')
+    expect(rows[1].text()).toContain('LNS-4')
+    expect(rows[1].text()).toContain('LINER')
+    expect(w.findAllComponents(RouterLinkStub)[0].props('to')).toBe('/projects/p1/galaxies/LNS-2')
+  })
+
+  it('explains how to select when nothing is selected', () => {
+    const w = mountTable(null)
+    expect(w.findAll('[data-testid="selection-row"]')).toHaveLength(0)
+    expect(w.text()).toMatch(/Drag a box or a lasso/)
+  })
+})

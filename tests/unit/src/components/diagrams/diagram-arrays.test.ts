@@ -1,0 +1,49 @@
+import { describe, expect, it } from 'vitest'
+import type { DiagramColumns } from '../../../../../src/api/types'
+import { limitSymbol, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
+import { CLASS_COLOURS } from '../../../../../src/utils/classes'
+
+const names = {
+  overall: ['star-forming', 'composite', 'seyfert', 'liner', 'ambiguous', 'unclassified'],
+  nii: ['star-forming', 'composite', 'agn', 'unclassified'],
+  sii: ['star-forming', 'seyfert', 'liner', 'unclassified'],
+  oi: ['star-forming', 'seyfert', 'liner', 'unclassified'],
+  whan: ['star-forming', 'strong-agn', 'weak-agn', 'retired', 'passive', 'unclassified'],
+}
+
+const cols: DiagramColumns = {
+  revision: 1, count: 3, ids: ['A', 'B', 'C'], redshift: [0.1, 0.2, null],
+  class: { overall: [0, 2, 5], nii: [0, 2, 3], sii: [0, 1, 3], oi: [0, 1, 3], whan: [0, 1, 5] },
+  classNames: names,
+  x: { nii: [-0.5, 0.1, null], sii: [-0.4, 0.0, null], oi: [-1.5, -0.5, null] },
+  y: [-0.2, 0.8, 0.1],
+  xErr: { nii: [0.02, 0.03, null], sii: [0.02, 0.03, null], oi: [0.05, 0.05, null] },
+  yErr: [0.02, 0.04, null],
+  xLimit: { nii: [0, 1, 0], sii: [0, 0, 0], oi: [0, -1, 0] },
+  yLimit: [0, 0, 1],
+  ewHalpha: [24, 8, -1],
+}
+
+describe('prepareDiagramArrays', () => {
+  const a = prepareDiagramArrays(cols)
+
+  it('turns missing values into NaN and counts what can be placed', () => {
+    expect(Array.from(a.panels.nii.x)).toEqual([-0.5, 0.1, NaN])
+    expect(a.panels.nii.placed).toBe(2)
+    // WHAN needs a positive EW for its log axis
+    expect(Number.isNaN(a.panels.whan.y[2])).toBe(true)
+    expect(a.panels.whan.placed).toBe(2)
+  })
+
+  it('marks limits with arrow-like symbols', () => {
+    expect(a.panels.nii.symbols).toEqual(['circle', 'triangle-left', 'triangle-down'])
+    expect(a.panels.oi.symbols[1]).toBe('triangle-right')
+    expect(limitSymbol(1, -1)).toBe('diamond')
+    expect(limitSymbol(0, -1)).toBe('triangle-up')
+  })
+
+  it('colours by class with the Okabe–Ito hues', () => {
+    expect(a.colours.overall).toEqual([CLASS_COLOURS['star-forming'], CLASS_COLOURS.seyfert, CLASS_COLOURS.unclassified])
+    expect(a.labels.whan).toEqual(['Star-forming', 'Strong AGN', 'Unclassified'])
+  })
+})

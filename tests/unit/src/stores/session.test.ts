@@ -1,0 +1,39 @@
+import { beforeEach, describe, expect, it, vi } from 'vitest'
+import { createPinia, setActivePinia } from 'pinia'
+import { ApiProblem } from '../../../../src/api/http'
+
+const me = vi.fn()
+const signIn = vi.fn()
+vi.mock('../../../../src/api/auth', () => ({ authApi: { me: () => me(), signIn: (...a: unknown[]) => signIn(...a), signOut: vi.fn(async () => undefined) } }))
+
+const { useSessionStore } = await import('../../../../src/stores/session')
+
+describe('session store', () => {
+  beforeEach(() => { setActivePinia(createPinia()); me.mockReset(); signIn.mockReset() })
+
+  it('treats 401 from /me as signed out, not as an error', async () => {
+    me.mockRejectedValue(new ApiProblem({ status: 401, title: 'Unauthorized' }))
+    const s = useSessionStore()
+    await expect(s.load()).resolves.toBeNull()
+    expect(s.loaded).toBe(true)
+    expect(s.signedIn).toBe(false)
+  })
+
+  it('asks the server once for concurrent loads and knows the project roles', async () => {
+    me.mockResolvedValue({ id: 'u1', email: 'o@example.org', name: 'O', isSiteAdmin: false, projects: [{ id: 'p1', name: 'P', role: 'viewer' }] })
+    const s = useSessionStore()
+    await Promise.all([s.load(), s.load()])
+    expect(me).toHaveBeenCalledTimes(1)
+    expect(s.roleIn('p1')).toBe('viewer')
+    expect(s.roleIn('p2')).toBeNull()
+  })
+
+  it('reloads the user after signing in', async () => {
+    signIn.mockResolvedValue({ user: {} })
+    me.mockResolvedValue({ id: 'u1', email: 'a@example.org', name: 'A', isSiteAdmin: true, projects: [] })
+    const s = useSessionStore()
+    await s.signIn('a@example.org', 'secret-password')
+    expect(signIn).toHaveBeenCalledWith('a@example.org', 'secret-password')
+    expect(s.isSiteAdmin).toBe(true)
+  })
+})
