@@ -23,21 +23,25 @@ const ke01 = (x: number) => hyperbolaY(KE01_NII, x)!
 function ratiosFor(pop: Population, rng: Rng) {
   switch (pop) {
     case 'star-forming': {
+      // the star-forming sequence: low [N II]/Hα with high [O III]/Hβ, and [S II], [O I] following it
       const x = uniform(rng, -1.3, -0.45)
-      return { x, y: Math.min(ka03(x) - Math.abs(normal(rng, 0.18, 0.12)), 0.9), xs: normal(rng, -0.45 + 0.25 * (x + 0.8), 0.08), xo: normal(rng, -1.75, 0.18), ew: uniform(rng, 8, 120) }
+      return { x, y: Math.min(ka03(x) - Math.abs(normal(rng, 0.2, 0.1)), 0.85), xs: normal(rng, 0.8 * x - 0.15, 0.06), xo: normal(rng, x - 0.95, 0.12), ew: uniform(rng, 8, 120) }
     }
     case 'composite': {
       const x = uniform(rng, -0.38, -0.12)
       const lo = ka03(x), hi = ke01(x)
-      return { x, y: lo + (hi - lo) * uniform(rng, 0.2, 0.8), xs: normal(rng, -0.45, 0.07), xo: normal(rng, -1.45, 0.15), ew: uniform(rng, 4, 25) }
+      return { x, y: lo + (hi - lo) * uniform(rng, 0.25, 0.75), xs: normal(rng, -0.5, 0.05), xo: normal(rng, -1.5, 0.1), ew: uniform(rng, 4, 25) }
     }
     case 'seyfert': {
-      const x = uniform(rng, -0.15, 0.35)
-      return { x, y: uniform(rng, Math.max(0.55, 1.05 * x + 0.6), 1.15), xs: uniform(rng, -0.35, 0.05), xo: uniform(rng, -1.0, -0.45), ew: uniform(rng, 7, 40) }
+      const x = uniform(rng, -0.1, 0.35)
+      const xs = uniform(rng, -0.38, -0.08)
+      const y = uniform(rng, Math.max(0.6, 1.05 * x + 0.55, 1.89 * xs + 0.86), 1.2)
+      return { x, y, xs, xo: uniform(rng, -1.0, Math.min(-0.5, (y - 1.4) / 1.18)), ew: uniform(rng, 7, 40) }
     }
     case 'liner': {
-      const x = uniform(rng, -0.1, 0.3)
-      return { x, y: uniform(rng, -0.3, Math.min(0.35, 1.05 * x + 0.3)), xs: uniform(rng, -0.2, 0.15), xo: uniform(rng, -0.85, -0.4), ew: uniform(rng, 0.3, 5.5) }
+      const x = uniform(rng, -0.05, 0.3)
+      const y = uniform(rng, 0.0, Math.min(0.4, 1.05 * x + 0.35))
+      return { x, y, xs: uniform(rng, -0.12, 0.2), xo: uniform(rng, -0.72, -0.35), ew: uniform(rng, 0.3, 5.5) }
     }
   }
 }
@@ -57,7 +61,7 @@ export function generateLanternSurvey(count = 2400, seed = 20261202): Array<Gala
     const r = ratiosFor(pop, rng)
     const z = uniform(rng, 0.01, 0.3)
     const ebv = Math.pow(rng.nextFloat(), 1.3) // more lightly reddened nuclei than heavily reddened ones
-    const hb = Math.exp(normal(rng, Math.log(pop === 'liner' ? 40 : 120), 0.7)) * Math.pow(0.05 / z, 1.2)
+    const hb = Math.exp(normal(rng, Math.log(pop === 'liner' ? 250 : 600), 0.6)) * Math.pow(0.05 / z, 0.8)
     const ne = Math.exp(normal(rng, Math.log(pop === 'seyfert' ? 400 : 120), 0.8))
     const intrinsic: Record<string, number> = {
       hbeta: hb, halpha: 2.86 * hb, hgamma: 0.468 * hb, hdelta: 0.259 * hb,

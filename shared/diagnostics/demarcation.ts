@@ -131,8 +131,10 @@ function quarticDdp(t: number, u: number): number {
   return 6 * t * (2 * t + u)
 }
 
-// Root of g on [lo, hi] (g(lo)·g(hi) ≤ 0) by bracketed Newton steps; `which` selects p or p′.
-function polyRoot(which: 0 | 1, lo: number, hi: number, u: number, av: number, a2: number): number {
+// Root of g on [lo, hi] (g(lo)·g(hi) ≤ 0) by bracketed Newton steps from `start`; `which` selects p or p′.
+// Starting at the end where g·g″ > 0 (Fourier's condition) makes Newton converge monotonically, so the
+// bisection fallback is rarely taken.
+function polyRoot(which: 0 | 1, lo: number, hi: number, start: number, u: number, av: number, a2: number): number {
   const glo = which === 0 ? quarticP(lo, u, av, a2) : quarticDp(lo, u, av)
   let a = lo
   let b = hi
@@ -140,7 +142,7 @@ function polyRoot(which: 0 | 1, lo: number, hi: number, u: number, av: number, a
     a = hi
     b = lo
   }
-  let t = 0.5 * (lo + hi)
+  let t = start
   for (let i = 0; i < 100; i++) {
     const g = which === 0 ? quarticP(t, u, av, a2) : quarticDp(t, u, av)
     if (g === 0) return t
@@ -148,8 +150,8 @@ function polyRoot(which: 0 | 1, lo: number, hi: number, u: number, av: number, a
     else b = t
     const d = which === 0 ? quarticDp(t, u, av) : quarticDdp(t, u)
     let next = t - g / d
+    if (Math.abs(next - t) <= 1e-12 * (1 + Math.abs(t))) return next
     if (!((next - a) * (next - b) < 0)) next = 0.5 * (a + b)
-    if (Math.abs(next - t) <= 1e-13 * (1 + Math.abs(t))) return next
     t = next
   }
   return t
@@ -159,11 +161,8 @@ function polyRoot(which: 0 | 1, lo: number, hi: number, u: number, av: number, a
 let bestD2 = Infinity
 let bestT = 1
 
-// If p changes sign on [lo, hi] (p is monotone there), refine its root and keep it if it is the closest point.
-function considerInterval(lo: number, hi: number, u: number, v: number, a: number, av: number, a2: number): void {
-  if (!(hi > lo)) return
-  if (quarticP(lo, u, av, a2) * quarticP(hi, u, av, a2) > 0) return
-  const t = polyRoot(0, lo, hi, u, av, a2)
+// Keep the stationary point t if it is the closest so far.
+function keepIfCloser(t: number, u: number, v: number, a: number): void {
   if (!(t > 0)) return
   const dx = u + t
   const dy = v + a / t
@@ -181,10 +180,11 @@ function considerInterval(lo: number, hi: number, u: number, v: number, a: numbe
  * propagation: σ_d² = (n_x σ_x)² + (n_y σ_y)²).
  *
  * Method: with the curve point (x0 − t, c − a/t), t > 0, the squared distance is stationary where
- * p(t) = t⁴ + u t³ − a v t − a² = 0 (u = x − x0, v = y − c). Every positive root is bracketed using the
- * sign of p″ (p has at most two turning points on t > 0) and refined by bracketed Newton steps; the
- * root with the smallest distance wins, so the global minimum is found even where several local
- * minima exist. Source: REFERENCE.md §2.6 (project convention); derivation, common practice.
+ * p(t) = t⁴ + u t³ − a v t − a² = 0 (u = x − x0, v = y − c). p is concave then convex (p″ = 6t(2t + u)),
+ * so it has at most three positive roots: the largest (a local minimum of the distance) is found by
+ * Newton steps from an upper bound in the convex part, and a smaller one in the concave part (the
+ * other local minimum) only when p's local maximum there is positive, by bracketed Newton steps. The
+ * closer of the two wins, so the global minimum is found even where two local minima exist. Source: REFERENCE.md §2.6 (project convention); derivation, common practice.
  *
  * @param curve  hyperbola (a > 0)
  * @param x      dex
@@ -200,28 +200,45 @@ export function signedDistanceToHyperbola(curve: HyperbolaCurve, x: number, y: n
   const av = a * v
   const a2 = a * a
   const bound = 1 + Math.max(Math.abs(u), Math.abs(av), a2)
-  // turning points of p on (0, bound)
-  let c1 = -1
-  let c2 = -1
-  if (u < 0) {
-    const tm = Math.min(-u / 2, bound)
-    const dp0 = -av
-    const dpm = quarticDp(tm, u, av)
-    if (dp0 > 0 && dpm < 0) c1 = polyRoot(1, 0, tm, u, av, a2)
-    if (dpm < 0) c2 = polyRoot(1, tm, bound, u, av, a2)
-  }
   bestD2 = Infinity
   bestT = 1
-  if (c1 > 0) {
-    considerInterval(0, c1, u, v, a, av, a2)
-    if (c2 > 0) {
-      considerInterval(c1, c2, u, v, a, av, a2)
-      considerInterval(c2, bound, u, v, a, av, a2)
-    } else considerInterval(c1, bound, u, v, a, av, a2)
-  } else if (c2 > 0) {
-    considerInterval(0, c2, u, v, a, av, a2)
-    considerInterval(c2, bound, u, v, a, av, a2)
-  } else considerInterval(0, bound, u, v, a, av, a2)
+  // p″ = 6t(2t + u): p is concave on (0, tm) and convex on (tm, ∞), tm = max(0, −u/2).
+  const tm = u < 0 ? Math.min(-u / 2, bound) : 0
+  // (1) the largest root, if it lies in the convex part: Newton from `bound` (p > 0, p″ > 0 there)
+  //     decreases monotonically onto it (Fourier's condition); leaving the convex part means there is none.
+  //     Start from the larger of the vertical (t = −u) and horizontal (t = −a/v) projections of the point
+  //     onto the curve when p > 0 there (still Fourier's condition), which is usually close to the root.
+  let t = bound
+  const guess = Math.max(-u, v < 0 ? -a / v : 0)
+  if (guess > tm && guess < bound && quarticP(guess, u, av, a2) > 0) t = guess
+  let largest = -1
+  for (let i = 0; i < 100; i++) {
+    const step = quarticP(t, u, av, a2) / quarticDp(t, u, av)
+    const next = t - step
+    if (!(next >= tm)) break
+    if (Math.abs(step) <= 1e-12 * (1 + next)) {
+      largest = next
+      break
+    }
+    t = next
+  }
+  if (largest > 0) keepIfCloser(largest, u, v, a)
+  // (2) a smaller root in the concave part (0, tm), where p first rises from p(0) = −a² < 0 to its local
+  //     maximum at c1 (p′(c1) = 0). On [0, tm], t³(t + u) ≤ 0, so p ≤ −a v·tm − a² there: skip when ≤ 0.
+  if (u < 0 && -av * tm - a2 > 0) {
+    const dpm = quarticDp(tm, u, av)
+    if (-av > 0 && dpm < 0) {
+      const c1 = polyRoot(1, 0, tm, 0.5 * tm, u, av, a2)
+      if (quarticP(c1, u, av, a2) > 0) keepIfCloser(polyRoot(0, 0, c1, 0.5 * c1, u, av, a2), u, v, a)
+    } else if (largest < 0) {
+      // p′ ≥ 0 throughout: the single root lies in the concave part
+      keepIfCloser(polyRoot(0, 0, tm, 0.5 * tm, u, av, a2), u, v, a)
+    }
+  }
+  if (bestD2 === Infinity) {
+    // not reached for a > 0 (p(0) < 0 < p(bound) always brackets a root); kept as a safe fallback
+    keepIfCloser(polyRoot(0, 0, bound, 0.5 * bound, u, av, a2), u, v, a)
+  }
   const sign = isBelowHyperbola(curve, x, y) ? -1 : 1
   const distance = sign * Math.sqrt(bestD2)
   if (out) {

@@ -1,5 +1,5 @@
 import { hashString, createRng, splitmix32 } from '../stats/rng.ts'
-import { percentileOfSorted } from '../stats/percentiles.ts'
+import { percentilesBySelection } from '../stats/percentiles.ts'
 import { LINE_COUNT } from '../lines/index.ts'
 import { LINE_DETECTED, LINE_UPPER_LIMIT } from '../stats/limits.ts'
 import {
@@ -34,6 +34,7 @@ export function galaxySeed(seed: number, galaxyId: string): number {
 let inputBuffer: KernelInput | null = null
 let outputBuffer: KernelOutput | null = null
 let columnBuffer = new Float64Array(0)
+const triple = new Float64Array(3)
 
 /**
  * Monte Carlo of one galaxy (REFERENCE.md §9): every flux detected in the nominal run is drawn from
@@ -95,10 +96,10 @@ export function monteCarloGalaxy(
       if (v === v) columnBuffer[m++] = v
     }
     if (m === 0) continue
-    const sorted = columnBuffer.subarray(0, m).sort()
-    percentiles[3 * c] = percentileOfSorted(sorted, 0.16)
-    percentiles[3 * c + 1] = percentileOfSorted(sorted, 0.5)
-    percentiles[3 * c + 2] = percentileOfSorted(sorted, 0.84)
+    percentilesBySelection(columnBuffer, m, triple)
+    percentiles[3 * c] = triple[0]
+    percentiles[3 * c + 1] = triple[1]
+    percentiles[3 * c + 2] = triple[2]
   }
   const classFractions: Record<string, Float64Array> = {}
   for (const name of CLASS_COLUMNS) {

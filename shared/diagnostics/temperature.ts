@@ -61,8 +61,9 @@ export function temperatureRatioLogSlope(model: TemperatureRatioModel, temperatu
 
 /**
  * Electron temperature from a temperature-sensitive ratio at fixed n_e, by bracketing root-finding on
- * 5000–30 000 K (the model decreases monotonically with T). The root is sought in u = 1/T, where
- * ln R is almost linear, with safeguarded Newton steps (`newtonBisect`).
+ * 5000–30 000 K (the model decreases monotonically with T, so the root is unique). The root is sought
+ * in u = 1/T, where ln R is almost linear: Newton steps from the exact zero-density root, with the
+ * safeguarded bracketing solver `newtonBisect` on [1/30 000, 1/5000] K⁻¹ as the fallback.
  * Source: inverse of Osterbrock & Ferland 2006, eqs. 5.4/5.5; search range REFERENCE.md §4.
  *
  * @param model   OIII_TEMPERATURE_MODEL or NII_TEMPERATURE_MODEL
@@ -72,23 +73,48 @@ export function temperatureRatioLogSlope(model: TemperatureRatioModel, temperatu
  * @returns T_e in K, or null when no root lies in 5000–30 000 K (`te-out-of-range`)
  * @example temperatureFromRatio(OIII_TEMPERATURE_MODEL, 200, 100) // ≈ 10180 (REFERENCE.md §4 [C])
  */
-export function temperatureFromRatio(model: TemperatureRatioModel, ratio: number, neCm3: number, guessK = 1e4): number | null {
+export function temperatureFromRatio(model: TemperatureRatioModel, ratio: number, neCm3: number, guessK = Number.NaN): number | null {
   if (!(ratio > 0)) return null
-  solverParams[0] = model.exponentK
-  solverParams[1] = model.densityCoefficient * neCm3
-  solverParams[2] = Math.log(ratio / model.coefficient)
-  const u = newtonBisect(lnRatioResidual, lnRatioResidualSlope, 1 / TEMPERATURE_MAX_K, 1 / TEMPERATURE_MIN_K, 1e-14, 100, solverParams, 1 / guessK)
-  return u === null ? null : 1 / u
+  const b = model.exponentK
+  const cn = model.densityCoefficient * neCm3
+  const lnTarget = Math.log(ratio / model.coefficient)
+  solverParams[0] = b
+  solverParams[1] = cn
+  solverParams[2] = lnTarget
+  const lo = 1 / TEMPERATURE_MAX_K
+  const hi = 1 / TEMPERATURE_MIN_K
+  // The residual is strictly increasing in u (B ≫ the density term for any n_e ≤ 10⁶ cm⁻³), so the
+  // root is unique: start from the guess or from the exact zero-density root u = ln(R/A)/B and take
+  // Newton steps; a root outside the bracket means "out of range". If the steps do not settle
+  // quickly, fall back to the safeguarded bracketing solver.
+  let u = guessK > 0 ? 1 / guessK : lnTarget / b
+  for (let i = 0; i < 6; i++) {
+    residualAndSlope(u, solverParams)
+    const step = residualScratch[0] / residualScratch[1]
+    u -= step
+    if (!(u > 0)) break
+    if (Math.abs(step) <= 1e-11 * u) return u >= lo && u <= hi ? 1 / u : null
+  }
+  const root = newtonBisect(lnRatioResidual, lnRatioResidualSlope, lo, hi, 1e-14, 100, solverParams)
+  return root === null ? null : 1 / root
 }
 
 // ln R(1/u) − ln R_obs + ln A as a function of u = 1/T; params [B, C·n_e, ln(R_obs/A)]
 const solverParams = new Float64Array(3)
+const residualScratch = new Float64Array(2)
+function residualAndSlope(u: number, p: Float64Array): void {
+  const s = Math.sqrt(u)
+  const q = 1 + p[1] * s
+  residualScratch[0] = p[0] * u - Math.log(q) - p[2]
+  residualScratch[1] = p[0] - (0.5 * p[1]) / s / q
+}
 function lnRatioResidual(u: number, p: Float64Array): number {
-  return p[0] * u - Math.log(1 + p[1] * Math.sqrt(u)) - p[2]
+  residualAndSlope(u, p)
+  return residualScratch[0]
 }
 function lnRatioResidualSlope(u: number, p: Float64Array): number {
-  const s = Math.sqrt(u)
-  return p[0] - (0.5 * p[1]) / s / (1 + p[1] * s)
+  residualAndSlope(u, p)
+  return residualScratch[1]
 }
 
 /** Result of the T_e / n_e iteration. */

@@ -46,3 +46,72 @@ export function percentiles16_50_84(values: ArrayLike<number>, scratch?: Float64
   const sorted = buf.subarray(0, m).sort()
   return { p16: percentileOfSorted(sorted, 0.16), p50: percentileOfSorted(sorted, 0.5), p84: percentileOfSorted(sorted, 0.84) }
 }
+
+/**
+ * Rearrange a[lo..hi] so that a[k] holds the value it would have if sorted, with smaller-or-equal
+ * values before it and greater-or-equal after (quickselect with median-of-three pivots).
+ * Source: Hoare 1961, Comm. ACM 4, 321 ("FIND", Algorithm 65); common practice.
+ *
+ * @param a   array (modified in place)
+ * @param k   target index, lo ≤ k ≤ hi
+ * @param lo  first index considered
+ * @param hi  last index considered
+ */
+export function selectInPlace(a: Float64Array, k: number, lo: number, hi: number): void {
+  while (hi > lo) {
+    const mid = (lo + hi) >>> 1
+    // median of three into a[mid]
+    if (a[mid] < a[lo]) swap(a, mid, lo)
+    if (a[hi] < a[lo]) swap(a, hi, lo)
+    if (a[hi] < a[mid]) swap(a, hi, mid)
+    const pivot = a[mid]
+    let i = lo
+    let j = hi
+    while (i <= j) {
+      while (a[i] < pivot) i++
+      while (a[j] > pivot) j--
+      if (i <= j) {
+        swap(a, i, j)
+        i++
+        j--
+      }
+    }
+    if (k <= j) hi = j
+    else if (k >= i) lo = i
+    else return
+  }
+}
+
+function swap(a: Float64Array, i: number, j: number): void {
+  const t = a[i]
+  a[i] = a[j]
+  a[j] = t
+}
+
+/**
+ * p16, p50, p84 of the first m values of `a` (all finite), with the same linear interpolation as
+ * `percentileOfSorted` (Hyndman & Fan 1996, definition 7) but in O(m) expected time by selection
+ * instead of sorting. `a` is reordered.
+ *
+ * @param a    values (reordered in place)
+ * @param m    number of values used, ≥ 1
+ * @param out  receives [p16, p50, p84]
+ * @example const o = new Float64Array(3); percentilesBySelection(Float64Array.of(5, 1, 4, 2, 3), 5, o) // o = [1.64, 3, 4.36]
+ */
+export function percentilesBySelection(a: Float64Array, m: number, out: Float64Array): void {
+  let from = 0
+  for (let q = 0; q < 3; q++) {
+    const h = PERCENTILE_POINTS[q] * (m - 1)
+    const k = Math.floor(h)
+    selectInPlace(a, k, from, m - 1)
+    let next = a[k]
+    if (k + 1 < m) {
+      next = Infinity
+      for (let j = k + 1; j < m; j++) if (a[j] < next) next = a[j]
+    }
+    out[q] = a[k] + (h - k) * (next - a[k])
+    from = k // later percentiles lie at or right of k
+  }
+}
+
+const PERCENTILE_POINTS = [0.16, 0.5, 0.84] as const

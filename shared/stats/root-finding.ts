@@ -51,9 +51,11 @@ export function newtonBisect(
     else b = x
     const d = fPrime(x, params)
     let next = x - fx / d
+    // a converged Newton step may land on the bracket end just moved to x: accept it before the safeguard
+    if (Math.abs(next - x) <= absTol) return next
     const inside = (next - a) * (next - b) < 0
     if (!inside || !Number.isFinite(next)) next = 0.5 * (a + b)
-    if (Math.abs(next - x) <= absTol || Math.abs(b - a) <= absTol) return next
+    if (Math.abs(b - a) <= absTol) return next
     x = next
   }
   return x

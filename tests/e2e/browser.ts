@@ -22,7 +22,13 @@ export async function shot(page: Page, name: string) {
 export function watch(page: Page, origin: string) {
   const problems: string[] = []
   page.on('pageerror', (e) => problems.push(`pageerror: ${e.message}`))
-  page.on('console', (m) => { if (m.type() === 'error') problems.push(`console: ${m.text()}`) })
+  // failed loads are judged by status below; the console repeats them without the URL
+  page.on('console', (m) => { if (m.type() === 'error' && !m.text().startsWith('Failed to load resource')) problems.push(`console: ${m.text()}`) })
+  page.on('response', (r) => {
+    const url = new URL(r.url())
+    // the app asks who is signed in before anyone is: that 401 is the expected answer
+    if (r.status() >= 400 && !(r.status() === 401 && url.pathname === '/api/v1/me')) problems.push(`${r.status()} ${r.request().method()} ${url.pathname}`)
+  })
   page.on('request', (r) => { if (!r.url().startsWith(origin) && !r.url().startsWith('data:') && !r.url().startsWith('blob:')) problems.push(`external request: ${r.url()}`) })
   return problems
 }

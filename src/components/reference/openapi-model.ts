@@ -21,7 +21,17 @@ export interface Operation {
 
 const METHODS = ['get', 'post', 'put', 'patch', 'delete', 'head', 'options'] as const
 
-export function resolveRef(doc: Schema, ref: string): Schema | undefined {
+/** `$defs` met on the way down: JSON Schema resolves `#/$defs/X` against the schema that declares it. */
+export type Defs = Record<string, Schema>
+
+export function withDefs(schema: Schema | undefined, defs: Defs = {}): Defs {
+  const own = schema?.$defs as Defs | undefined
+  return own ? { ...defs, ...own } : defs
+}
+
+export function resolveRef(doc: Schema, ref: string, defs: Defs = {}): Schema | undefined {
+  const local = /^#\/\$defs\/(.+)$/.exec(ref)
+  if (local && defs[local[1]]) return defs[local[1]]
   if (!ref.startsWith('#/')) return undefined
   let cur: unknown = doc
   for (const part of ref.slice(2).split('/')) {
@@ -91,16 +101,17 @@ export function groupByTag(ops: Operation[], doc: Schema): { tag: string; descri
 }
 
 /** Short type text for one schema: `string`, `integer ≥ 1`, `array of Galaxy`, `"a" | "b"`. */
-export function typeText(schema: Schema | undefined, doc: Schema): string {
+export function typeText(schema: Schema | undefined, doc: Schema, defs: Defs = {}): string {
   if (!schema) return 'any'
+  defs = withDefs(schema, defs)
   if (typeof schema.$ref === 'string') return schema.$ref.split('/').pop() ?? 'object'
   if (Array.isArray(schema.enum)) return schema.enum.map((v) => JSON.stringify(v)).join(' | ')
   if ('const' in schema) return JSON.stringify(schema.const)
   for (const k of ['anyOf', 'oneOf', 'allOf'] as const) {
-    if (Array.isArray(schema[k])) return (schema[k] as Schema[]).map((s) => typeText(s, doc)).join(k === 'allOf' ? ' & ' : ' | ')
+    if (Array.isArray(schema[k])) return (schema[k] as Schema[]).map((s) => typeText(s, doc, defs)).join(k === 'allOf' ? ' & ' : ' | ')
   }
   const t = Array.isArray(schema.type) ? (schema.type as string[]).join(' | ') : (schema.type as string | undefined)
-  if (t === 'array') return `array of ${typeText(schema.items as Schema | undefined, doc)}`
+  if (t === 'array') return `array of ${typeText(schema.items as Schema | undefined, doc, defs)}`
   const bounds: string[] = []
   if (schema.minimum !== undefined) bounds.push(`≥ ${schema.minimum}`)
   if (schema.exclusiveMinimum !== undefined) bounds.push(`> ${schema.exclusiveMinimum}`)
@@ -110,22 +121,23 @@ export function typeText(schema: Schema | undefined, doc: Schema): string {
 }
 
 /** The schema to show children of, following one `$ref` and array items. */
-export function expandable(schema: Schema | undefined, doc: Schema): Schema | undefined {
+export function expandable(schema: Schema | undefined, doc: Schema, defs: Defs = {}): Schema | undefined {
   let s = schema
-  for (let i = 0; i < 3 && s; i++) {
-    if (typeof s.$ref === 'string') { s = resolveRef(doc, s.$ref); continue }
+  for (let i = 0; i < 4 && s; i++) {
+    defs = withDefs(s, defs)
+    if (typeof s.$ref === 'string') { s = resolveRef(doc, s.$ref, defs); continue }
     if (s.type === 'array' && s.items) { s = s.items as Schema; continue }
     break
   }
   return s
 }
 
-export function children(schema: Schema | undefined, doc: Schema): { name: string; schema: Schema; required: boolean }[] {
-  const s = expandable(schema, doc)
+export function children(schema: Schema | undefined, doc: Schema, defs: Defs = {}): { name: string; schema: Schema; required: boolean }[] {
+  const s = expandable(schema, doc, defs)
   if (!s) return []
   const req = new Set((s.required as string[] | undefined) ?? [])
   const props = { ...((s.properties ?? {}) as Record<string, Schema>) }
-  for (const part of ((s.allOf ?? []) as Schema[])) Object.assign(props, (expandable(part, doc)?.properties ?? {}) as Record<string, Schema>)
+  for (const part of ((s.allOf ?? []) as Schema[])) Object.assign(props, (expandable(part, doc, defs)?.properties ?? {}) as Record<string, Schema>)
   const out = Object.entries(props).map(([name, schema]) => ({ name, schema, required: req.has(name) }))
   if (s.additionalProperties && typeof s.additionalProperties === 'object') out.push({ name: '<key>', schema: s.additionalProperties as Schema, required: false })
   return out

@@ -1,0 +1,145 @@
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
+import type { Browser, Page } from 'playwright-core'
+import { parse } from 'csv-parse/sync'
+import { DEMO_ACCOUNTS } from '../../server/seed/demo-accounts.ts'
+import { launchChromium, shot, watch } from './browser.ts'
+
+const base = inject('baseUrl')
+let browser: Browser
+beforeAll(async () => { browser = await launchChromium() })
+afterAll(async () => { await browser?.close() })
+
+const account = (role: 'owner' | 'analyst' | 'viewer') => DEMO_ACCOUNTS.find((a) => a.role === role)!
+
+async function signIn(role: 'owner' | 'analyst' | 'viewer') {
+  const context = await browser.newContext({ viewport: { width: 1600, height: 1000 }, acceptDownloads: true })
+  const page = await context.newPage()
+  const problems = watch(page, base)
+  await page.goto(`${base}/sign-in`)
+  await page.getByTestId('sign-in-email').locator('input').fill(account(role).email)
+  await page.getByTestId('sign-in-password').locator('input').fill(account(role).password)
+  await page.getByTestId('sign-in-submit').click()
+  await page.waitForURL(/\/projects/)
+  const projects = await (await page.request.get(`${base}/api/v1/projects`)).json()
+  const demo = projects.items.find((p: { name: string }) => p.name === 'Lantern Nuclei Survey')
+  return { page, problems, projectId: demo.id as string, context }
+}
+const csrfOf = async (page: Page) => (await page.context().cookies()).find((c) => c.name === 'rg_csrf')!.value
+
+describe('a scientist\'s day in the dashboard', () => {
+  it('signs in and sees the demo project', async () => {
+    const { page, problems } = await signIn('owner')
+    await expect.poll(() => page.getByText('Lantern Nuclei Survey').first().isVisible()).toBe(true)
+    expect(await page.evaluate(() => document.fonts.check('16px Roboto'))).toBe(true)
+    await shot(page, 'e2e-projects')
+    expect(problems).toEqual([])
+  })
+
+  it('uploads a CSV through the wizard and finds its galaxies in the table', async () => {
+    const { page, projectId, problems } = await signIn('analyst')
+    await page.goto(`${base}/projects/${projectId}/intake`)
+    const csv = ['galaxy_id,z,halpha_flux,halpha_err,hbeta_flux,hbeta_err,nii_6584_flux,nii_6584_err,oiii_5007_flux,oiii_5007_err',
+      'E2E-0000001,0.04,300,6,80,3,60,3,50,3', 'E2E-0000002,0.06,300,6,90,3,330,6,800,10', 'E2E-0000003,0.08,280,6,75,3,70,3,40,3'].join('\n')
+    await page.getByTestId('intake-file').setInputFiles({ name: 'e2e-upload.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) })
+    await page.getByTestId('mapping-validate').click()
+    await page.getByTestId('mapping-commit').click()
+    await expect.poll(() => page.getByTestId('intake-result').isVisible(), { timeout: 20_000 }).toBe(true)
+    await shot(page, 'e2e-intake-done')
+    await page.goto(`${base}/projects/${projectId}/galaxies`)
+    await page.getByTestId('filter-q').locator('input').fill('E2E-')
+    await page.getByTestId('filter-q').locator('input').press('Enter')
+    await expect.poll(async () => (await page.getByTestId('galaxy-table').innerText()).includes('E2E-0000002'), { timeout: 20_000 }).toBe(true)
+    const text = await page.getByTestId('galaxy-table').innerText()
+    expect(text).toContain('E2E-0000001')
+    expect(text).toContain('E2E-0000003')
+    await shot(page, 'e2e-galaxies')
+    expect(problems).toEqual([])
+  })
+
+  it('selects a group with a box: the same galaxies are highlighted in every panel and listed below', async () => {
+    const { page, projectId, problems } = await signIn('viewer')
+    await page.goto(`${base}/projects/${projectId}/diagrams`)
+    for (const k of ['nii', 'sii', 'oi', 'whan']) await page.locator(`[data-testid="diagram-${k}"][data-ready="true"]`).waitFor({ timeout: 60_000 })
+    const drag = await page.getByTestId('diagram-nii').locator('.nsewdrag').first().boundingBox()
+    expect(drag).not.toBeNull()
+    // a box over the star-forming branch, left-middle of the [N II] panel
+    await page.mouse.move(drag!.x + drag!.width * 0.25, drag!.y + drag!.height * 0.3)
+    await page.mouse.down()
+    await page.mouse.move(drag!.x + drag!.width * 0.55, drag!.y + drag!.height * 0.65, { steps: 6 })
+    await page.mouse.up()
+    await expect.poll(async () => Number(await page.getByTestId('selection-count').textContent()), { timeout: 10_000 }).toBeGreaterThan(0)
+    const count = Number(await page.getByTestId('selection-count').textContent())
+    const selected = await page.evaluate(() => ['nii', 'sii', 'oi', 'whan'].map((k) => {
+      const gd = document.querySelector(`[data-testid="diagram-${k}"] .js-plotly-plot`) as unknown as { data: Array<{ selectedpoints?: number[]; customdata?: unknown[] }> } | null
+      const pts = gd?.data?.[0]?.selectedpoints
+      return Array.isArray(pts) ? pts.length : -1
+    }))
+    // each panel highlights the selection; galaxies without a position on a diagram cannot be drawn there
+    for (const n of selected) { expect(n).toBeGreaterThan(0); expect(n).toBeLessThanOrEqual(count) }
+    const rows = await page.getByTestId('selection-row').count()
+    expect(rows).toBeGreaterThan(0)
+    await shot(page, 'e2e-diagrams-selection')
+    // open a galaxy from the selection table
+    const firstId = (await page.getByTestId('selection-row').first().locator('a').innerText()).trim()
+    await page.getByTestId('selection-row').first().locator('a').click()
+    await page.waitForURL(/\/galaxies\/[^/]+$/)
+    expect(decodeURIComponent(page.url())).toContain(firstId)
+    await page.getByTestId('flux-table').waitFor()
+    await expect.poll(() => page.getByTestId('diagnostics-panel').isVisible()).toBe(true)
+    await shot(page, 'e2e-galaxy')
+    expect(problems).toEqual([])
+  })
+
+  it('exports CSV with the project\'s rows and values', async () => {
+    const { page, projectId } = await signIn('viewer')
+    await page.goto(`${base}/projects/${projectId}/exports`)
+    const href = await page.getByTestId('export-download-csv').getAttribute('href')
+    expect(href).toContain(`/api/v1/projects/${projectId}/exports/galaxies.csv`)
+    const res = await page.request.get(new URL(href!, base).toString())
+    expect(res.status()).toBe(200)
+    const text = await res.text()
+    expect(text).toMatch(/# assumptions revision: \d+/)
+    const rows = parse(text.split('\n').filter((l) => !l.startsWith('#')).join('\n'), { columns: true }) as Array<Record<string, string>>
+    const project = await (await page.request.get(`${base}/api/v1/projects/${projectId}`)).json()
+    expect(rows.length).toBe(project.galaxyCount)
+    const one = rows.find((r) => r.galaxy_id === 'E2E-0000002')
+    if (one) expect(Number(one.niiHa)).toBeCloseTo(Math.log10(330 / 300), 6)
+    const api = await (await page.request.get(`${base}/api/v1/projects/${projectId}/galaxies/${encodeURIComponent(rows[0].galaxy_id)}`)).json()
+    expect(rows[0].class_overall).toBe(api.results.classes.overall)
+    await shot(page, 'e2e-exports')
+  })
+
+  it('creates an API key (shown once) and revokes it; the key stops working', async () => {
+    const { page } = await signIn('analyst')
+    await page.goto(`${base}/keys`)
+    await page.getByTestId('key-create-open').click()
+    await page.getByTestId('key-name').locator('input').fill('e2e pipeline')
+    await page.getByTestId('key-create-submit').click()
+    const key = (await page.getByTestId('key-secret').textContent())!.trim()
+    expect(key).toMatch(/^rg_/)
+    await shot(page, 'e2e-key-created')
+    const fresh = await browser.newContext()
+    expect((await fresh.request.get(`${base}/api/v1/me`, { headers: { authorization: `Bearer ${key}` } })).status()).toBe(200)
+    await page.getByTestId('key-done').click()
+    await page.getByTestId('key-row-e2e pipeline').getByTestId('key-revoke').click()
+    await page.getByTestId('key-revoke-confirm').click()
+    await expect.poll(async () => (await fresh.request.get(`${base}/api/v1/me`, { headers: { authorization: `Bearer ${key}` } })).status()).toBe(401)
+    await fresh.close()
+  })
+
+  it('a viewer sees no upload or assumption controls, and the server refuses them too', async () => {
+    const { page, projectId } = await signIn('viewer')
+    await page.goto(`${base}/projects/${projectId}/intake`)
+    await page.waitForLoadState('networkidle')
+    expect(await page.getByTestId('intake-file').count()).toBe(0)
+    await page.goto(`${base}/projects/${projectId}/assumptions`)
+    await page.waitForLoadState('networkidle')
+    expect(await page.getByTestId('assumptions-save').count()).toBe(0)
+    await shot(page, 'e2e-viewer-assumptions')
+    const csrf = await csrfOf(page)
+    const put = await page.request.put(`${base}/api/v1/projects/${projectId}/assumptions`, { headers: { 'x-csrf-token': csrf }, data: { settings: {} } })
+    expect(put.status()).toBe(403)
+    const batch = await page.request.post(`${base}/api/v1/projects/${projectId}/galaxies/batch`, { headers: { 'x-csrf-token': csrf }, data: { galaxies: [{ id: 'V-1', lines: {} }] } })
+    expect(batch.status()).toBe(403)
+  })
+})
