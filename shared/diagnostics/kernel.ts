@@ -10,7 +10,7 @@ import { FLAG_WORDS, flagBit, METALLICITY_KEYS } from '../flags.ts'
 import { LINE_COUNT, LINE_IDS, LINES } from '../lines/index.ts'
 import { linearisedLogVariance, linearisedLogVarianceOfLine, LN10, ROLE_DUST_DENOMINATOR, ROLE_DUST_NUMERATOR, ROLE_OTHER } from '../stats/error-propagation.ts'
 import {
-  LINE_ABSENT, LINE_DETECTED, LINE_NONPOSITIVE, LINE_UPPER_LIMIT, RATIO_EXACT, RATIO_LOWER, RATIO_NONE, RATIO_UPPER,
+  LINE_ABSENT, LINE_DETECTED, LINE_NONPOSITIVE, LINE_UPPER_LIMIT, RATIO_EXACT, RATIO_NONE,
   ratioLimitStatus, stateOfSum,
 } from '../stats/limits.ts'
 import { balmerCoefficient, INTRINSIC_HGAMMA_HBETA_CASE_B } from './balmer-decrement.ts'
@@ -42,9 +42,10 @@ export const HA = 0, HB = 1, HG = 2, HD = 3, O3_5007 = 4, O3_4959 = 5, O3_4363 =
 export const OIII_5007_TO_4959 = 2.98
 /** Fixed [N II] 6584/6548 used when 6548 is missing (≈ 3.05, REFERENCE.md §4 — from memory, verify). */
 export const NII_6584_TO_6548 = 3.05
-/** n_e assumed... see temperature.ts; the D16 index weight of log([N II]/Hα) (Dopita et al. 2016, eq. 1). */
+/** Weight of log([N II]/Hα) in the D16 index y (Dopita et al. 2016, Ap&SS 361, 61, eq. 1). */
 const D16_NII_HA_WEIGHT = 0.264
 
+/** Ratio keys of the contract in kernel order, and their indices. */
 export const RATIO_KEYS: readonly RatioKey[] = ['niiHa', 'oiiiHb', 'siiHa', 'oiHa', 'siiDoublet', 'oiiDoublet']
 export const R_NII = 0, R_OIII = 1, R_SII = 2, R_OI = 3, R_SIID = 4, R_OIID = 5
 
@@ -63,6 +64,7 @@ export const FLOAT_COLUMNS: readonly string[] = [
   'sfr.dl', 'sfr.lHa', 'sfr.lHaError', 'sfr.k98', 'sfr.k98Error', 'sfr.ke12', 'sfr.ke12Error',
   'bh.mass', 'bh.log10Mass', 'bh.log10MassError', 'bh.lBroad',
 ]
+/** Number of float output columns. */
 export const FLOAT_COLUMN_COUNT = FLOAT_COLUMNS.length
 /** Column number of every float column, by name. */
 export const FC: Readonly<Record<string, number>> = Object.fromEntries(FLOAT_COLUMNS.map((n, i) => [n, i]))
@@ -88,12 +90,14 @@ export const INT_COLUMNS: readonly string[] = [
   'nii.nearest', // 0 none, 1 ka03, 2 ke01
   'density.sii', 'density.oii', // 0 ok, 1 low, 2 high, 3 not computed
 ]
+/** Number of Int8 output columns, and the column number of each by name. */
 export const INT_COLUMN_COUNT = INT_COLUMNS.length
 export const IC: Readonly<Record<string, number>> = Object.fromEntries(INT_COLUMNS.map((n, i) => [n, i]))
 const I_SOURCE = IC['source'], I_STATE0 = IC[`state:${LINE_IDS[0]}`], I_LIMIT0 = IC[`limit:${RATIO_KEYS[0]}`]
 const I_NII = IC['class.nii'], I_SII = IC['class.sii'], I_OI = IC['class.oi'], I_WHAN = IC['class.whan']
 const I_OVERALL = IC['class.overall'], I_SUB = IC['class.niiSubtype'], I_NEAR = IC['nii.nearest']
 const I_DSII = IC['density.sii'], I_DOII = IC['density.oii']
+/** Density status code: the doublet was not measured (block null). */
 export const DENSITY_NOT_COMPUTED = 3
 
 /** Flag words per row: FLAG_WORDS fixed-flag words, then one word with the `below-min-snr` line bits. */
@@ -222,6 +226,7 @@ export function prepareSettings(settings: DiagnosticSettings): PreparedSettings 
   }
 }
 
+/** How a kernel run treats its input (deterministic run or Monte Carlo draws). */
 export interface KernelOptions {
   /**
    * true (deterministic runs): measured lines with F/σ < minSnr become upper limits minSnr·σ.
@@ -709,4 +714,3 @@ function metallicity(
 /** Float columns that are values (get Monte Carlo percentiles), as a 0/1 mask by column. */
 export const FLOAT_COLUMN_IS_VALUE: Uint8Array = Uint8Array.from(FLOAT_COLUMNS, (n) => (/Error(:|$)/.test(n) ? 0 : 1))
 
-export { RATIO_LOWER, RATIO_UPPER }

@@ -64,7 +64,10 @@ export const METALLICITY_CALIBRATIONS: readonly MetallicityCalibration[] = [
   { key: 'n2M13', index: 'n2', value: n2M13, slope: () => 0.462, inRange: (n) => n > -1.6 && n < -0.2, source: `${M13}, eq. 4` },
   { key: 'o3n2M13', index: 'o3n2', value: o3n2M13, slope: () => -0.214, inRange: (i) => i > -1.1 && i < 1.7, source: `${M13}, eq. 2` },
   {
-    key: 'n2s2haD16', index: 'n2s2ha', value: n2s2haD16, slope: (y) => 1 + 2.25 * Math.pow(y + 0.3, 4),
+    key: 'n2s2haD16', index: 'n2s2ha', value: n2s2haD16, slope: (y) => {
+      const s = (y + 0.3) * (y + 0.3)
+      return 1 + 2.25 * s * s
+    },
     inRange: (y) => n2s2haD16(y) <= 9.05, source: `${D16}, eq. 2`,
   },
 ]

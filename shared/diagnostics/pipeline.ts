@@ -78,6 +78,17 @@ const EXTINCTION_FLAGS = new Set(['balmer-below-intrinsic', 'balmer-from-hgamma'
 const METALLICITY_FLAGS = new Set(['metallicity-not-star-forming', ...METALLICITY_KEYS.flatMap((k) => [`${k}-out-of-range`, `${k}-needs-detections`])])
 const SFR_FLAGS = new Set(['sfr-not-star-forming', 'sfr-not-dereddened', 'sfr-needs-halpha', 'luminosity-needs-redshift'])
 
+// column numbers resolved once (building names per galaxy would allocate strings in the hot loop)
+const COL_STATE = LINE_IDS.map((id) => IC[`state:${id}`])
+const COL_FLUX = LINE_IDS.map((id) => FC[`flux:${id}`])
+const COL_FLUX_ERROR = LINE_IDS.map((id) => FC[`fluxError:${id}`])
+const COL_RATIO = RATIO_KEYS.map((k) => FC[`ratio:${k}`])
+const COL_RATIO_ERROR = RATIO_KEYS.map((k) => FC[`ratioError:${k}`])
+const COL_RATIO_LIMIT = RATIO_KEYS.map((k) => IC[`limit:${k}`])
+const COL_METALLICITY = METALLICITY_KEYS.map((k) => FC[`z.${k}`])
+const COL_METALLICITY_ERROR = METALLICITY_KEYS.map((k) => FC[`z.${k}Error`])
+const METALLICITY_ERROR_KEYS = METALLICITY_KEYS.map((k) => `${k}Error`)
+
 class RowReader {
   readonly fo: number
   readonly io: number
@@ -85,19 +96,18 @@ class RowReader {
     this.fo = row * FLOAT_COLUMN_COUNT
     this.io = row * INT_COLUMN_COUNT
   }
-  num(column: string): number | null {
-    const v = this.out.float[this.fo + FC[column]]
+  num(c: number): number | null {
+    const v = this.out.float[this.fo + c]
     return Number.isFinite(v) ? v : null
   }
-  int(column: string): number {
-    return this.out.int[this.io + IC[column]]
+  int(c: number): number {
+    return this.out.int[this.io + c]
   }
-  /** target[key] = value of the column, plus `<key>Percentiles` in Monte Carlo runs. */
-  put(target: Record<string, unknown>, key: string, column: string, scale = 1): number | null {
-    const v = this.num(column)
+  /** target[key] = value of float column c, plus `<key>Percentiles` in Monte Carlo runs. */
+  put(target: Record<string, unknown>, key: string, c: number, scale = 1): number | null {
+    const v = this.num(c)
     target[key] = v === null ? null : v * scale
     if (v !== null && this.mc) {
-      const c = FC[column]
       if (FLOAT_COLUMN_IS_VALUE[c]) {
         const p = this.mc.percentiles
         if (Number.isFinite(p[3 * c])) target[`${key}Percentiles`] = { p16: p[3 * c] * scale, p50: p[3 * c + 1] * scale, p84: p[3 * c + 2] * scale }
@@ -129,15 +139,15 @@ function probabilities<T extends string>(names: readonly T[], fractions: Float64
 function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelOutput, prep: PreparedSettings, mc: MonteCarloSummary | null): GalaxyResult {
   const r = new RowReader(out, i, mc)
   const flags = rowFlags(out, i)
-  const sourceCode = r.int('source')
+  const sourceCode = r.int(IC['source'])
 
   const extinction: Record<string, unknown> = {}
-  r.put(extinction, 'balmerDecrement', 'balmerDecrement')
-  r.put(extinction, 'balmerDecrementError', 'balmerDecrementError')
-  const ebv = r.put(extinction, 'ebv', 'ebv')
-  r.put(extinction, 'ebvError', 'ebvError')
-  r.put(extinction, 'av', 'av')
-  r.put(extinction, 'avError', 'avError')
+  r.put(extinction, 'balmerDecrement', FC['balmerDecrement'])
+  r.put(extinction, 'balmerDecrementError', FC['balmerDecrementError'])
+  const ebv = r.put(extinction, 'ebv', FC['ebv'])
+  r.put(extinction, 'ebvError', FC['ebvError'])
+  r.put(extinction, 'av', FC['av'])
+  r.put(extinction, 'avError', FC['avError'])
   extinction.source = sourceCode === 1 ? 'halpha-hbeta' : sourceCode === 2 ? 'hgamma-hbeta' : null
   extinction.flags = flags.filter((f) => EXTINCTION_FLAGS.has(f))
 
@@ -145,16 +155,16 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
   for (let l = 0; l < LINE_COUNT; l++) {
     if (input.kind[l][i] === 0) continue
     const id = LINE_IDS[l]
-    const state = r.int(`state:${id}`)
+    const state = r.int(COL_STATE[l])
     const entry: Record<string, unknown> = {}
     if (state === LINE_DETECTED) {
-      r.put(entry, 'flux', `flux:${id}`)
-      r.put(entry, 'error', `fluxError:${id}`)
+      r.put(entry, 'flux', COL_FLUX[l])
+      r.put(entry, 'error', COL_FLUX_ERROR[l])
       // A_λ = k(λ)·E(B−V): percentiles scale with those of E(B−V) (k > 0)
-      r.put(entry, 'aLambda', 'ebv', prep.k[l])
+      r.put(entry, 'aLambda', FC['ebv'], prep.k[l])
       if (ebv === null) entry.aLambda = null
     } else if (state === LINE_UPPER_LIMIT) {
-      r.put(entry, 'upperLimit', `flux:${id}`)
+      r.put(entry, 'upperLimit', COL_FLUX[l])
     } else continue
     dereddened[id] = entry as DereddenedLine
   }
@@ -164,9 +174,9 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
   const ratioLimits: Partial<Record<RatioKey, 'upper' | 'lower'>> = {}
   for (let k = 0; k < RATIO_KEYS.length; k++) {
     const key = RATIO_KEYS[k]
-    r.put(ratios, key, `ratio:${key}`)
-    ratioErrors[key] = r.num(`ratioError:${key}`)
-    const lim = r.int(`limit:${key}`)
+    r.put(ratios, key, COL_RATIO[k])
+    ratioErrors[key] = r.num(COL_RATIO_ERROR[k])
+    const lim = r.int(COL_RATIO_LIMIT[k])
     if (lim === RATIO_UPPER || lim === RATIO_LOWER) {
       const kind = lim === RATIO_UPPER ? 'upper' : 'lower'
       ratioLimits[key] = kind
@@ -174,13 +184,13 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
     }
   }
 
-  const subtype = r.int('class.niiSubtype')
+  const subtype = r.int(IC['class.niiSubtype'])
   const classes: ClassesResult = {
-    nii: className(r.int('class.nii')) as NiiClass,
-    sii: className(r.int('class.sii')) as SiiOiClass,
-    oi: className(r.int('class.oi')) as SiiOiClass,
-    whan: className(r.int('class.whan')) as WhanClass,
-    overall: className(r.int('class.overall')) as OverallClass,
+    nii: className(r.int(IC['class.nii'])) as NiiClass,
+    sii: className(r.int(IC['class.sii'])) as SiiOiClass,
+    oi: className(r.int(IC['class.oi'])) as SiiOiClass,
+    whan: className(r.int(IC['class.whan'])) as WhanClass,
+    overall: className(r.int(IC['class.overall'])) as OverallClass,
     niiSubtype: subtype === CLASS_SEYFERT ? 'seyfert' : subtype === CLASS_LINER ? 'liner' : null,
   }
   if (mc) {
@@ -194,75 +204,75 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
   }
 
   let nii: NiiDistances | null = null
-  const nearest = r.int('nii.nearest')
+  const nearest = r.int(IC['nii.nearest'])
   if (nearest !== 0) {
     const d: Record<string, unknown> = {}
-    for (const key of ['ka03', 'ka03Error', 'ke01', 'ke01Error', 's07', 's07Error']) r.put(d, key, `nii.${key}`)
+    for (const key of ['ka03', 'ka03Error', 'ke01', 'ke01Error', 's07', 's07Error']) r.put(d, key, FC[`nii.${key}`])
     d.nearest = nearest === 1 ? 'ka03' : 'ke01'
-    r.put(d, 'nearestDistance', 'nii.nearestDistance')
+    r.put(d, 'nearestDistance', FC['nii.nearestDistance'])
     nii = d as NiiDistances
   }
   const seyfertLiner = (diagram: 'sii' | 'oi'): SeyfertLinerDistances | null => {
-    if (r.num(`${diagram}.ke01`) === null) return null
+    if (r.num(FC[`${diagram}.ke01`]) === null) return null
     const d: Record<string, unknown> = {}
-    for (const key of ['ke01', 'ke01Error', 'ke06', 'ke06Error']) r.put(d, key, `${diagram}.${key}`)
+    for (const key of ['ke01', 'ke01Error', 'ke06', 'ke06Error']) r.put(d, key, FC[`${diagram}.${key}`])
     d.nearest = 'ke01'
-    r.put(d, 'nearestDistance', `${diagram}.ke01`)
+    r.put(d, 'nearestDistance', FC[`${diagram}.ke01`])
     return d as SeyfertLinerDistances
   }
 
   const densityBlock = (which: 'sii' | 'oii', ratioKey: RatioKey): DensityResult | null => {
-    const status = r.int(`density.${which}`)
+    const status = r.int(IC[`density.${which}`])
     if (status === DENSITY_NOT_COMPUTED) return null
     const d: Record<string, unknown> = {}
-    r.put(d, 'ne', `density.${which}.ne`)
-    r.put(d, 'neError', `density.${which}.neError`)
-    r.put(d, 'ratio', `ratio:${ratioKey}`)
-    d.ratioError = r.num(`ratioError:${ratioKey}`)
+    r.put(d, 'ne', FC[`density.${which}.ne`])
+    r.put(d, 'neError', FC[`density.${which}.neError`])
+    r.put(d, 'ratio', FC[`ratio:${ratioKey}`])
+    d.ratioError = r.num(FC[`ratioError:${ratioKey}`])
     d.flag = status === 1 ? 'low-density-limit' : status === 2 ? 'high-density-limit' : null
     return d as DensityResult
   }
 
   const temperatureBlock = (ion: 'oiii' | 'nii'): TemperatureResult | null => {
     const own = flags.filter((f) => f.startsWith('te-') && f.endsWith(`:${ion}`)).map((f) => f.slice(0, -(ion.length + 1)))
-    const te = r.num(`te.${ion}`)
+    const te = r.num(FC[`te.${ion}`])
     if (te === null && own.length === 0) return null
     const d: Record<string, unknown> = {}
-    r.put(d, 'te', `te.${ion}`)
-    r.put(d, 'teError', `te.${ion}Error`)
-    r.put(d, 'neUsed', `te.${ion}.neUsed`)
+    r.put(d, 'te', FC[`te.${ion}`])
+    r.put(d, 'teError', FC[`te.${ion}Error`])
+    r.put(d, 'neUsed', FC[`te.${ion}.neUsed`])
     d.flags = own
     return d as TemperatureResult
   }
 
   const metallicity: Record<string, unknown> = {}
-  for (const key of METALLICITY_KEYS) {
-    r.put(metallicity, key, `z.${key}`)
-    r.put(metallicity, `${key}Error`, `z.${key}Error`)
+  for (let m = 0; m < METALLICITY_KEYS.length; m++) {
+    r.put(metallicity, METALLICITY_KEYS[m], COL_METALLICITY[m])
+    r.put(metallicity, METALLICITY_ERROR_KEYS[m], COL_METALLICITY_ERROR[m])
   }
   metallicity.flags = flags.filter((f) => METALLICITY_FLAGS.has(f))
 
   const kennicutt98 = prep.settings.sfrCalibration === 'kennicutt98'
   const sfr: Record<string, unknown> = {}
-  r.put(sfr, 'luminosityDistanceMpc', 'sfr.dl')
-  r.put(sfr, 'luminosityHalpha', 'sfr.lHa')
-  r.put(sfr, 'luminosityHalphaError', 'sfr.lHaError')
-  r.put(sfr, 'sfrHalpha', kennicutt98 ? 'sfr.k98' : 'sfr.ke12')
-  r.put(sfr, 'sfrHalphaError', kennicutt98 ? 'sfr.k98Error' : 'sfr.ke12Error')
-  r.put(sfr, 'sfrK98', 'sfr.k98')
-  r.put(sfr, 'sfrK98Error', 'sfr.k98Error')
-  r.put(sfr, 'sfrKe12', 'sfr.ke12')
-  r.put(sfr, 'sfrKe12Error', 'sfr.ke12Error')
+  r.put(sfr, 'luminosityDistanceMpc', FC['sfr.dl'])
+  r.put(sfr, 'luminosityHalpha', FC['sfr.lHa'])
+  r.put(sfr, 'luminosityHalphaError', FC['sfr.lHaError'])
+  r.put(sfr, 'sfrHalpha', FC[kennicutt98 ? 'sfr.k98' : 'sfr.ke12'])
+  r.put(sfr, 'sfrHalphaError', FC[kennicutt98 ? 'sfr.k98Error' : 'sfr.ke12Error'])
+  r.put(sfr, 'sfrK98', FC['sfr.k98'])
+  r.put(sfr, 'sfrK98Error', FC['sfr.k98Error'])
+  r.put(sfr, 'sfrKe12', FC['sfr.ke12'])
+  r.put(sfr, 'sfrKe12Error', FC['sfr.ke12Error'])
   sfr.imf = kennicutt98 ? 'salpeter' : 'kroupa'
   sfr.flags = flags.filter((f) => SFR_FLAGS.has(f))
 
   let blackHoleMass: BlackHoleResult | null = null
-  if (r.num('bh.mass') !== null) {
+  if (r.num(FC['bh.mass']) !== null) {
     const d: Record<string, unknown> = {}
-    r.put(d, 'massSolar', 'bh.mass')
-    r.put(d, 'log10Mass', 'bh.log10Mass')
-    r.put(d, 'log10MassError', 'bh.log10MassError')
-    r.put(d, 'luminosityBroadHalpha', 'bh.lBroad')
+    r.put(d, 'massSolar', FC['bh.mass'])
+    r.put(d, 'log10Mass', FC['bh.log10Mass'])
+    r.put(d, 'log10MassError', FC['bh.log10MassError'])
+    r.put(d, 'luminosityBroadHalpha', FC['bh.lBroad'])
     d.fwhmKmPerS = input.fwhmBroad[i]
     d.flags = []
     blackHoleMass = d as BlackHoleResult

@@ -3,6 +3,7 @@ import type { LineId } from '../lines/index.ts'
 import type { Percentiles } from '../stats/percentiles.ts'
 import type { NiiClass, OverallClass, SiiOiClass, WhanClass } from './classes.ts'
 
+// re-exported so that consumers need one import for every type of the result
 export type { ExtinctionLaw } from '../extinction/index.ts'
 export type { LineId } from '../lines/index.ts'
 export type { Percentiles } from '../stats/percentiles.ts'
@@ -53,6 +54,7 @@ export type WithPercentiles<T> = T & {
   [K in keyof T as T[K] extends number | null ? `${K & string}Percentiles` : never]?: Percentiles
 }
 
+/** Dust block: Balmer decrement, E(B−V), A_V (mag) and errors; see `GalaxyResult`. */
 export type ExtinctionResult = WithPercentiles<{
   /** observed Hα/Hβ (or Hγ/Hβ when `source` is 'hgamma-hbeta') */
   balmerDecrement: number | null
@@ -67,10 +69,12 @@ export type ExtinctionResult = WithPercentiles<{
   flags: string[]
 }>
 
+/** One dereddened line: flux and error (input flux unit) with A_λ (mag), or a dereddened upper limit. */
 export type DereddenedLine =
   | WithPercentiles<{ flux: number; error: number; aLambda: number | null }>
   | WithPercentiles<{ upperLimit: number }>
 
+/** Classes per diagram (REFERENCE.md §2.3–2.5) and overall (§2.4); Monte Carlo class fractions when requested. */
 export interface ClassesResult {
   nii: NiiClass
   sii: SiiOiClass
@@ -87,6 +91,7 @@ export interface ClassesResult {
   }
 }
 
+/** Signed perpendicular distances (dex) on the [N II] diagram, positive on the AGN/Seyfert side (REFERENCE.md §2.6). */
 export type NiiDistances = WithPercentiles<{
   ka03: number; ka03Error: number
   ke01: number; ke01Error: number
@@ -95,6 +100,7 @@ export type NiiDistances = WithPercentiles<{
   nearestDistance: number
 }>
 
+/** Signed perpendicular distances (dex) on the [S II] or [O I] diagram (REFERENCE.md §2.6). */
 export type SeyfertLinerDistances = WithPercentiles<{
   ke01: number; ke01Error: number
   ke06: number; ke06Error: number
@@ -102,6 +108,7 @@ export type SeyfertLinerDistances = WithPercentiles<{
   nearestDistance: number
 }>
 
+/** Electron density from one doublet (Sanders et al. 2016), cm⁻³. */
 export type DensityResult = WithPercentiles<{
   /** n_e, cm⁻³; null at a density limit */
   ne: number | null
@@ -112,6 +119,7 @@ export type DensityResult = WithPercentiles<{
   flag: 'low-density-limit' | 'high-density-limit' | null
 }>
 
+/** Electron temperature from one ion (Osterbrock & Ferland 2006 eqs. 5.4/5.5), K. */
 export type TemperatureResult = WithPercentiles<{
   /** T_e, K; null out of range or when only a limit exists */
   te: number | null
@@ -121,6 +129,7 @@ export type TemperatureResult = WithPercentiles<{
   flags: string[]
 }>
 
+/** 12 + log(O/H) of the six calibrations (REFERENCE.md §5), dex. */
 export type MetallicityResult = WithPercentiles<{
   n2Pp04: number | null; n2Pp04Error: number | null
   n2Pp04Cubic: number | null; n2Pp04CubicError: number | null
@@ -131,6 +140,7 @@ export type MetallicityResult = WithPercentiles<{
   flags: string[]
 }>
 
+/** D_L (Mpc), L(Hα) (erg s⁻¹) and Hα SFRs (M☉ yr⁻¹) (REFERENCE.md §6). */
 export type SfrResult = WithPercentiles<{
   luminosityDistanceMpc: number | null
   /** L(Hα), erg s⁻¹, dereddened when E(B−V) exists */
@@ -148,6 +158,7 @@ export type SfrResult = WithPercentiles<{
   flags: string[]
 }>
 
+/** Greene & Ho 2005 virial black-hole mass (M☉) from broad Hα (REFERENCE.md §7). */
 export type BlackHoleResult = WithPercentiles<{
   massSolar: number
   log10Mass: number

@@ -8,7 +8,7 @@
  * Synthetic data: tests/bench/synthetic.ts (invented numbers).
  */
 import { execFileSync, spawnSync } from 'node:child_process'
-import { mkdtempSync, rmSync, writeFileSync, openSync, writeSync, closeSync } from 'node:fs'
+import { closeSync, mkdtempSync, openSync, rmSync, writeSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { dirname, join } from 'node:path'
 import { fileURLToPath } from 'node:url'
@@ -132,4 +132,3 @@ if (!py) {
   }
 }
 console.log(`  targets: ≥ 1,000,000 galaxies/s on one thread — ${galaxiesPerSecond >= 1e6 ? 'met' : 'NOT met'}`)
-void writeFileSync

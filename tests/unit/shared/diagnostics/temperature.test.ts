@@ -47,3 +47,23 @@ describe('electron temperature (Osterbrock & Ferland 2006, eqs. 5.4 and 5.5)', (
     expect(temperatureRatioLogSlope(OIII_TEMPERATURE_MODEL, 1e4, 500)).toBeCloseTo(num, 9)
   })
 })
+
+describe('T_e iteration start', () => {
+  it('gives the same T_e as the plain REFERENCE.md §4 iteration started at 10⁴ K (within its 0.1 K tolerance)', () => {
+    // plain iteration written out here: n_e from [S II] at T, solve T, until |ΔT| < 0.1 K
+    const plain = (ratio: number, sii: number) => {
+      let t = 1e4
+      for (let i = 0; i < 50; i++) {
+        const next = temperatureFromRatio(OIII_TEMPERATURE_MODEL, ratio, electronDensityFromSiiRatio(sii, t) as number) as number
+        const done = Math.abs(next - t) < 0.1
+        t = next
+        if (done) break
+      }
+      return t
+    }
+    for (const [ratio, sii] of [[80, 0.6], [150, 1.0], [300, 1.3], [60, 0.5]]) {
+      const fast = temperatureWithDensityIteration(OIII_TEMPERATURE_MODEL, ratio, sii).temperatureK as number
+      expect(Math.abs(fast - plain(ratio, sii)), `R=${ratio} Rs=${sii}`).toBeLessThan(0.1)
+    }
+  })
+})

@@ -1,0 +1,41 @@
+import { describe, expect, it } from 'vitest'
+import {
+  errorOfSum, linearisedLogVariance, linearisedLogVarianceOfLine, log10Error, relativeErrorOfRatio, ROLE_DUST_DENOMINATOR,
+  ROLE_DUST_NUMERATOR, ROLE_OTHER,
+} from '../../../../shared/stats/error-propagation.ts'
+
+describe('first-order error propagation (REFERENCE.md §9)', () => {
+  it('ratio, log ratio and sum errors', () => {
+    expect(relativeErrorOfRatio(0.03, 0.04)).toBeCloseTo(0.05, 15)
+    expect(log10Error(0.1)).toBeCloseTo(0.1 / Math.LN10, 15)
+    expect(errorOfSum(3, 4)).toBe(5)
+  })
+  it('reproduces the Hα dereddened-flux covariance formula of REFERENCE.md §9', () => {
+    // (σ/F)² = (k_Hβ/Δk)²(σα/Fα)² + (k_Hα/Δk)²(σβ/Fβ)² with Δk = k_Hβ − k_Hα (derivation, common practice)
+    const kHa = 2.535, kHb = 3.609, dk = kHb - kHa, C = 2.5 / dk
+    const ra = 0.02, rb = 0.05
+    const want = (kHb / dk) ** 2 * ra ** 2 + (kHa / dk) ** 2 * rb ** 2
+    expect(linearisedLogVariance(1, [1], [ra], [ROLE_DUST_NUMERATOR], [kHa], C, ra, rb)).toBeCloseTo(want, 15)
+    expect(linearisedLogVarianceOfLine(ra, ROLE_DUST_NUMERATOR, kHa, C, ra, rb)).toBeCloseTo(want, 15)
+  })
+  it('matches a numerical derivative of the whole chain for a line and a ratio', () => {
+    // linearisation check: ln F_corr(L) = ln F_L + 0.4 ln10 k_L E, E = C log10(Fα/Fβ / 2.86)
+    const kHa = 2.535, kHb = 3.609, kL = 3.473, C = 2.5 / (kHb - kHa)
+    const corr = (fL: number, fa: number, fb: number) => Math.log(fL) + 0.4 * Math.LN10 * kL * C * Math.log10(fa / fb / 2.86)
+    const f = [50, 400, 100], rel = [0.04, 0.02, 0.03]
+    let varNum = 0
+    for (let j = 0; j < 3; j++) {
+      const h = f[j] * 1e-6
+      const up = [...f], dn = [...f]
+      up[j] += h
+      dn[j] -= h
+      const d = (corr(up[0], up[1], up[2]) - corr(dn[0], dn[1], dn[2])) / (2 * h)
+      varNum += (d * rel[j] * f[j]) ** 2
+    }
+    expect(linearisedLogVarianceOfLine(rel[0], ROLE_OTHER, kL, C, rel[1], rel[2])).toBeCloseTo(varNum, 10)
+    expect(linearisedLogVariance(1, [1], [rel[0]], [ROLE_OTHER], [kL], C, rel[1], rel[2])).toBeCloseTo(varNum, 10)
+    // Hβ itself, as dust denominator
+    expect(linearisedLogVarianceOfLine(rel[2], ROLE_DUST_DENOMINATOR, kHb, C, rel[1], rel[2]))
+      .toBeCloseTo(linearisedLogVariance(1, [1], [rel[2]], [ROLE_DUST_DENOMINATOR], [kHb], C, rel[1], rel[2]), 15)
+  })
+})
