@@ -6,7 +6,14 @@ const apiPort = process.env.PORT ?? '8080'
 
 export default defineConfig({
   plugins: [vue(), vuetify({ autoImport: true })],
-  resolve: { alias: { '@shared': new URL('./shared', import.meta.url).pathname } },
+  resolve: {
+    alias: {
+      '@shared': new URL('./shared', import.meta.url).pathname,
+      // plotly's CSP-safe build: the standard one compiles WebGL shaders with new Function, which our
+      // Content-Security-Policy (script-src 'self', no unsafe-eval) forbids. Same API and types.
+      'plotly.js-dist-min': 'plotly.js-strict-dist-min',
+    },
+  },
   build: { chunkSizeWarningLimit: 6000, sourcemap: false },
   server: {
     host: '127.0.0.1',

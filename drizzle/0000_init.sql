@@ -51,7 +51,7 @@ CREATE TABLE "galaxies" (
 	"ra" double precision,
 	"dec" double precision,
 	"flux_unit" double precision DEFAULT 1 NOT NULL,
-	"input" jsonb NOT NULL,
+	"input" json NOT NULL,
 	"last_intake_id" uuid,
 	"created_at" timestamp with time zone DEFAULT now() NOT NULL,
 	"updated_at" timestamp with time zone DEFAULT now() NOT NULL
@@ -144,6 +144,7 @@ CREATE TABLE "projects" (
 	"description" text DEFAULT '' NOT NULL,
 	"current_revision" integer DEFAULT 1 NOT NULL,
 	"results_revision" integer DEFAULT 1 NOT NULL,
+	"data_version" bigint DEFAULT 0 NOT NULL,
 	"created_by" uuid,
 	"created_at" timestamp with time zone DEFAULT now() NOT NULL
 );
@@ -180,7 +181,7 @@ CREATE TABLE "results" (
 	"o3n2_pp04" real,
 	"sfr_halpha" real,
 	"flag_count" smallint DEFAULT 0 NOT NULL,
-	"result" jsonb NOT NULL,
+	"result" json NOT NULL,
 	CONSTRAINT "results_galaxy_id_revision_pk" PRIMARY KEY("galaxy_id","revision")
 );
 --> statement-breakpoint

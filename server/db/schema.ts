@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm'
 import {
-  bigint, bigserial, boolean, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey,
+  bigint, bigserial, boolean, doublePrecision, index, integer, json, jsonb, pgEnum, pgTable, primaryKey,
   real, smallint, text, timestamp, uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core'
 
@@ -31,6 +31,8 @@ export const projects = pgTable('projects', {
   currentRevision: integer().notNull().default(1),
   /** Latest revision whose recompute is complete: what queries, diagrams and exports show. */
   resultsRevision: integer().notNull().default(1),
+  /** Bumped by every write of results: the key of cached diagram data. */
+  dataVersion: bigint({ mode: 'number' }).notNull().default(0),
   createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
   createdAt: createdAt(),
 })
@@ -139,7 +141,8 @@ export const galaxies = pgTable('galaxies', {
   ra: doublePrecision(),
   dec: doublePrecision(),
   fluxUnit: doublePrecision().notNull().default(1),
-  input: jsonb().notNull(),
+  /** `json`, not `jsonb`: stored and returned as sent, never queried inside, and much cheaper to write. */
+  input: json().notNull(),
   lastIntakeId: uuid(),
   createdAt: createdAt(),
   updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
@@ -176,7 +179,8 @@ export const results = pgTable('results', {
   n2Pp04: real(), o3n2Pp04: real(),
   sfrHalpha: real(),
   flagCount: smallint().notNull().default(0),
-  result: jsonb().notNull(),
+  /** The full result as `json` text (lz4-compressed by migration 0001): written in bulk, read whole. */
+  result: json().notNull(),
 }, (t) => [
   primaryKey({ columns: [t.galaxyId, t.revision] }),
   index('results_project_revision').on(t.projectId, t.revision),

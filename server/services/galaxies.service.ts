@@ -55,7 +55,7 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
     const ids = await tx.execute<{ id: number; key: string; inserted: boolean }>(sql`
       insert into galaxies (project_id, key, redshift, ra, dec, flux_unit, input, last_intake_id)
       select ${projectId}::uuid, t.key, t.redshift, t.ra, t.dec, t.flux_unit, t.input, ${intakeId}::uuid
-      from jsonb_to_recordset(${JSON.stringify(rows)}::jsonb) as t(key text, redshift float8, ra float8, dec float8, flux_unit float8, input jsonb)
+      from json_to_recordset(${JSON.stringify(rows)}::json) as t(key text, redshift float8, ra float8, dec float8, flux_unit float8, input json)
       on conflict (project_id, key) do update set redshift = excluded.redshift, ra = excluded.ra, dec = excluded.dec,
         flux_unit = excluded.flux_unit, input = excluded.input, last_intake_id = excluded.last_intake_id, updated_at = now()
       returning id, key, (xmax = 0) as inserted`)
@@ -87,9 +87,10 @@ export async function upsertResults(tx: Executor, projectId: string, revision: n
   await tx.execute(sql`
     insert into results (galaxy_id, project_id, revision, method_version, computed_at, ${RESULT_LIST}, result)
     select t.galaxy_id, ${projectId}::uuid, ${revision}, ${METHOD_VERSION}, now(), ${RESULT_T_LIST}, t.result
-    from jsonb_to_recordset(${JSON.stringify(rows)}::jsonb) as t(galaxy_id bigint, ${RESULT_RECORD}, result jsonb)
+    from json_to_recordset(${JSON.stringify(rows)}::json) as t(galaxy_id bigint, ${RESULT_RECORD}, result json)
     on conflict (galaxy_id, revision) do update set method_version = excluded.method_version, computed_at = now(),
       ${RESULT_UPDATE}, result = excluded.result`)
+  await tx.execute(sql`update projects set data_version = data_version + 1 where id = ${projectId}::uuid`)
 }
 
 export const requestHash = (body: unknown) => createHash('sha256').update(JSON.stringify(body)).digest('hex')
@@ -160,6 +161,10 @@ export function summary(row: Record<string, unknown>) {
   }
 }
 
+/** Least-recently-used cache of diagram documents (each up to a few tens of MB for 10⁶ galaxies). */
+const DIAGRAM_CACHE_ENTRIES = 8
+const diagramCache = new Map<string, string>()
+
 export function galaxiesService(db: Db) {
   return {
     /** One page of galaxies by keyset pagination on (sort value, internal id). */
@@ -220,26 +225,36 @@ export function galaxiesService(db: Db) {
      */
     async diagram(projectId: string, f: GalaxyFilter): Promise<string> {
       const revision = await projectRevisionForQueries(db, projectId, f.revision)
+      const [{ version }] = (await db.execute<{ version: number }>(sql`select data_version as version from projects where id = ${projectId}::uuid`)).rows
+      // every results write bumps data_version, so a cached document is never stale (across processes too)
+      const cacheKey = `${projectId}|${revision}|${version}|${JSON.stringify(f)}`
+      const hit = diagramCache.get(cacheKey)
+      if (hit !== undefined) { diagramCache.delete(cacheKey); diagramCache.set(cacheKey, hit); return hit }
       const where = filterSql(projectId, revision, f)
       const lim = (b: { upper: number; lower: number }) =>
-        sql.raw(`array_agg(case when r.limits & ${b.upper} <> 0 then 1 when r.limits & ${b.lower} <> 0 then -1 else 0 end order by g.id)`)
+        sql.raw(`case when s.limits & ${b.upper} <> 0 then 1 when s.limits & ${b.lower} <> 0 then -1 else 0 end`)
+      // one ordered scan feeds every array (array_agg keeps the subquery's order), so there is one sort
+      const agg = (e: SQL | string) => sql`coalesce(array_agg(${typeof e === 'string' ? sql.raw(e) : e}), '{}')`
       const res = await db.execute<{ doc: string }>(sql`
         select json_build_object(
           'revision', ${revision}::int, 'count', count(*),
-          'ids', coalesce(array_agg(g.key order by g.id), '{}'), 'redshift', coalesce(array_agg(g.redshift order by g.id), '{}'),
-          'class', json_build_object('overall', coalesce(array_agg(r.class_overall order by g.id), '{}'), 'nii', coalesce(array_agg(r.class_nii order by g.id), '{}'),
-            'sii', coalesce(array_agg(r.class_sii order by g.id), '{}'), 'oi', coalesce(array_agg(r.class_oi order by g.id), '{}'), 'whan', coalesce(array_agg(r.class_whan order by g.id), '{}')),
-          'x', json_build_object('nii', coalesce(array_agg(r.x_nii order by g.id), '{}'), 'sii', coalesce(array_agg(r.x_sii order by g.id), '{}'), 'oi', coalesce(array_agg(r.x_oi order by g.id), '{}')),
-          'y', coalesce(array_agg(r.y_oiii order by g.id), '{}'),
-          'xErr', json_build_object('nii', coalesce(array_agg(r.x_nii_err order by g.id), '{}'), 'sii', coalesce(array_agg(r.x_sii_err order by g.id), '{}'), 'oi', coalesce(array_agg(r.x_oi_err order by g.id), '{}')),
-          'yErr', coalesce(array_agg(r.y_oiii_err order by g.id), '{}'),
-          'xLimit', json_build_object('nii', coalesce(${lim(LIMIT_BITS.niiHa)}, '{}'), 'sii', coalesce(${lim(LIMIT_BITS.siiHa)}, '{}'), 'oi', coalesce(${lim(LIMIT_BITS.oiHa)}, '{}')),
-          'yLimit', coalesce(${lim(LIMIT_BITS.oiiiHb)}, '{}'),
-          'ewHalpha', coalesce(array_agg(r.ew_halpha order by g.id), '{}')
+          'ids', ${agg('s.key')}, 'redshift', ${agg('s.redshift')},
+          'class', json_build_object('overall', ${agg('s.class_overall')}, 'nii', ${agg('s.class_nii')}, 'sii', ${agg('s.class_sii')}, 'oi', ${agg('s.class_oi')}, 'whan', ${agg('s.class_whan')}),
+          'x', json_build_object('nii', ${agg('s.x_nii')}, 'sii', ${agg('s.x_sii')}, 'oi', ${agg('s.x_oi')}),
+          'y', ${agg('s.y_oiii')},
+          'xErr', json_build_object('nii', ${agg('s.x_nii_err')}, 'sii', ${agg('s.x_sii_err')}, 'oi', ${agg('s.x_oi_err')}),
+          'yErr', ${agg('s.y_oiii_err')},
+          'xLimit', json_build_object('nii', ${agg(lim(LIMIT_BITS.niiHa))}, 'sii', ${agg(lim(LIMIT_BITS.siiHa))}, 'oi', ${agg(lim(LIMIT_BITS.oiHa))}),
+          'yLimit', ${agg(lim(LIMIT_BITS.oiiiHb))},
+          'ewHalpha', ${agg('s.ew_halpha')}
         )::text as doc
-        from galaxies g join results r on r.galaxy_id = g.id where ${where}`)
-      const doc = res.rows[0].doc
-      return doc.slice(0, -1) + `,"classNames":${JSON.stringify(CLASS_NAMES)}}`
+        from (select g.key, g.redshift, r.class_overall, r.class_nii, r.class_sii, r.class_oi, r.class_whan, r.x_nii, r.x_sii, r.x_oi, r.y_oiii,
+                r.x_nii_err, r.x_sii_err, r.x_oi_err, r.y_oiii_err, r.limits, r.ew_halpha
+              from galaxies g join results r on r.galaxy_id = g.id where ${where} order by g.id) s`)
+      const doc = res.rows[0].doc.slice(0, -1) + `,"classNames":${JSON.stringify(CLASS_NAMES)}}`
+      diagramCache.set(cacheKey, doc)
+      while (diagramCache.size > DIAGRAM_CACHE_ENTRIES) diagramCache.delete(diagramCache.keys().next().value!)
+      return doc
     },
   }
 }

@@ -50,7 +50,7 @@ export function resultColumns(g: GalaxyInputDto, r: AnyResult) {
 }
 export type ResultColumns = ReturnType<typeof resultColumns>
 
-/** Column name in SQL for each stored column, with its SQL type (for jsonb_to_recordset). */
+/** Column name in SQL for each stored column, with its SQL type (for json_to_recordset). */
 export const RESULT_COLUMN_SQL: Array<[keyof ResultColumns, string, string]> = [
   ['classOverall', 'class_overall', 'smallint'], ['classNii', 'class_nii', 'smallint'], ['classSii', 'class_sii', 'smallint'],
   ['classOi', 'class_oi', 'smallint'], ['classWhan', 'class_whan', 'smallint'],

@@ -1,8 +1,13 @@
-import { RATIO_EXACT, RATIO_LOWER, RATIO_UPPER } from '../stats/limits.ts'
+import * as __limits from '../stats/limits.ts'
 import {
   CLASS_AGN, CLASS_AMBIGUOUS, CLASS_COMPOSITE, CLASS_LINER, CLASS_SEYFERT, CLASS_STAR_FORMING, CLASS_UNCLASSIFIED,
 } from './classes.ts'
 import { isBelowHyperbola, KA03, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, S07_NII, type HyperbolaCurve, type StraightLine } from './demarcation.ts'
+// imported constants copied into module scope: V8 reads module-local constants in hot loops without
+// the per-access initialisation check that imported bindings need
+const RATIO_EXACT = __limits.RATIO_EXACT
+const RATIO_LOWER = __limits.RATIO_LOWER
+const RATIO_UPPER = __limits.RATIO_UPPER
 
 /**
  * Class on the [N II] diagram (Baldwin, Phillips & Terlevich 1981, PASP 93, 5 type): star-forming

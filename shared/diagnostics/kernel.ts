@@ -6,17 +6,17 @@
  * NaN into null plus a flag before anything leaves the library.
  */
 import { extinctionK, type ExtinctionLaw } from '../extinction/index.ts'
-import { FLAG_WORDS, flagBit, METALLICITY_KEYS } from '../flags.ts'
+import { flagBit, METALLICITY_KEYS } from '../flags.ts'
+import * as __flags from '../flags.ts'
 import { LINE_COUNT, LINE_IDS, LINES } from '../lines/index.ts'
-import { linearisedLogVariance, linearisedLogVarianceOfLine, LN10, ROLE_DUST_DENOMINATOR, ROLE_DUST_NUMERATOR, ROLE_OTHER } from '../stats/error-propagation.ts'
-import {
-  LINE_ABSENT, LINE_DETECTED, LINE_NONPOSITIVE, LINE_UPPER_LIMIT, RATIO_EXACT, RATIO_NONE,
-  ratioLimitStatus, stateOfSum,
-} from '../stats/limits.ts'
+import { linearisedLogVariance, linearisedLogVarianceOfLine } from '../stats/error-propagation.ts'
+import * as __error_propagation from '../stats/error-propagation.ts'
+import { ratioLimitStatus, stateOfSum } from '../stats/limits.ts'
+import * as __limits from '../stats/limits.ts'
 import { balmerCoefficient, INTRINSIC_HGAMMA_HBETA_CASE_B } from './balmer-decrement.ts'
 import { blackHoleMassGreeneHo05, GREENE_HO05 } from './black-hole.ts'
 import { classifyNiiPoint, classifyOiPoint, classifySiiPoint, classProvenByLimits, niiSubtypeOfPoint, overallClass } from './bpt.ts'
-import { CLASS_AGN, CLASS_STAR_FORMING, CLASS_UNCLASSIFIED } from './classes.ts'
+import * as __classes from './classes.ts'
 import {
   KA03, KA03_KE01_CROSSING_X, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, S07_NII, signedDistanceToHyperbola,
   signedDistanceToLine, type HyperbolaCurve, type StraightLine,
@@ -33,6 +33,28 @@ import {
 } from './temperature.ts'
 import { whanClass } from './whan.ts'
 import type { DiagnosticSettings, RatioKey } from './types.ts'
+// imported constants copied into module scope: V8 reads module-local constants in hot loops without
+// the per-access initialisation check that imported bindings need
+const FLAG_WORDS = __flags.FLAG_WORDS
+// imported constants copied into module scope: V8 reads module-local constants in hot loops without
+// the per-access initialisation check that imported bindings need
+const LN10 = __error_propagation.LN10
+const ROLE_DUST_DENOMINATOR = __error_propagation.ROLE_DUST_DENOMINATOR
+const ROLE_DUST_NUMERATOR = __error_propagation.ROLE_DUST_NUMERATOR
+const ROLE_OTHER = __error_propagation.ROLE_OTHER
+// imported constants copied into module scope: V8 reads module-local constants in hot loops without
+// the per-access initialisation check that imported bindings need
+const CLASS_AGN = __classes.CLASS_AGN
+const CLASS_STAR_FORMING = __classes.CLASS_STAR_FORMING
+const CLASS_UNCLASSIFIED = __classes.CLASS_UNCLASSIFIED
+// imported constants copied into module scope: V8 reads module-local constants in hot loops without
+// the per-access initialisation check that imported bindings need
+const LINE_ABSENT = __limits.LINE_ABSENT
+const LINE_DETECTED = __limits.LINE_DETECTED
+const LINE_NONPOSITIVE = __limits.LINE_NONPOSITIVE
+const LINE_UPPER_LIMIT = __limits.LINE_UPPER_LIMIT
+const RATIO_EXACT = __limits.RATIO_EXACT
+const RATIO_NONE = __limits.RATIO_NONE
 
 // ── line indices (kernel column order = LINES) ──────────────────────────────────────────────────
 export const HA = 0, HB = 1, HG = 2, HD = 3, O3_5007 = 4, O3_4959 = 5, O3_4363 = 6, N2_6584 = 7, N2_6548 = 8,

@@ -1,5 +1,11 @@
-import { RATIO_EXACT, RATIO_LOWER, RATIO_NONE, RATIO_UPPER } from '../stats/limits.ts'
+import * as __limits from '../stats/limits.ts'
 import { CLASS_PASSIVE, CLASS_RETIRED, CLASS_STAR_FORMING, CLASS_STRONG_AGN, CLASS_UNCLASSIFIED, CLASS_WEAK_AGN } from './classes.ts'
+// imported constants copied into module scope: V8 reads module-local constants in hot loops without
+// the per-access initialisation check that imported bindings need
+const RATIO_EXACT = __limits.RATIO_EXACT
+const RATIO_LOWER = __limits.RATIO_LOWER
+const RATIO_NONE = __limits.RATIO_NONE
+const RATIO_UPPER = __limits.RATIO_UPPER
 
 /**
  * WHAN diagram boundaries: Cid Fernandes et al. 2011, MNRAS 413, 1687 ([P, abstract]; REFERENCE.md §2.5).

@@ -14,22 +14,28 @@ const galaxies = generateLanternSurvey(N, 7).map(({ population: _p, ...g }) => g
 const lines = galaxies.reduce((s, g) => s + Object.keys(g.lines).length, 0) / N
 console.log(`${N} galaxies, ${lines.toFixed(1)} lines each on average`)
 
+// two requests in flight, as a pipeline would send them: one computes while the other is written
+const CONCURRENCY = Number(process.env.BENCH_CONCURRENCY ?? 2)
+const bodies = Array.from({ length: Math.ceil(N / BATCH) }, (_, b) => JSON.stringify({ galaxies: galaxies.slice(b * BATCH, (b + 1) * BATCH) }))
 const t0 = performance.now()
-for (let i = 0; i < N; i += BATCH) {
-  const res = await fetch(`${env.rt.url}/api/v1/projects/${env.projectId}/galaxies/batch`, {
-    method: 'POST', headers: { authorization: `Bearer ${env.key}`, 'content-type': 'application/json' },
-    body: JSON.stringify({ galaxies: galaxies.slice(i, i + BATCH) }),
-  })
-  if (res.status !== 200) throw new Error(`batch ${i / BATCH}: ${res.status} ${await res.text()}`)
-}
+let next = 0
+await Promise.all(Array.from({ length: CONCURRENCY }, async () => {
+  while (next < bodies.length) {
+    const b = next++
+    const res = await fetch(`${env.rt.url}/api/v1/projects/${env.projectId}/galaxies/batch`, {
+      method: 'POST', headers: { authorization: `Bearer ${env.key}`, 'content-type': 'application/json', 'idempotency-key': `bench-${b}` }, body: bodies[b],
+    })
+    if (res.status !== 200) throw new Error(`batch ${b}: ${res.status} ${await res.text()}`)
+  }
+}))
 const apiS = (performance.now() - t0) / 1000
-console.log(`batch API: ${N} galaxies ingested and computed in ${apiS.toFixed(2)} s → ${(N / apiS).toFixed(0)} galaxies/s`)
+console.log(`batch API (${CONCURRENCY} requests in flight): ${N} galaxies ingested and computed in ${apiS.toFixed(2)} s → ${(N / apiS).toFixed(0)} galaxies/s`)
 
 // COPY the same stored rows (galaxies + results) into the same tables under a second project
 const client = new pg.Client({ connectionString: env.pg.url })
 await client.connect()
 const { rows: [p2] } = await client.query("insert into projects (name) values ('copy target') returning id")
-const galaxyCsv = (await client.query(`select key, redshift, ra, dec, flux_unit, input::text from galaxies where project_id = $1 order by id`, [env.projectId])).rows
+const galaxyCsv = (await client.query(`select key, redshift, ra, dec, flux_unit, input::text as input from galaxies where project_id = $1 order by id`, [env.projectId])).rows
 const resultCsv = (await client.query(`select g.key, r.* from results r join galaxies g on g.id = r.galaxy_id where r.project_id = $1 order by g.id`, [env.projectId])).rows
 const esc = (v: unknown) => (v === null || v === undefined ? '\\N' : String(v).replace(/\\/g, '\\\\').replace(/\t/g, '\\t').replace(/\n/g, '\\n'))
 const t1 = performance.now()
