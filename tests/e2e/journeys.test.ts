@@ -60,6 +60,8 @@ describe('a scientist\'s day in the dashboard', () => {
     const { page, projectId, problems } = await signIn('viewer')
     await page.goto(`${base}/projects/${projectId}/diagrams`)
     for (const k of ['nii', 'sii', 'oi', 'whan']) await page.locator(`[data-testid="diagram-${k}"][data-ready="true"]`).waitFor({ timeout: 60_000 })
+    // WebGL traces run under our Content-Security-Policy (plotly's CSP-safe build), no SVG fallback
+    expect(await page.locator('[data-testid="diagram-nii"] [data-renderer]').getAttribute('data-renderer')).toBe('webgl')
     const drag = await page.getByTestId('diagram-nii').locator('.nsewdrag').first().boundingBox()
     expect(drag).not.toBeNull()
     // a box over the star-forming branch, left-middle of the [N II] panel

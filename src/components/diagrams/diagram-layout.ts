@@ -125,18 +125,16 @@ export const PLOT_CONFIG: Partial<Config> = {
 let webGlTraces: boolean | null = null
 
 /**
- * Whether WebGL traces can run here. Plotly's WebGL layer compiles its shaders' JavaScript with
- * `new Function`, which a Content-Security-Policy without 'unsafe-eval' forbids; plotly then only
- * draws "WebGL is not supported". In that case the panels fall back to SVG traces: slower for a
+ * Whether WebGL traces can run here. The app loads plotly's CSP-safe build (vite.config.ts alias),
+ * so only a WebGL context is needed. Without one the panels fall back to SVG traces: slower for a
  * very large sample, but the diagrams, selection and hover still work.
  */
 export function canUseWebGlTraces(): boolean {
   if (webGlTraces !== null) return webGlTraces
   try {
-    // eslint-disable-next-line @typescript-eslint/no-implied-eval
-    webGlTraces = new Function('return 1')() === 1
+    // plotly's CSP-safe build needs no eval, only a WebGL context (software rendering counts)
     const canvas = document.createElement('canvas')
-    webGlTraces = webGlTraces && !!(canvas.getContext('webgl') || canvas.getContext('experimental-webgl'))
+    webGlTraces = !!(canvas.getContext('webgl') || canvas.getContext('experimental-webgl'))
   } catch {
     webGlTraces = false
   }
