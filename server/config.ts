@@ -22,6 +22,9 @@ export interface Config {
   authRateLimit: number
   /** Intakes at least this large mail their starter when they finish. */
   largeIntakeRows: number
+  /** API requests per minute per key, user or address; anonymous diagnostics per address. */
+  apiRateLimit: number
+  anonymousDiagnosticsRateLimit: number
 }
 
 function readOrCreateSecret(dataDir: string): string {
@@ -57,5 +60,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     secureCookies: env.SECURE_COOKIES === '1' || (env.APP_URL ?? '').startsWith('https:'),
     authRateLimit: Number(env.AUTH_RATE_LIMIT ?? 20),
     largeIntakeRows: Number(env.LARGE_INTAKE_ROWS ?? 5000),
+    apiRateLimit: Number(env.API_RATE_LIMIT ?? 1200),
+    anonymousDiagnosticsRateLimit: Number(env.DIAGNOSTICS_ANON_RATE_LIMIT ?? 600),
   }
 }

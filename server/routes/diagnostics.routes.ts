@@ -14,9 +14,9 @@ import type { Guard } from './index.ts'
 /** Draws × galaxies above this would keep one request busy for too long. */
 const MAX_MONTE_CARLO_WORK = 2_000_000
 
-export function diagnosticsRoutes(r: Router, _deps: AppDeps, guard: Guard) {
+export function diagnosticsRoutes(r: Router, deps: AppDeps, guard: Guard) {
   const anonymousLimiter = rateLimit({
-    windowMs: 60_000, limit: Number(process.env.DIAGNOSTICS_ANON_RATE_LIMIT ?? 600), standardHeaders: 'draft-8', legacyHeaders: false,
+    windowMs: 60_000, limit: deps.config.anonymousDiagnosticsRateLimit, standardHeaders: 'draft-8', legacyHeaders: false,
     skip: (req) => !!req.auth,
     handler: (_req, _res, next) => next(new HttpProblem(429, 'Too Many Requests', 'rate limit for anonymous use reached; send an API key', undefined, { 'Retry-After': '60' })),
   })

@@ -24,7 +24,7 @@ export function buildRoutes(deps: AppDeps): Router {
   router.use('/v1', authenticate(deps.db, deps.config))
   // per key (or signed-in user) and per address
   router.use('/v1', rateLimit({
-    windowMs: 60_000, limit: Number(process.env.API_RATE_LIMIT ?? 1200), standardHeaders: 'draft-8', legacyHeaders: false,
+    windowMs: 60_000, limit: deps.config.apiRateLimit, standardHeaders: 'draft-8', legacyHeaders: false,
     keyGenerator: (req) => req.auth?.key ? `key:${req.auth.key.id}` : req.auth ? `user:${req.auth.user.id}` : `ip:${ipKeyGenerator(req.ip ?? '')}`,
     handler: (_req, _res, next, options) => next(new HttpProblem(429, 'Too Many Requests', 'rate limit reached; slow down', undefined, { 'Retry-After': String(Math.ceil(options.windowMs / 1000)) })),
   }))

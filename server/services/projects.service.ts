@@ -105,7 +105,11 @@ export function projectsService(db: Db) {
 
     async auditLog(projectId: string, limit = 200) {
       const rows = await db.select({ e: auditEvents, actorName: users.name, actorEmail: users.email }).from(auditEvents)
-        .leftJoin(users, eq(users.id, auditEvents.actorUserId)).where(eq(auditEvents.projectId, projectId))
+        .leftJoin(users, eq(users.id, auditEvents.actorUserId))
+        // the project's own events, plus account events (sign-ins, resets) of its current members
+        .where(sql`${auditEvents.projectId} = ${projectId} or (${auditEvents.projectId} is null
+          and ${auditEvents.action} in ('sign-in', 'sign-in-failed', 'password-reset')
+          and ${auditEvents.actorUserId} in (select user_id from memberships where project_id = ${projectId}))`)
         .orderBy(desc(auditEvents.id)).limit(limit)
       return rows.map((r) => ({
         id: r.e.id, action: r.e.action, target: r.e.target, details: r.e.details, createdAt: r.e.createdAt.toISOString(),

@@ -11,3 +11,17 @@ export const teamApi = {
   invite: (projectId: string, email: string, role: Role) => http.post<Invitation>(`${projectPath(projectId)}/invitations`, { email, role }),
   revokeInvitation: (projectId: string, id: string) => http.delete(`${projectPath(projectId)}/invitations/${encodeURIComponent(id)}`),
 }
+
+/** One entry of a project's audit log (owners only). */
+export interface AuditEvent {
+  id: number
+  action: string
+  target: string | null
+  details: Record<string, unknown>
+  createdAt: string
+  actor: { id: string; name: string | null; email: string | null } | null
+}
+
+export const auditApi = {
+  list: (projectId: string) => http.get<ItemList<AuditEvent>>(`${projectPath(projectId)}/audit`),
+}

@@ -124,8 +124,12 @@ describe('invitations and password reset through the captured mail', () => {
     const me = await agent.get('/api/v1/me')
     expect(me.body.projects).toEqual([expect.objectContaining({ id: p.body.id, role: 'viewer' })])
     expect((await request(t.app).post(`/api/v1/invitations/${token}/accept`).send({ name: 'x', password: 'another long password' })).status).toBe(404)
+    await request(t.app).post('/api/v1/auth/sign-in').send({ email: 'inviter@example.org', password: 'correct horse battery' })
     const audit = await owner.agent.get(`/api/v1/projects/${p.body.id}/audit`)
-    expect(audit.body.items.map((e: { action: string }) => e.action)).toEqual(expect.arrayContaining(['invitation-sent', 'member-added', 'project-created']))
+    expect(audit.body.items.map((e: { action: string }) => e.action)).toEqual(expect.arrayContaining(['invitation-sent', 'member-added', 'project-created', 'sign-in']))
+    // the owner sees members' sign-ins, not those of other accounts
+    expect(audit.body.items.filter((e: { action: string; target: string }) => e.action === 'sign-in').map((e: { target: string }) => e.target))
+      .not.toContain('second@example.org')
   })
 
   it('an existing account accepts after signing in', async () => {

@@ -10,7 +10,7 @@ export async function benchServer(extraEnv: Record<string, string> = {}) {
   const pg = await startEmbeddedPostgres({ dir, port: await freePort(), durable: true })
   const rt = await startRuntime({
     env: { ...process.env, DATABASE_URL: pg.url, PORT: String(await freePort()), JWT_SECRET: 'bench', LOG_LEVEL: 'silent', AUTH_RATE_LIMIT: '100000', API_RATE_LIMIT: '10000000', DIAGNOSTICS_ANON_RATE_LIMIT: '10000000', ...extraEnv },
-    log: () => {},
+    log: () => {}, serveClient: true,
   })
   const res = await fetch(`${rt.url}/api/v1/auth/sign-up`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: 'bench@example.org', password: 'benchmark password', name: 'Bench' }) })
   const cookies = res.headers.getSetCookie().map((c) => c.split(';')[0])
