@@ -10,7 +10,7 @@ export function isDatabaseUnavailable(err: unknown): boolean {
   const e = err as { code?: string; message?: string; cause?: unknown }
   if (e.code && DB_DOWN_CODES.has(e.code)) return true
   const m = e.message ?? ''
-  if (/Connection terminated|not queryable|Client was closed|server closed the connection|connection timeout|timeout exceeded when trying to connect|the database system is (starting up|shutting down)|terminating connection/i.test(m)) return true
+  if (/Connection terminated|Cannot use a pool after calling end|not queryable|Client was closed|server closed the connection|connection timeout|timeout exceeded when trying to connect|the database system is (starting up|shutting down)|terminating connection/i.test(m)) return true
   return e.cause ? isDatabaseUnavailable(e.cause) : false
 }
 

@@ -64,5 +64,11 @@ export function galaxiesRoutes(r: Router, deps: AppDeps, guard: Guard) {
     summary: 'Columnar diagram data (IDs, x per diagram, y, classes as codes, errors, limit markers)',
     description: 'Arrays are aligned by index. `class.*` are integer codes into `classNames.*`. `xLimit.*`/`yLimit`: 0 measured, 1 upper limit, −1 lower limit.',
     params: ProjectPathSchema, query: DiagramQuerySchema, responses: { 200: { description: 'columnar arrays' } },
-  }, guard, async (_req, res, { params, query }) => { res.type('application/json').send(await galaxies.diagram(params.projectId, query)) })
+  }, guard, async (req, res, { params, query }) => {
+    const doc = await galaxies.diagram(params.projectId, query)
+    res.setHeader('ETag', doc.etag)
+    res.setHeader('Cache-Control', 'private, no-cache') // revalidate: the answer is 304 while nothing changed
+    if (req.fresh) { res.status(304).end(); return }
+    res.type('application/json').send(doc.body)
+  })
 }

@@ -163,7 +163,8 @@ export function summary(row: Record<string, unknown>) {
 
 /** Least-recently-used cache of diagram documents (each up to a few tens of MB for 10⁶ galaxies). */
 const DIAGRAM_CACHE_ENTRIES = 8
-const diagramCache = new Map<string, string>()
+export interface DiagramDocument { body: Buffer; etag: string }
+const diagramCache = new Map<string, DiagramDocument>()
 
 export function galaxiesService(db: Db) {
   return {
@@ -223,7 +224,7 @@ export function galaxiesService(db: Db) {
      * Columnar diagram data built by PostgreSQL itself (one row of arrays), so 10⁵–10⁶ galaxies
      * cost one scan and no per-row JavaScript.
      */
-    async diagram(projectId: string, f: GalaxyFilter): Promise<string> {
+    async diagram(projectId: string, f: GalaxyFilter): Promise<DiagramDocument> {
       const revision = await projectRevisionForQueries(db, projectId, f.revision)
       const [{ version }] = (await db.execute<{ version: number }>(sql`select data_version as version from projects where id = ${projectId}::uuid`)).rows
       // every results write bumps data_version, so a cached document is never stale (across processes too)
@@ -251,7 +252,9 @@ export function galaxiesService(db: Db) {
         from (select g.key, g.redshift, r.class_overall, r.class_nii, r.class_sii, r.class_oi, r.class_whan, r.x_nii, r.x_sii, r.x_oi, r.y_oiii,
                 r.x_nii_err, r.x_sii_err, r.x_oi_err, r.y_oiii_err, r.limits, r.ew_halpha
               from galaxies g join results r on r.galaxy_id = g.id where ${where} order by g.id) s`)
-      const doc = res.rows[0].doc.slice(0, -1) + `,"classNames":${JSON.stringify(CLASS_NAMES)}}`
+      const body = Buffer.from(res.rows[0].doc.slice(0, -1) + `,"classNames":${JSON.stringify(CLASS_NAMES)}}`)
+      // encoded and hashed once: repeated requests then cost a memory copy, not a query and a hash
+      const doc = { body, etag: `"d${createHash('sha1').update(body).digest('base64url')}"` }
       diagramCache.set(cacheKey, doc)
       while (diagramCache.size > DIAGRAM_CACHE_ENTRIES) diagramCache.delete(diagramCache.keys().next().value!)
       return doc

@@ -112,6 +112,19 @@ describe('queries', () => {
     expect(d.x.nii[i]).toBeCloseTo(Math.log10(330 / 300), 5)
   })
 
+  it('revalidates diagram data by ETag, and a new intake changes it', async () => {
+    const first = await owner.agent.get(`/api/v1/projects/${projectId}/diagram`)
+    const etag = first.headers.etag as string
+    expect(etag).toMatch(/^"d/)
+    const again = await owner.agent.get(`/api/v1/projects/${projectId}/diagram`).set('If-None-Match', etag)
+    expect(again.status).toBe(304)
+    await batch({ galaxies: [galaxy('ETAG-1')] })
+    const changed = await owner.agent.get(`/api/v1/projects/${projectId}/diagram`).set('If-None-Match', etag)
+    expect(changed.status).toBe(200)
+    expect(changed.body.ids).toContain('ETAG-1')
+    expect(changed.body.count).toBe(first.body.count + 1)
+  })
+
   it('answers 404 for another project, as if it did not exist', async () => {
     const other = await signedInAgent(t.app, 'outsider@example.org')
     expect((await other.agent.get(`/api/v1/projects/${projectId}/galaxies`)).status).toBe(404)
