@@ -17,9 +17,10 @@ for (let i = 0; i < N; i += 10_000) {
 console.log(`project loaded with ${N} galaxies`)
 
 async function run(title: string, opts: autocannon.Options) {
-  const r = await autocannon({ connections: 50, duration: DURATION, ...opts })
+  // the load generator runs in a worker thread so that it does not share the server's event loop
+  const r = await autocannon({ connections: 50, duration: DURATION, workers: 1, timeout: 30, ...opts })
   const errors = r.errors + r.timeouts + r.non2xx
-  console.log(`${title}: ${r.requests.average.toFixed(0)} req/s, latency p50 ${r.latency.p50} ms, p99 ${r.latency.p99} ms, ${r.requests.total} requests, errors ${errors} (non-2xx ${r.non2xx}, timeouts ${r.timeouts})`)
+  console.log(`${title}: ${r.requests.average.toFixed(0)} req/s, latency p50 ${r.latency.p50} ms, p99 ${r.latency.p99} ms, ${r.requests.total} requests, errors ${errors} (non-2xx ${r.non2xx}, timeouts ${r.timeouts}); status codes ${JSON.stringify(r.statusCodeStats)}`)
   return errors
 }
 
