@@ -4,7 +4,7 @@ import type { AppDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
-import { galaxiesService, ingestBatch, requestHash } from '../services/galaxies.service.ts'
+import { galaxiesService, gzippedDiagram, ingestBatch, requestHash } from '../services/galaxies.service.ts'
 import { BatchRequestSchema, MAX_GALAXIES_PER_REQUEST } from '../../shared/schemas/galaxy.schema.ts'
 import { GalaxyListQuerySchema, DiagramQuerySchema } from '../../shared/schemas/query.schema.ts'
 import { BatchResponseSchema, GalaxyPathSchema, GalaxyRevisionPathSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
@@ -68,7 +68,10 @@ export function galaxiesRoutes(r: Router, deps: AppDeps, guard: Guard) {
     const doc = await galaxies.diagram(params.projectId, query)
     res.setHeader('ETag', doc.etag)
     res.setHeader('Cache-Control', 'private, no-cache') // revalidate: the answer is 304 while nothing changed
+    res.setHeader('Vary', 'Accept-Encoding')
     if (req.fresh) { res.status(304).end(); return }
-    res.type('application/json').send(doc.body)
+    res.type('application/json')
+    if (req.acceptsEncodings('gzip', 'identity') === 'gzip') { res.setHeader('Content-Encoding', 'gzip'); res.send(gzippedDiagram(doc)); return }
+    res.send(doc.body)
   })
 }

@@ -1,4 +1,5 @@
 import { createHash } from 'node:crypto'
+import { gzipSync } from 'node:zlib'
 import { and, eq, sql, type SQL } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { galaxies, galaxyIntakes, intakes, projects, results, users } from '../db/schema.ts'
@@ -163,7 +164,12 @@ export function summary(row: Record<string, unknown>) {
 
 /** Least-recently-used cache of diagram documents (each up to a few tens of MB for 10⁶ galaxies). */
 const DIAGRAM_CACHE_ENTRIES = 8
-export interface DiagramDocument { body: Buffer; etag: string }
+export interface DiagramDocument { body: Buffer; etag: string; gzipped?: Buffer }
+
+/** The gzip form of a cached document, made once on first demand (about a quarter of the size). */
+export function gzippedDiagram(doc: DiagramDocument): Buffer {
+  return (doc.gzipped ??= gzipSync(doc.body, { level: 6 }))
+}
 const diagramCache = new Map<string, DiagramDocument>()
 
 export function galaxiesService(db: Db) {

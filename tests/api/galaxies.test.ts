@@ -123,6 +123,9 @@ describe('queries', () => {
     expect(changed.status).toBe(200)
     expect(changed.body.ids).toContain('ETAG-1')
     expect(changed.body.count).toBe(first.body.count + 1)
+    const gz = await owner.agent.get(`/api/v1/projects/${projectId}/diagram`).set('Accept-Encoding', 'gzip')
+    expect(gz.headers['content-encoding']).toBe('gzip')
+    expect(gz.body.ids).toEqual(changed.body.ids) // supertest inflates it
   })
 
   it('answers 404 for another project, as if it did not exist', async () => {
