@@ -171,6 +171,7 @@ export function gzippedDiagram(doc: DiagramDocument): Buffer {
   return (doc.gzipped ??= gzipSync(doc.body, { level: 6 }))
 }
 const diagramCache = new Map<string, DiagramDocument>()
+const diagramInflight = new Map<string, Promise<DiagramDocument>>()
 
 export function galaxiesService(db: Db) {
   return {
@@ -237,6 +238,16 @@ export function galaxiesService(db: Db) {
       const cacheKey = `${projectId}|${revision}|${version}|${JSON.stringify(f)}`
       const hit = diagramCache.get(cacheKey)
       if (hit !== undefined) { diagramCache.delete(cacheKey); diagramCache.set(cacheKey, hit); return hit }
+      // concurrent misses for the same document share one query instead of each running it
+      const pending = diagramInflight.get(cacheKey)
+      if (pending) return pending
+      const build = buildDiagram(projectId, revision, f, cacheKey).finally(() => diagramInflight.delete(cacheKey))
+      diagramInflight.set(cacheKey, build)
+      return build
+    },
+  }
+
+  async function buildDiagram(projectId: string, revision: number, f: GalaxyFilter, cacheKey: string): Promise<DiagramDocument> {
       const where = filterSql(projectId, revision, f)
       const lim = (b: { upper: number; lower: number }) =>
         sql.raw(`case when s.limits & ${b.upper} <> 0 then 1 when s.limits & ${b.lower} <> 0 then -1 else 0 end`)
@@ -264,7 +275,6 @@ export function galaxiesService(db: Db) {
       diagramCache.set(cacheKey, doc)
       while (diagramCache.size > DIAGRAM_CACHE_ENTRIES) diagramCache.delete(diagramCache.keys().next().value!)
       return doc
-    },
   }
 }
 
