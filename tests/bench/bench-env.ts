@@ -23,3 +23,16 @@ export async function benchServer(extraEnv: Record<string, string> = {}) {
     async close() { await rt.stop(); pg.stop(); rmSync(dir, { recursive: true, force: true }) },
   }
 }
+
+/** Posts `n` invented Lantern-style galaxies to the bench project in batches of 10,000. */
+export async function loadGalaxies(env: Awaited<ReturnType<typeof benchServer>>, n: number, seed: number) {
+  const { generateLanternSurvey } = await import('../../server/seed/lantern.ts')
+  const galaxies = generateLanternSurvey(n, seed).map(({ population: _p, ...g }) => g)
+  for (let i = 0; i < n; i += 10_000) {
+    const res = await fetch(`${env.rt.url}/api/v1/projects/${env.projectId}/galaxies/batch`, {
+      method: 'POST', headers: { authorization: `Bearer ${env.key}`, 'content-type': 'application/json' }, body: JSON.stringify({ galaxies: galaxies.slice(i, i + 10_000) }),
+    })
+    if (!res.ok) throw new Error(`loading galaxies: ${res.status} ${await res.text()}`)
+  }
+  return galaxies
+}

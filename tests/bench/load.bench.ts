@@ -1,19 +1,12 @@
 // `npm run bench:load`: autocannon on loopback, 50 connections for 20 s, against the stateless
 // diagnostics endpoint and against the diagram query of a 100,000-galaxy project.
 import autocannon from 'autocannon'
-import { generateLanternSurvey } from '../../server/seed/lantern.ts'
-import { benchServer } from './bench-env.ts'
+import { benchServer, loadGalaxies } from './bench-env.ts'
 
 const N = Number(process.env.BENCH_GALAXIES ?? 100_000)
 const DURATION = Number(process.env.BENCH_SECONDS ?? 20)
 const env = await benchServer()
-const galaxies = generateLanternSurvey(N, 11).map(({ population: _p, ...g }) => g)
-for (let i = 0; i < N; i += 10_000) {
-  const res = await fetch(`${env.rt.url}/api/v1/projects/${env.projectId}/galaxies/batch`, {
-    method: 'POST', headers: { authorization: `Bearer ${env.key}`, 'content-type': 'application/json' }, body: JSON.stringify({ galaxies: galaxies.slice(i, i + 10_000) }),
-  })
-  if (!res.ok) throw new Error(`load: ${res.status}`)
-}
+const galaxies = await loadGalaxies(env, N, 11)
 console.log(`project loaded with ${N} galaxies`)
 
 async function run(title: string, opts: autocannon.Options) {

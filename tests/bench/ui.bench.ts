@@ -1,20 +1,13 @@
 // `npm run bench:ui`: headless Chromium, a 100,000-galaxy project: time from navigation to the
 // first fully drawn diagrams view, and the time to apply a box selection across the panels.
-import { generateLanternSurvey } from '../../server/seed/lantern.ts'
 import { buildClientIfStale } from '../../server/runtime.ts'
 import { launchChromium } from '../e2e/browser.ts'
-import { benchServer } from './bench-env.ts'
+import { benchServer, loadGalaxies } from './bench-env.ts'
 
 const N = Number(process.env.BENCH_GALAXIES ?? 100_000)
 buildClientIfStale((m) => console.log(m))
 const env = await benchServer()
-const galaxies = generateLanternSurvey(N, 13).map(({ population: _p, ...g }) => g)
-for (let i = 0; i < N; i += 10_000) {
-  const res = await fetch(`${env.rt.url}/api/v1/projects/${env.projectId}/galaxies/batch`, {
-    method: 'POST', headers: { authorization: `Bearer ${env.key}`, 'content-type': 'application/json' }, body: JSON.stringify({ galaxies: galaxies.slice(i, i + 10_000) }),
-  })
-  if (!res.ok) throw new Error(`load: ${res.status}`)
-}
+await loadGalaxies(env, N, 13)
 const browser = await launchChromium()
 const page = await browser.newPage({ viewport: { width: 1920, height: 1080 } })
 await page.goto(`${env.rt.url}/sign-in`)
