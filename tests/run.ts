@@ -30,6 +30,7 @@ try {
     passed = j.numPassedTests; failed = j.numFailedTests + (j.numRuntimeErrorTestSuites ?? 0); skipped = j.numPendingTests + (j.numTodoTests ?? 0)
   } else failed = 1
   code = r.status === 0 && failed === 0 ? 0 : 1
+  if (code !== 0 && failed === 0) failed = 1 // vitest failed outside any test (an unhandled error): count it
   console.log(`\n${passed} passed, ${failed} failed, ${skipped} skipped`)
 } finally {
   pg.stop()

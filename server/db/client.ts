@@ -12,8 +12,11 @@ pg.types.setTypeParser(20, (v) => Number(v))
 
 export function connect(url: string, max = 10): Db {
   const pool = new pg.Pool({ connectionString: url, max, connectionTimeoutMillis: 5000 })
-  // An idle client losing its server (database restart) must not crash the process.
+  // A client losing its server (database restart) must not crash the process: idle clients report
+  // on the pool, checked-out ones on themselves (their pending query rejects as well, and the pool
+  // drops the broken client when it is released).
   pool.on('error', () => {})
+  pool.on('connect', (client) => { client.on('error', () => {}) })
   return drizzle(pool, { schema, casing: 'snake_case' }) as Db
 }
 
