@@ -111,15 +111,19 @@ export function authenticate(db: Db, config: Config) {
   }
 }
 
+/** A member's role as a caller acts with it: an API key caps it (read → viewer, write → analyst). */
+export function capRole(auth: Auth, role: Role): Role {
+  if (!auth.key) return role
+  const cap: Role = auth.key.access === 'read' ? 'viewer' : 'analyst'
+  return RANK[role] <= RANK[cap] ? role : cap
+}
+
 /** The role a caller acts with in a project: the lesser of membership and key scope; null → 404. */
 export async function effectiveRole(db: Db, auth: Auth, projectId: string): Promise<Role | null> {
   if (auth.key?.projectId && auth.key.projectId !== projectId) return null
   const [m] = await db.select({ role: memberships.role }).from(memberships)
     .where(and(eq(memberships.projectId, projectId), eq(memberships.userId, auth.user.id)))
-  if (!m) return null
-  if (!auth.key) return m.role
-  const cap: Role = auth.key.access === 'read' ? 'viewer' : 'analyst'
-  return RANK[m.role] <= RANK[cap] ? m.role : cap
+  return m ? capRole(auth, m.role) : null
 }
 
 const UUID_RE = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i

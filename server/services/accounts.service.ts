@@ -3,7 +3,7 @@ import { randomBytes } from 'node:crypto'
 import { and, eq, gt, isNull, sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { apiKeys, invitations, memberships, passwordResets, projects, users } from '../db/schema.ts'
-import { sha256, type Auth, type Role } from '../http/auth.ts'
+import { capRole, sha256, type Auth, type Role } from '../http/auth.ts'
 import { HttpProblem, conflict, notFound, unauthorized, forbidden } from '../http/problem.ts'
 import { audit } from './audit.ts'
 import type { Mailer } from '../lib/mailer.ts'
@@ -89,11 +89,10 @@ export function accountsService(db: Db, mailer: Mailer, appUrl: string) {
         .from(memberships).innerJoin(projects, eq(projects.id, memberships.projectId))
         .where(eq(memberships.userId, u.id)).orderBy(projects.name)
       const scoped = auth.key?.projectId ? rows.filter((r) => r.id === auth.key!.projectId) : rows
-      const cap = auth.key ? (auth.key.access === 'read' ? 'viewer' : 'analyst') : null
       return {
         ...publicUser(u), isSiteAdmin: auth.via === 'key' ? false : u.isSiteAdmin,
         via: auth.via,
-        projects: scoped.map((r) => ({ ...r, role: cap && rank(r.role) > rank(cap) ? cap : r.role })),
+        projects: scoped.map((r) => ({ ...r, role: capRole(auth, r.role) })),
       }
     },
 
@@ -227,8 +226,6 @@ export function accountsService(db: Db, mailer: Mailer, appUrl: string) {
     },
   }
 }
-
-const rank = (r: Role) => ({ viewer: 1, analyst: 2, owner: 3 })[r]
 
 export function keyDto(k: typeof apiKeys.$inferSelect) {
   return {

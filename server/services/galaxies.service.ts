@@ -8,7 +8,7 @@ import { HttpProblem, conflict, notFound, type FieldError } from '../http/proble
 import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
 import { CLASS_NAMES, classCode, type ClassDiagram } from '../../shared/schemas/classes.ts'
 import { diagnoseMany, METHOD_VERSION, ScienceInputError, type GalaxyInput } from '../../shared/science.ts'
-import { RESULT_COLUMN_SQL, resultColumns, LIMIT_BITS } from './result-columns.ts'
+import { RESULT_COLUMN_SQL, resultRow, LIMIT_BITS } from './result-columns.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
 
@@ -45,6 +45,18 @@ export function computeAll(gals: GalaxyInputDto[], settings: Settings, prefix = 
 
 const storedInput = (g: GalaxyInputDto) => ({ lines: g.lines, ...(g.ew ? { ew: g.ew } : {}), ...(g.fwhm ? { fwhm: g.fwhm } : {}) })
 
+/**
+ * Results under the newest revision (new data are computed under it) and, while a recompute to it is
+ * still running, also under the revision the project shows, so the new galaxies appear there too.
+ */
+export async function computeForRevisions(db: Db, projectId: string, gals: GalaxyInputDto[], prefix = '/galaxies') {
+  const { revision, settings } = await revisionSettings(db, projectId)
+  const [p] = await db.select({ shown: projects.resultsRevision }).from(projects).where(eq(projects.id, projectId))
+  const computed = [{ revision, results: computeAll(gals, settings, prefix) }]
+  if (p.shown !== revision) computed.push({ revision: p.shown, results: computeAll(gals, (await revisionSettings(db, projectId, p.shown)).settings, prefix) })
+  return { revision, computed }
+}
+
 /** Writes galaxies and their results for the given revisions inside the caller's transaction. */
 export async function writeGalaxies(tx: Executor, projectId: string, intakeId: string, gals: GalaxyInputDto[],
   computed: Array<{ revision: number; results: unknown[] }>) {
@@ -65,17 +77,11 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
     await tx.execute(sql`insert into galaxy_intakes (galaxy_id, intake_id)
       select unnest(${'{' + [...idByKey.values()].join(',') + '}'}::bigint[]), ${intakeId}::uuid on conflict do nothing`)
     for (const c of computed) {
-      const resultRows = part.map((g, j) => ({ galaxy_id: idByKey.get(g.id), ...snake(resultColumns(g, c.results[start + j])), result: c.results[start + j] }))
+      const resultRows = part.map((g, j) => resultRow(idByKey.get(g.id), g, c.results[start + j]))
       await upsertResults(tx, projectId, c.revision, resultRows)
     }
   }
   return { inserted, updated }
-}
-
-function snake(cols: ReturnType<typeof resultColumns>) {
-  const out: Record<string, unknown> = {}
-  for (const [k, col] of RESULT_COLUMN_SQL) out[col] = cols[k]
-  return out
 }
 
 const RESULT_COLS = RESULT_COLUMN_SQL.map(([, c]) => c)
@@ -232,8 +238,11 @@ export function galaxiesService(db: Db) {
      * cost one scan and no per-row JavaScript.
      */
     async diagram(projectId: string, f: GalaxyFilter): Promise<DiagramDocument> {
-      const revision = await projectRevisionForQueries(db, projectId, f.revision)
-      const [{ version }] = (await db.execute<{ version: number }>(sql`select data_version as version from projects where id = ${projectId}::uuid`)).rows
+      // one read for both: the revision shown and the data version that keys the cache
+      const [p] = await db.select({ shown: projects.resultsRevision, version: projects.dataVersion }).from(projects).where(eq(projects.id, projectId))
+      if (!p) throw notFound('project')
+      const revision = f.revision ?? p.shown
+      const version = p.version
       // every results write bumps data_version, so a cached document is never stale (across processes too)
       const cacheKey = `${projectId}|${revision}|${version}|${JSON.stringify(f)}`
       const hit = diagramCache.get(cacheKey)
@@ -287,15 +296,10 @@ export async function ingestBatch(db: Db, auth: Auth, projectId: string, gals: G
       if (prev.response) return { replay: true, body: prev.response }
     }
   }
-  const { revision, settings } = await revisionSettings(db, projectId)
-  const [p] = await db.select({ shown: projects.resultsRevision }).from(projects).where(eq(projects.id, projectId))
+  const { settings } = await revisionSettings(db, projectId)
   const errors = checkBatchRules(gals, settings)
   if (errors.length) throw new HttpProblem(422, 'Unprocessable Content', `${errors.length} problem(s) in the batch; nothing was stored`, errors)
-  const computed = [{ revision, results: computeAll(gals, settings) }]
-  if (p.shown !== revision) {
-    const older = await revisionSettings(db, projectId, p.shown)
-    computed.push({ revision: p.shown, results: computeAll(gals, older.settings) })
-  }
+  const { revision, computed } = await computeForRevisions(db, projectId, gals)
   try {
     return await db.transaction(async (tx) => {
       const [intake] = await tx.insert(intakes).values({

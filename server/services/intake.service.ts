@@ -10,10 +10,9 @@ import { HttpProblem, notFound } from '../http/problem.ts'
 import type { Mailer } from '../lib/mailer.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 import type { IntakeOptions, IntakeProblem } from '../../shared/schemas/intake.schema.ts'
-import { checkBatchRules, computeAll, writeGalaxies } from './galaxies.service.ts'
+import { checkBatchRules, computeForRevisions, writeGalaxies } from './galaxies.service.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import { rowToGalaxy, suggestMapping } from './csv-rows.ts'
-import { projects } from '../db/schema.ts'
 
 const PREVIEW_ROWS = 20
 const MAX_PROBLEMS = 500
@@ -151,9 +150,7 @@ export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: s
         throw new HttpProblem(422, 'Unprocessable Content', `${problems.length} problem(s) in the file; nothing was stored`,
           problems.slice(0, MAX_PROBLEMS).map((p) => ({ path: `/rows/${p.row}${p.field ? '/' + p.field.replaceAll('~', '~0').replaceAll('/', '~1') : ''}`, message: `row ${p.row}${p.column ? `, column ${p.column}` : ''}: ${p.message}` })))
       }
-      const [p] = await db.select({ shown: projects.resultsRevision }).from(projects).where(eq(projects.id, projectId))
-      const computed = [{ revision, results: computeAll(galaxies, settings, '/rows') }]
-      if (p.shown !== revision) computed.push({ revision: p.shown, results: computeAll(galaxies, (await revisionSettings(db, projectId, p.shown)).settings, '/rows') })
+      const { computed } = await computeForRevisions(db, projectId, galaxies, '/rows')
       const out = await db.transaction(async (tx) => {
         const [locked] = await tx.select().from(intakes).where(eq(intakes.id, intakeId)).for('update')
         if (locked.status !== 'staged') throw new HttpProblem(409, 'Conflict', `this intake is already ${locked.status}`)

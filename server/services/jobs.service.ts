@@ -6,7 +6,7 @@ import { notFound } from '../http/problem.ts'
 import { logger } from '../lib/logger.ts'
 import { revisionSettings } from './projects.service.ts'
 import { computeAll, upsertResults } from './galaxies.service.ts'
-import { RESULT_COLUMN_SQL, resultColumns } from './result-columns.ts'
+import { resultRow } from './result-columns.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 
 export const RECOMPUTE_QUEUE = 'recompute'
@@ -67,12 +67,7 @@ export async function runRecompute(db: Db, jobId: string) {
         id: r.key, ...(r.redshift !== null ? { redshift: r.redshift } : {}), fluxUnit: r.fluxUnit, ...(r.input as Pick<GalaxyInputDto, 'lines' | 'ew' | 'fwhm'>),
       }))
       const results = computeAll(inputs, settings)
-      await upsertResults(db, job.projectId, job.revision!, rows.map((r, i) => {
-        const cols = resultColumns(inputs[i], results[i])
-        const out: Record<string, unknown> = { galaxy_id: r.id, result: results[i] }
-        for (const [k, col] of RESULT_COLUMN_SQL) out[col] = cols[k]
-        return out
-      }))
+      await upsertResults(db, job.projectId, job.revision!, rows.map((r, i) => resultRow(r.id, inputs[i], results[i])))
       done += rows.length
       lastId = rows[rows.length - 1].id
       await db.update(jobs).set({ done }).where(eq(jobs.id, jobId))

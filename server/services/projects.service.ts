@@ -1,7 +1,7 @@
 import { and, eq, sql, desc } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { assumptionRevisions, auditEvents, galaxies, intakes, memberships, projects, users } from '../db/schema.ts'
-import type { Auth, Role } from '../http/auth.ts'
+import { capRole, type Auth, type Role } from '../http/auth.ts'
 import { HttpProblem, notFound } from '../http/problem.ts'
 import { SettingsSchema, type Settings } from '../../shared/schemas/galaxy.schema.ts'
 import { audit } from './audit.ts'
@@ -129,11 +129,4 @@ async function requireAnotherOwner(tx: Pick<Db, 'select'>, projectId: string, us
   const [{ n }] = await tx.select({ n: sql<number>`count(*)::int` }).from(memberships)
     .where(and(eq(memberships.projectId, projectId), eq(memberships.role, 'owner'), sql`${memberships.userId} <> ${userId}`))
   if (n === 0) throw new HttpProblem(409, 'Conflict', 'a project needs at least one owner')
-}
-
-export function capRole(auth: Auth, role: Role): Role {
-  if (!auth.key) return role
-  const cap: Role = auth.key.access === 'read' ? 'viewer' : 'analyst'
-  const rank = { viewer: 1, analyst: 2, owner: 3 }
-  return rank[role] <= rank[cap] ? role : cap
 }

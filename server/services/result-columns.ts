@@ -50,6 +50,14 @@ export function resultColumns(g: GalaxyInputDto, r: AnyResult) {
 }
 export type ResultColumns = ReturnType<typeof resultColumns>
 
+/** One row for `upsertResults`: the galaxy, its filter columns under their SQL names, and the result. */
+export function resultRow(galaxyId: number | undefined, g: GalaxyInputDto, result: unknown): Record<string, unknown> {
+  const cols = resultColumns(g, result)
+  const row: Record<string, unknown> = { galaxy_id: galaxyId, result }
+  for (const [key, column] of RESULT_COLUMN_SQL) row[column] = cols[key]
+  return row
+}
+
 /** Column name in SQL for each stored column, with its SQL type (for json_to_recordset). */
 export const RESULT_COLUMN_SQL: Array<[keyof ResultColumns, string, string]> = [
   ['classOverall', 'class_overall', 'smallint'], ['classNii', 'class_nii', 'smallint'], ['classSii', 'class_sii', 'smallint'],
