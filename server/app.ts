@@ -11,6 +11,7 @@ import { logger } from './lib/logger.ts'
 import { buildRoutes } from './routes/index.ts'
 import type { Mailer } from './lib/mailer.ts'
 import type { JobQueue } from './services/jobs.service.ts'
+import { configureDiagramWarmup } from './services/galaxies.service.ts'
 
 export interface AppDeps {
   db: Db
@@ -23,6 +24,7 @@ export interface AppDeps {
 }
 
 export function createApp(deps: AppDeps) {
+  configureDiagramWarmup(deps.config.diagramWarmupMs)
   const app = express()
   app.disable('x-powered-by')
   app.set('trust proxy', 'loopback')

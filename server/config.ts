@@ -22,6 +22,8 @@ export interface Config {
   authRateLimit: number
   /** Intakes at least this large mail their starter when they finish. */
   largeIntakeRows: number
+  /** pause after the last write before the diagram document is rebuilt in the background (0 = off) */
+  diagramWarmupMs: number
   /** API requests per minute per key, user or address; anonymous diagnostics per address. */
   apiRateLimit: number
   anonymousDiagnosticsRateLimit: number
@@ -60,6 +62,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     secureCookies: env.SECURE_COOKIES === '1' || (env.APP_URL ?? '').startsWith('https:'),
     authRateLimit: Number(env.AUTH_RATE_LIMIT ?? 20),
     largeIntakeRows: Number(env.LARGE_INTAKE_ROWS ?? 5000),
+    diagramWarmupMs: Number(env.DIAGRAM_WARMUP_MS ?? 1500),
     apiRateLimit: Number(env.API_RATE_LIMIT ?? 1200),
     anonymousDiagnosticsRateLimit: Number(env.DIAGNOSTICS_ANON_RATE_LIMIT ?? 600),
   }

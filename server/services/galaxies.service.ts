@@ -179,6 +179,28 @@ export function gzippedDiagram(doc: DiagramDocument): Buffer {
 const diagramCache = new Map<string, DiagramDocument>()
 const diagramInflight = new Map<string, Promise<DiagramDocument>>()
 
+let warmupDelayMs = 0
+const warmTimers = new Map<string, NodeJS.Timeout>()
+/** How long writes must pause before the unfiltered diagram document is rebuilt in the background; 0 = never. */
+export function configureDiagramWarmup(delayMs: number) { warmupDelayMs = delayMs }
+
+/**
+ * After writes to a project settle, build its unfiltered diagram document so the next visitor of
+ * the Diagrams screen finds it cached instead of waiting for the query (seconds at 10⁵ galaxies).
+ * Re-armed by every write, so a bulk ingestion of many batches builds it once, at the end.
+ */
+export function warmDiagramSoon(db: Db, projectId: string) {
+  if (warmupDelayMs <= 0) return
+  clearTimeout(warmTimers.get(projectId))
+  const timer = setTimeout(() => {
+    warmTimers.delete(projectId)
+    // a failed warm-up only means the next reader builds the document itself
+    galaxiesService(db).diagram(projectId, {}).catch(() => {})
+  }, warmupDelayMs)
+  timer.unref()
+  warmTimers.set(projectId, timer)
+}
+
 export function galaxiesService(db: Db) {
   return {
     /** One page of galaxies by keyset pagination on (sort value, internal id). */
@@ -262,18 +284,22 @@ export function galaxiesService(db: Db) {
         sql.raw(`case when s.limits & ${b.upper} <> 0 then 1 when s.limits & ${b.lower} <> 0 then -1 else 0 end`)
       // one ordered scan feeds every array (array_agg keeps the subquery's order), so there is one sort
       const agg = (e: SQL | string) => sql`coalesce(array_agg(${typeof e === 'string' ? sql.raw(e) : e}), '{}')`
+      // plotting precision: 10⁻⁴ dex is far below any measurement error and halves the document
+      // (exact values are in the galaxy detail and the exports)
+      // (float8 arithmetic: an integer over a power of ten prints as the short decimal, and is far cheaper than numeric)
+      const r = (col: string, digits: number) => `round(${col} * 1e${digits}) / 1e${digits}`
       const res = await db.execute<{ doc: string }>(sql`
         select json_build_object(
           'revision', ${revision}::int, 'count', count(*),
-          'ids', ${agg('s.key')}, 'redshift', ${agg('s.redshift')},
+          'ids', ${agg('s.key')}, 'redshift', ${agg(r('s.redshift', 6))},
           'class', json_build_object('overall', ${agg('s.class_overall')}, 'nii', ${agg('s.class_nii')}, 'sii', ${agg('s.class_sii')}, 'oi', ${agg('s.class_oi')}, 'whan', ${agg('s.class_whan')}),
-          'x', json_build_object('nii', ${agg('s.x_nii')}, 'sii', ${agg('s.x_sii')}, 'oi', ${agg('s.x_oi')}),
-          'y', ${agg('s.y_oiii')},
-          'xErr', json_build_object('nii', ${agg('s.x_nii_err')}, 'sii', ${agg('s.x_sii_err')}, 'oi', ${agg('s.x_oi_err')}),
-          'yErr', ${agg('s.y_oiii_err')},
+          'x', json_build_object('nii', ${agg(r('s.x_nii', 4))}, 'sii', ${agg(r('s.x_sii', 4))}, 'oi', ${agg(r('s.x_oi', 4))}),
+          'y', ${agg(r('s.y_oiii', 4))},
+          'xErr', json_build_object('nii', ${agg(r('s.x_nii_err', 4))}, 'sii', ${agg(r('s.x_sii_err', 4))}, 'oi', ${agg(r('s.x_oi_err', 4))}),
+          'yErr', ${agg(r('s.y_oiii_err', 4))},
           'xLimit', json_build_object('nii', ${agg(lim(LIMIT_BITS.niiHa))}, 'sii', ${agg(lim(LIMIT_BITS.siiHa))}, 'oi', ${agg(lim(LIMIT_BITS.oiHa))}),
           'yLimit', ${agg(lim(LIMIT_BITS.oiiiHb))},
-          'ewHalpha', ${agg('s.ew_halpha')}
+          'ewHalpha', ${agg(r('s.ew_halpha', 3))}
         )::text as doc
         from (select g.key, g.redshift, r.class_overall, r.class_nii, r.class_sii, r.class_oi, r.class_whan, r.x_nii, r.x_sii, r.x_oi, r.y_oiii,
                 r.x_nii_err, r.x_sii_err, r.x_oi_err, r.y_oiii_err, r.limits, r.ew_halpha

@@ -5,7 +5,7 @@ import { galaxies, jobs, projects } from '../db/schema.ts'
 import { notFound } from '../http/problem.ts'
 import { logger } from '../lib/logger.ts'
 import { revisionSettings } from './projects.service.ts'
-import { computeAll, upsertResults } from './galaxies.service.ts'
+import { computeAll, upsertResults, warmDiagramSoon } from './galaxies.service.ts'
 import { resultRow } from './result-columns.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 
@@ -76,6 +76,7 @@ export async function runRecompute(db: Db, jobId: string) {
       await tx.update(projects).set({ resultsRevision: sql`greatest(${projects.resultsRevision}, ${job.revision})` }).where(eq(projects.id, job.projectId))
       await tx.update(jobs).set({ status: 'done', done, finishedAt: sql`now()` }).where(eq(jobs.id, jobId))
     })
+    warmDiagramSoon(db, job.projectId)
   } catch (err) {
     await db.update(jobs).set({ status: 'failed', error: err instanceof Error ? err.message : String(err), finishedAt: sql`now()` }).where(eq(jobs.id, jobId))
     throw err

@@ -1,4 +1,5 @@
 import { createRouter, createWebHistory, type RouteRecordRaw } from 'vue-router'
+import { useDiagramStore } from '../stores/diagram'
 import { useSessionStore } from '../stores/session'
 
 declare module 'vue-router' {
@@ -30,7 +31,11 @@ const routes: RouteRecordRaw[] = [
     children: [
       { path: '', redirect: (to) => `/projects/${String(to.params.projectId)}/overview` },
       { path: 'overview', name: 'overview', component: () => import('../views/ProjectOverviewView.vue'), props: true, meta: { title: 'Overview' } },
-      { path: 'diagrams', name: 'diagrams', component: () => import('../views/DiagramsView.vue'), props: true, meta: { title: 'Diagrams' } },
+      {
+        path: 'diagrams', name: 'diagrams', component: () => import('../views/DiagramsView.vue'), props: true, meta: { title: 'Diagrams' },
+        // start the (large) columns download now, alongside the screen's code and plotly
+        beforeEnter: (to) => { useDiagramStore().enter(String(to.params.projectId)) },
+      },
       { path: 'galaxies', name: 'galaxies', component: () => import('../views/GalaxiesView.vue'), props: true, meta: { title: 'Galaxies' } },
       { path: 'galaxies/:galaxyId', name: 'galaxy', component: () => import('../views/GalaxyView.vue'), props: true, meta: { title: 'Galaxy' } },
       { path: 'intake', name: 'intake', component: () => import('../views/IntakeView.vue'), props: true, meta: { title: 'Intake' } },

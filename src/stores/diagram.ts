@@ -19,8 +19,10 @@ export const useDiagramStore = defineStore('diagram', () => {
   const loading = ref(false)
   const problem = ref<ApiProblem | null>(null)
   const filters = ref<GalaxyFilters>({})
-  /** indices into the columns; null means nothing is selected */
+  /** indices into the columns, ascending; null means nothing is selected */
   const selection = shallowRef<number[] | null>(null)
+  /** the same selection as one byte per galaxy (1 = selected): what the panels draw from */
+  const selectionMask = shallowRef<Uint8Array | null>(null)
   /** the panel the selection was drawn in, so the others can drop their own outline */
   const selectionSource = ref<DiagramKey | null>(null)
   const colourBy = ref<ColourBy>('overall')
@@ -43,9 +45,13 @@ export const useDiagramStore = defineStore('diagram', () => {
     loading.value = true
     problem.value = null
     try {
+      // marks let `npm run bench:ui` say where the time to a drawn page goes
+      performance.mark('rg:diagram-request')
       const cols = await galaxiesApi.diagram(id, filters.value, signal)
+      performance.mark('rg:diagram-received')
       columns.value = cols
       arrays.value = prepareDiagramArrays(cols)
+      performance.mark('rg:diagram-prepared')
       clearSelection()
     } catch (e) {
       if (e instanceof DOMException && e.name === 'AbortError') return
@@ -56,18 +62,47 @@ export const useDiagramStore = defineStore('diagram', () => {
     }
   }
 
+  /** The project whose Diagrams screen is open: entering twice (router, then view) loads once. */
+  let entered: string | null = null
+
+  /**
+   * Entering the Diagrams screen. The router calls this as soon as the route is chosen, so the
+   * columns download while the screen's code and plotly load; the view calls it again on mount.
+   */
+  function enter(id: string) {
+    if (entered === id) return
+    entered = id
+    // a different project must not inherit the previous one's filters or selection
+    if (projectId.value !== id) { filters.value = {}; columns.value = null; arrays.value = null; settings.value = null; clearSelection() }
+    void load(id)
+  }
+
+  /** Leaving the screen: the next visit loads afresh (a 304 when nothing changed). */
+  function leave() {
+    entered = null
+  }
+
   function select(indices: number[] | null, source: DiagramKey | null = null) {
-    selection.value = indices ? [...new Set(indices)].sort((a, b) => a - b) : null
+    if (!indices) return clearSelection()
+    performance.mark('rg:select')
+    const mask = new Uint8Array(arrays.value?.count ?? 0)
+    for (const i of indices) if (i >= 0 && i < mask.length) mask[i] = 1
+    // the mask also de-duplicates and orders the indices
+    const sorted: number[] = []
+    for (let i = 0; i < mask.length; i++) if (mask[i]) sorted.push(i)
     selectionSource.value = source
+    selectionMask.value = mask
+    selection.value = sorted
   }
 
   function clearSelection() {
     selection.value = null
+    selectionMask.value = null
     selectionSource.value = null
   }
 
   return {
-    projectId, columns, arrays, loading, problem, filters, selection, selectionSource, selectionCount,
-    colourBy, showErrors, showReddening, settings, load, select, clearSelection,
+    projectId, columns, arrays, loading, problem, filters, selection, selectionMask, selectionSource, selectionCount,
+    colourBy, showErrors, showReddening, settings, load, enter, leave, select, clearSelection,
   }
 })

@@ -60,8 +60,9 @@ describe('a scientist\'s day in the dashboard', () => {
     const { page, projectId, problems } = await signIn('viewer')
     await page.goto(`${base}/projects/${projectId}/diagrams`)
     for (const k of ['nii', 'sii', 'oi', 'whan']) await page.locator(`[data-testid="diagram-${k}"][data-ready="true"]`).waitFor({ timeout: 60_000 })
-    // WebGL traces run under our Content-Security-Policy (plotly's CSP-safe build), no SVG fallback
-    expect(await page.locator('[data-testid="diagram-nii"] [data-renderer]').getAttribute('data-renderer')).toBe('webgl')
+    // the points are our own canvas layer under plotly's frame (axes, lines, outlines)
+    expect(await page.locator('[data-testid="diagram-nii"] [data-renderer]').getAttribute('data-renderer')).toBe('canvas')
+    for (const k of ['nii', 'sii', 'oi', 'whan']) await page.locator(`[data-testid="diagram-${k}"][data-drawn="true"]`).waitFor({ timeout: 30_000 })
     const drag = await page.getByTestId('diagram-nii').locator('.nsewdrag').first().boundingBox()
     expect(drag).not.toBeNull()
     // a box over the star-forming branch, left-middle of the [N II] panel
@@ -71,16 +72,49 @@ describe('a scientist\'s day in the dashboard', () => {
     await page.mouse.up()
     await expect.poll(async () => Number(await page.getByTestId('selection-count').textContent()), { timeout: 10_000 }).toBeGreaterThan(0)
     const count = Number(await page.getByTestId('selection-count').textContent())
-    const selected = await page.evaluate(() => ['nii', 'sii', 'oi', 'whan'].map((k) => {
-      const gd = document.querySelector(`[data-testid="diagram-${k}"] .js-plotly-plot`) as unknown as { data: Array<{ selectedpoints?: number[]; customdata?: unknown[] }> } | null
-      const pts = gd?.data?.[0]?.selectedpoints
-      return Array.isArray(pts) ? pts.length : -1
-    }))
     // each panel highlights the selection; galaxies without a position on a diagram cannot be drawn there
-    for (const n of selected) { expect(n).toBeGreaterThan(0); expect(n).toBeLessThanOrEqual(count) }
+    await expect.poll(() => page.getByTestId('diagram-nii').getAttribute('data-selected')).toBe(String(count))
+    for (const k of ['sii', 'oi', 'whan']) {
+      const n = Number(await page.getByTestId(`diagram-${k}`).getAttribute('data-selected'))
+      expect(n).toBeGreaterThan(0)
+      expect(n).toBeLessThanOrEqual(count)
+    }
+    // the highlighted layer holds coloured pixels inside the box and none far outside it
+    const painted = await page.evaluate(() => {
+      const canvases = document.querySelectorAll('[data-testid="diagram-nii"] canvas.points')
+      const sel = canvases[1] as HTMLCanvasElement
+      const d = sel.getContext('2d')!.getImageData(0, 0, sel.width, sel.height).data
+      let inside = 0, rightEdge = 0
+      for (let y = 0; y < sel.height; y++) for (let x = 0; x < sel.width; x++) {
+        if (d[(y * sel.width + x) * 4 + 3] === 0) continue
+        if (x > sel.width * 0.9) rightEdge++; else inside++
+      }
+      return { inside, rightEdge }
+    })
+    expect(painted.inside).toBeGreaterThan(100)
+    expect(painted.rightEdge).toBe(0)
     const rows = await page.getByTestId('selection-row').count()
     expect(rows).toBeGreaterThan(0)
     await shot(page, 'e2e-diagrams-selection')
+    // hover a selected galaxy where plotly's own axis puts it: the tooltip names it; a click opens it
+    const firstRow = page.getByTestId('selection-row').first()
+    const hoverId = (await firstRow.locator('a').innerText()).trim()
+    const spot = await page.evaluate((id) => {
+      const gd = document.querySelector('[data-testid="diagram-nii"] .js-plotly-plot') as unknown as {
+        _fullLayout: { _size: { l: number; t: number }; xaxis: { l2p: (v: number) => number }; yaxis: { l2p: (v: number) => number } }
+        getBoundingClientRect: () => DOMRect
+      }
+      const rowCells = [...document.querySelectorAll('[data-testid="selection-row"]')].find((r) => r.textContent?.includes(id))!.querySelectorAll('td')
+      const x = Number(rowCells[4].textContent), y = Number(rowCells[5].textContent)
+      const r = gd.getBoundingClientRect(), fl = gd._fullLayout
+      const dx = fl._size.l + fl.xaxis.l2p(x), dy = fl._size.t + fl.yaxis.l2p(y)
+      return { x: r.left + dx, y: r.top + dy, dx, dy }
+    }, hoverId)
+    await page.mouse.move(spot.x, spot.y)
+    await expect.poll(() => page.getByTestId('diagram-tip').isVisible(), { timeout: 5_000 }).toBe(true)
+    const tipId = (await page.getByTestId('diagram-tip').innerText()).split('\n')[0].trim()
+    expect(tipId).toMatch(/^\S+$/)
+    await shot(page, 'e2e-diagrams-hover')
     // open a galaxy from the selection table
     const firstId = (await page.getByTestId('selection-row').first().locator('a').innerText()).trim()
     await page.getByTestId('selection-row').first().locator('a').click()
@@ -89,6 +123,17 @@ describe('a scientist\'s day in the dashboard', () => {
     await page.getByTestId('flux-table').waitFor()
     await expect.poll(() => page.getByTestId('diagnostics-panel').isVisible()).toBe(true)
     await shot(page, 'e2e-galaxy')
+    // back on the diagrams, a click on the hovered spot opens that galaxy
+    await page.goBack()
+    await page.locator('[data-testid="diagram-nii"][data-drawn="true"]').waitFor({ timeout: 30_000 })
+    // the page may come back scrolled: the spot is kept relative to the plot
+    await page.getByTestId('diagram-nii').scrollIntoViewIfNeeded()
+    const plot = await page.locator('[data-testid="diagram-nii"] .js-plotly-plot').boundingBox()
+    await page.mouse.move(plot!.x + spot.dx, plot!.y + spot.dy)
+    await page.mouse.down()
+    await page.mouse.up()
+    await page.waitForURL(/\/galaxies\/[^/]+$/)
+    expect(decodeURIComponent(page.url())).toContain(`/galaxies/${tipId}`)
     expect(problems).toEqual([])
   })
 

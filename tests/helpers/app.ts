@@ -23,7 +23,7 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { job
   const db = connect(databaseUrl, 10)
   const catcher = await startMailCatcher(db)
   const mailer = smtpMailer(catcher.url)
-  const config = loadConfig({ ...process.env, JWT_SECRET: 'test-secret-not-for-production', APP_URL: 'http://127.0.0.1:8080', AUTH_RATE_LIMIT: '1000', ...env })
+  const config = loadConfig({ ...process.env, JWT_SECRET: 'test-secret-not-for-production', APP_URL: 'http://127.0.0.1:8080', AUTH_RATE_LIMIT: '1000', DIAGRAM_WARMUP_MS: '0', ...env })
   const jobs = opts.jobs ? await startJobQueue(databaseUrl) : undefined
   if (jobs) await startRecomputeWorker(jobs.boss, db)
   const app = createApp({ db, config, mailer, jobs: jobs?.queue })

@@ -1,18 +1,19 @@
 import type { ClassDiagram, DiagramColumns, DiagramKey } from '../../api/types'
 import { classColour, classLabel } from '../../utils/classes'
+import { parseColour, SYMBOL, type SymbolCode } from './point-raster'
 
 /**
- * The columnar /diagram answer turned into what WebGL traces take: typed arrays with NaN for
- * "not measured" (plotly skips non-finite points), one marker symbol per point for limits, and
- * colours per class. Computed once per load; panels only restyle afterwards.
+ * The columnar /diagram answer turned into what the point layer draws: typed arrays with NaN for
+ * "not measured", a marker shape per point where a panel has limits, and a class code per point
+ * with its palette. Computed once per load; selection and colouring only redraw.
  */
 export interface PanelArrays {
   x: Float64Array
   y: Float64Array
   xErr: Float64Array
   yErr: Float64Array
-  /** one symbol per point, or a single 'circle' when the panel has no limits (cheaper to draw) */
-  symbols: string[] | 'circle'
+  /** marker shape per point (SYMBOL codes), or null when the panel has no limits */
+  symbols: Uint8Array | null
   /** how many points have both coordinates */
   placed: number
 }
@@ -21,22 +22,11 @@ export interface DiagramArrays {
   count: number
   ids: string[]
   panels: Record<DiagramKey, PanelArrays>
-  colours: Record<ClassDiagram, string[]>
-  labels: Record<ClassDiagram, string[]>
-  /** class codes as numbers plus a stepped colour scale: WebGL traces restyle far faster with these than with colour strings */
-  codes: Record<ClassDiagram, Float32Array>
-  scales: Record<ClassDiagram, { colorscale: [number, string][]; cmax: number }>
-}
-
-/** A colour scale that is constant over each integer code 0 … k−1. */
-export function steppedScale(colours: string[]): { colorscale: [number, string][]; cmax: number } {
-  const k = colours.length
-  if (k <= 1) return { colorscale: [[0, colours[0] ?? '#8E8E8E'], [1, colours[0] ?? '#8E8E8E']], cmax: 1 }
-  const scale: [number, string][] = []
-  colours.forEach((c, i) => {
-    scale.push([Math.max(0, (i - 0.5) / (k - 1)), c], [Math.min(1, (i + 0.5) / (k - 1)), c])
-  })
-  return { colorscale: scale, cmax: k - 1 }
+  /** class code per point for each classification; codes outside the vocabulary become its last name (unclassified) */
+  codes: Record<ClassDiagram, Uint8Array>
+  names: Record<ClassDiagram, string[]>
+  /** straight RGB (0–1) per class code, Okabe & Ito hues */
+  palettes: Record<ClassDiagram, [number, number, number][]>
 }
 
 function toFloat(values: (number | null)[] | undefined, n: number, map?: (v: number) => number): Float64Array {
@@ -57,8 +47,20 @@ export function limitSymbol(xLimit: number, yLimit: number): string {
   return yLimit === 1 ? 'triangle-down' : 'triangle-up'
 }
 
-function symbolsOrCircle(symbols: string[]): string[] | 'circle' {
-  return symbols.every((v) => v === 'circle') ? 'circle' : symbols
+/** The same choice as limitSymbol, as a SYMBOL code for the point layer. */
+export function limitSymbolCode(xLimit: number, yLimit: number): SymbolCode {
+  if (xLimit === 0 && yLimit === 0) return SYMBOL.circle
+  if (xLimit !== 0 && yLimit !== 0) return SYMBOL.diamond
+  if (xLimit === 1) return SYMBOL.left
+  if (xLimit === -1) return SYMBOL.right
+  return yLimit === 1 ? SYMBOL.down : SYMBOL.up
+}
+
+function symbolCodes(n: number, xl: number[] | undefined, yl: number[] | undefined): Uint8Array | null {
+  if (!xl?.some((v) => v) && !yl?.some((v) => v)) return null
+  const out = new Uint8Array(n)
+  for (let i = 0; i < n; i++) out[i] = limitSymbolCode(xl?.[i] ?? 0, yl?.[i] ?? 0)
+  return out
 }
 
 function countPlaced(x: Float64Array, y: Float64Array): number {
@@ -74,45 +76,35 @@ export function prepareDiagramArrays(cols: DiagramColumns): DiagramArrays {
   const panels = {} as Record<DiagramKey, PanelArrays>
   for (const key of ['nii', 'sii', 'oi'] as const) {
     const x = toFloat(cols.x[key], n)
-    const xl = cols.xLimit?.[key]
-    const symbols = new Array<string>(n)
-    for (let i = 0; i < n; i++) symbols[i] = limitSymbol(xl?.[i] ?? 0, cols.yLimit?.[i] ?? 0)
-    panels[key] = { x, y, xErr: toFloat(cols.xErr?.[key], n), yErr, symbols: symbolsOrCircle(symbols), placed: countPlaced(x, y) }
+    panels[key] = { x, y, xErr: toFloat(cols.xErr?.[key], n), yErr, symbols: symbolCodes(n, cols.xLimit?.[key], cols.yLimit), placed: countPlaced(x, y) }
   }
   // WHAN: EW(Hα) on a log axis, so only positive widths can be placed
   const whanY = toFloat(cols.ewHalpha, n, (v) => (v > 0 ? v : NaN))
-  const niiLimits = cols.xLimit?.nii
-  const whanSymbols = new Array<string>(n)
-  for (let i = 0; i < n; i++) whanSymbols[i] = limitSymbol(niiLimits?.[i] ?? 0, 0)
   panels.whan = {
     x: panels.nii.x, y: whanY, xErr: panels.nii.xErr, yErr: new Float64Array(n).fill(NaN),
-    symbols: symbolsOrCircle(whanSymbols), placed: countPlaced(panels.nii.x, whanY),
+    symbols: symbolCodes(n, cols.xLimit?.nii, undefined), placed: countPlaced(panels.nii.x, whanY),
   }
 
-  const colours = {} as Record<ClassDiagram, string[]>
-  const labels = {} as Record<ClassDiagram, string[]>
-  const codesOut = {} as Record<ClassDiagram, Float32Array>
-  const scales = {} as Record<ClassDiagram, { colorscale: [number, string][]; cmax: number }>
+  const codes = {} as Record<ClassDiagram, Uint8Array>
+  const names = {} as Record<ClassDiagram, string[]>
+  const palettes = {} as Record<ClassDiagram, [number, number, number][]>
   for (const d of ['overall', 'nii', 'sii', 'oi', 'whan'] as const) {
-    const names = cols.classNames?.[d] ?? []
-    const codes = cols.class?.[d] ?? []
-    const colourOf = names.map(classColour)
-    const labelOf = names.map(classLabel)
-    const c = new Array<string>(n)
-    const l = new Array<string>(n)
-    const k = new Float32Array(n)
-    const unknown = Math.max(0, names.length - 1) // codes outside the vocabulary show as the last name (unclassified)
+    const vocabulary = cols.classNames?.[d]?.length ? cols.classNames[d] : ['unclassified']
+    const given = cols.class?.[d] ?? []
+    const unknown = vocabulary.length - 1
+    const k = new Uint8Array(n)
     for (let i = 0; i < n; i++) {
-      const code = codes[i]
-      const known = code >= 0 && code < names.length
-      c[i] = known ? colourOf[code] : classColour(null)
-      l[i] = known ? labelOf[code] : 'Unclassified'
-      k[i] = known ? code : unknown
+      const code = given[i]
+      k[i] = code >= 0 && code < vocabulary.length ? code : unknown
     }
-    colours[d] = c
-    labels[d] = l
-    codesOut[d] = k
-    scales[d] = steppedScale(colourOf.length ? colourOf : [classColour(null)])
+    codes[d] = k
+    names[d] = vocabulary
+    palettes[d] = vocabulary.map((v) => parseColour(classColour(v)))
   }
-  return { count: n, ids: cols.ids, panels, colours, labels, codes: codesOut, scales }
+  return { count: n, ids: cols.ids, panels, codes, names, palettes }
+}
+
+/** The class label of point i under a classification, for tooltips. */
+export function classLabelAt(a: DiagramArrays, d: ClassDiagram, i: number): string {
+  return classLabel(a.names[d][a.codes[d][i]])
 }

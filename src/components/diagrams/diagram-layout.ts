@@ -121,22 +121,3 @@ export const PLOT_CONFIG: Partial<Config> = {
   modeBarButtonsToRemove: ['autoScale2d', 'toggleSpikelines', 'hoverCompareCartesian', 'hoverClosestCartesian'],
   toImageButtonOptions: { format: 'png', filename: 'ratiograph-diagram', scale: 2 },
 }
-
-let webGlTraces: boolean | null = null
-
-/**
- * Whether WebGL traces can run here. The app loads plotly's CSP-safe build (vite.config.ts alias),
- * so only a WebGL context is needed. Without one the panels fall back to SVG traces: slower for a
- * very large sample, but the diagrams, selection and hover still work.
- */
-export function canUseWebGlTraces(): boolean {
-  if (webGlTraces !== null) return webGlTraces
-  try {
-    // plotly's CSP-safe build needs no eval, only a WebGL context (software rendering counts)
-    const canvas = document.createElement('canvas')
-    webGlTraces = !!(canvas.getContext('webgl') || canvas.getContext('experimental-webgl'))
-  } catch {
-    webGlTraces = false
-  }
-  return webGlTraces
-}

@@ -41,4 +41,33 @@ describe('SelectionTable', () => {
     expect(w.findAll('[data-testid="selection-row"]')).toHaveLength(0)
     expect(w.text()).toMatch(/Drag a box or a lasso/)
   })
+
+  it('sorts by a column on click, missing values last, and back again', async () => {
+    const w = mountTable([0, 1, 2, 3, 4])
+    const ids = () => w.findAll('[data-testid="selection-row"]').map((r) => r.find('a, .router-link-stub').text() || r.text().split(' ')[0])
+    await w.get('[data-testid="selection-sort-oiiiHb"]').trigger('click')
+    expect(ids()[0]).toContain('LNS-1') // y = −0.2 is the smallest
+    expect(ids()[4]).toContain('LNS-5') // no value: last
+    await w.get('[data-testid="selection-sort-oiiiHb"]').trigger('click')
+    expect(ids()[0]).toContain('LNS-3') // 0.8, descending
+    expect(ids()[4]).toContain('LNS-5') // still last
+    expect(w.get('th[aria-sort="descending"]').text()).toContain('[O III]')
+  })
+})
+
+describe('SelectionTable with a large selection', () => {
+  it('builds only the rows in view, however many are selected', () => {
+    const big = 50_000
+    const cols: DiagramColumns = { ...columns, count: big, ids: Array.from({ length: big }, (_, i) => `G-${i}`),
+      redshift: [], class: { overall: [], nii: [], sii: [], oi: [], whan: [] }, x: { nii: [], sii: [], oi: [] }, y: [], ewHalpha: [] }
+    const w = mount(SelectionTable, {
+      props: { projectId: 'p1', columns: cols, selection: Array.from({ length: big }, (_, i) => i) },
+      global: { plugins: [createVuetify()], stubs: { RouterLink: RouterLinkStub } },
+    })
+    const rows = w.findAll('[data-testid="selection-row"]')
+    // 420 px of 36 px rows plus the overscan of 6 below the view
+    expect(rows.length).toBeGreaterThan(10)
+    expect(rows.length).toBeLessThan(30)
+    expect(w.text()).toMatch(/50\D?000 galaxies selected/)
+  })
 })

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import type { DiagramColumns } from '../../../../../src/api/types'
-import { limitSymbol, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
+import { classLabelAt, limitSymbol, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
+import { parseColour, SYMBOL } from '../../../../../src/components/diagrams/point-raster'
 import { CLASS_COLOURS } from '../../../../../src/utils/classes'
 
 const names = {
@@ -36,14 +37,27 @@ describe('prepareDiagramArrays', () => {
   })
 
   it('marks limits with arrow-like symbols', () => {
-    expect(a.panels.nii.symbols).toEqual(['circle', 'triangle-left', 'triangle-down'])
-    expect(a.panels.oi.symbols[1]).toBe('triangle-right')
+    expect(Array.from(a.panels.nii.symbols!)).toEqual([SYMBOL.circle, SYMBOL.left, SYMBOL.down])
+    expect(a.panels.oi.symbols![1]).toBe(SYMBOL.right)
+    // the WHAN panel has [N II] limits only; a panel without any limit needs no symbol array
+    expect(Array.from(a.panels.whan.symbols!)).toEqual([SYMBOL.circle, SYMBOL.left, SYMBOL.circle])
+    expect(prepareDiagramArrays({ ...cols, xLimit: { nii: [0, 0, 0], sii: [0, 0, 0], oi: [0, 0, 0] }, yLimit: [0, 0, 0] }).panels.nii.symbols).toBeNull()
     expect(limitSymbol(1, -1)).toBe('diamond')
     expect(limitSymbol(0, -1)).toBe('triangle-up')
+    expect(limitSymbolCode(1, -1)).toBe(SYMBOL.diamond)
+    expect(limitSymbolCode(0, -1)).toBe(SYMBOL.up)
   })
 
   it('colours by class with the Okabe–Ito hues', () => {
-    expect(a.colours.overall).toEqual([CLASS_COLOURS['star-forming'], CLASS_COLOURS.seyfert, CLASS_COLOURS.unclassified])
-    expect(a.labels.whan).toEqual(['Star-forming', 'Strong AGN', 'Unclassified'])
+    expect(Array.from(a.codes.overall)).toEqual([0, 2, 5])
+    expect(a.palettes.overall[a.codes.overall[0]]).toEqual(parseColour(CLASS_COLOURS['star-forming']))
+    expect(a.palettes.overall[a.codes.overall[1]]).toEqual(parseColour(CLASS_COLOURS.seyfert))
+    expect(classLabelAt(a, 'whan', 1)).toBe('Strong AGN')
+    expect(classLabelAt(a, 'whan', 2)).toBe('Unclassified')
+  })
+
+  it('maps a code outside the vocabulary to its last name (unclassified)', () => {
+    const odd = prepareDiagramArrays({ ...cols, class: { ...cols.class, overall: [0, 99, -1] } })
+    expect(Array.from(odd.codes.overall)).toEqual([0, 5, 5])
   })
 })
