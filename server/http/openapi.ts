@@ -86,6 +86,11 @@ export function buildOpenApi() {
         ...(spec.schema ? { content: { [spec.contentType ?? 'application/json']: { schema: clean(toSchema(spec.schema, 'output')), ...(spec.example ? { example: spec.example } : {}) } } }
           : spec.contentType ? { content: { [spec.contentType]: { schema: { type: 'string' } } } } : {}),
       }
+      if (spec.alternatives?.length) {
+        const content = (op.responses![status] as { content?: Record<string, unknown> }).content ?? { 'application/json': {} }
+        for (const alt of spec.alternatives) content[alt.contentType] = { schema: { type: 'string', format: 'binary', description: alt.description } }
+        ;(op.responses![status] as { content?: Record<string, unknown> }).content = content
+      }
     }
     const problem = { content: { 'application/problem+json': { schema: { $ref: '#/components/schemas/Problem' } } } }
     for (const [s, d] of [['400', 'malformed request'], ['401', 'no or invalid credentials'], ['403', 'role or key scope forbids it'], ['404', 'unknown, or not yours'], ['422', 'invalid values (field paths in errors)'], ['429', 'rate limited (Retry-After)']] as const) {

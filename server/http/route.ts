@@ -5,7 +5,11 @@ import { parseRequest } from './parse-request.ts'
 export type Method = 'get' | 'post' | 'put' | 'patch' | 'delete'
 export type Access = 'public' | 'optional' | 'user' | 'admin' | 'viewer' | 'analyst' | 'owner'
 
-export interface ResponseSpec { description: string; schema?: z.ZodType; contentType?: string; example?: unknown }
+export interface ResponseSpec {
+  description: string; schema?: z.ZodType; contentType?: string; example?: unknown
+  /** other representations of the same answer, chosen by the Accept header */
+  alternatives?: Array<{ contentType: string; description: string }>
+}
 
 export interface RouteSpec<P extends z.ZodType, Q extends z.ZodType, B extends z.ZodType> {
   method: Method

@@ -4,11 +4,12 @@ import type { AppDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
-import { galaxiesService, gzippedDiagram, ingestBatch, requestHash, warmDiagramSoon } from '../services/galaxies.service.ts'
+import { binaryDiagram, galaxiesService, gzippedDiagram, ingestBatch, requestHash, warmDiagramSoon } from '../services/galaxies.service.ts'
 import { BatchRequestSchema, MAX_GALAXIES_PER_REQUEST } from '../../shared/schemas/galaxy.schema.ts'
 import { GalaxyListQuerySchema, DiagramQuerySchema } from '../../shared/schemas/query.schema.ts'
 import { BatchResponseSchema, GalaxyPathSchema, GalaxyRevisionPathSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
 import type { Guard } from './index.ts'
+import { DIAGRAM_COLUMNS_TYPE } from '../../shared/diagram-columns.ts'
 
 /** 413 before validation when a request carries more galaxies than one request may. */
 export function galaxyCountLimit(req: Request, _res: Response, next: NextFunction) {
@@ -64,15 +65,20 @@ export function galaxiesRoutes(r: Router, deps: AppDeps, guard: Guard) {
     method: 'get', path: '/projects/:projectId/diagram', tag: 'Diagrams', access: 'viewer',
     summary: 'Columnar diagram data (IDs, x per diagram, y, classes as codes, errors, limit markers)',
     description: 'Arrays are aligned by index. `class.*` are integer codes into `classNames.*`. `xLimit.*`/`yLimit`: 0 measured, 1 upper limit, −1 lower limit.',
-    params: ProjectPathSchema, query: DiagramQuerySchema, responses: { 200: { description: 'columnar arrays' } },
+    params: ProjectPathSchema, query: DiagramQuerySchema,
+    responses: { 200: { description: 'columnar arrays', alternatives: [{ contentType: DIAGRAM_COLUMNS_TYPE, description: 'the same columns in binary: "RGD1", a u32 header length, a JSON header (revision, count, ids, classNames, column table) and little-endian Float32 / Int8 columns at 4-byte boundaries (shared/diagram-columns.ts); ask with Accept' }] } },
   }, guard, async (req, res, { params, query }) => {
     const doc = await galaxies.diagram(params.projectId, query)
-    res.setHeader('ETag', doc.etag)
+    const binary = req.accepts(['application/json', DIAGRAM_COLUMNS_TYPE]) === DIAGRAM_COLUMNS_TYPE
+    // each representation has its own validator, so a cache never answers one with the other
+    res.setHeader('ETag', binary ? doc.etag.replace(/^"d/, '"b') : doc.etag)
     res.setHeader('Cache-Control', 'private, no-cache') // revalidate: the answer is 304 while nothing changed
-    res.setHeader('Vary', 'Accept-Encoding')
+    res.setHeader('Vary', 'Accept, Accept-Encoding')
     if (req.fresh) { res.status(304).end(); return }
+    const gzip = req.acceptsEncodings('gzip', 'identity') === 'gzip'
+    if (gzip) res.setHeader('Content-Encoding', 'gzip')
+    if (binary) { res.type(DIAGRAM_COLUMNS_TYPE); res.send(binaryDiagram(doc, gzip)); return }
     res.type('application/json')
-    if (req.acceptsEncodings('gzip', 'identity') === 'gzip') { res.setHeader('Content-Encoding', 'gzip'); res.send(gzippedDiagram(doc)); return }
-    res.send(doc.body)
+    res.send(gzip ? gzippedDiagram(doc) : doc.body)
   })
 }

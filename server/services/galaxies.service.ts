@@ -11,6 +11,7 @@ import { diagnoseMany, METHOD_VERSION, ScienceInputError, type GalaxyInput } fro
 import { RESULT_COLUMN_SQL, resultRow, LIMIT_BITS } from './result-columns.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
+import { encodeDiagramColumns, typedColumns, type DiagramColumnsJson } from '../../shared/diagram-columns.ts'
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 type Executor = Db | Tx
@@ -170,11 +171,17 @@ export function summary(row: Record<string, unknown>) {
 
 /** Least-recently-used cache of diagram documents (each up to a few tens of MB for 10⁶ galaxies). */
 const DIAGRAM_CACHE_ENTRIES = 8
-export interface DiagramDocument { body: Buffer; etag: string; gzipped?: Buffer }
+export interface DiagramDocument { body: Buffer; etag: string; gzipped?: Buffer; binary?: Buffer; binaryGzipped?: Buffer }
 
 /** The gzip form of a cached document, made once on first demand (about a quarter of the size). */
 export function gzippedDiagram(doc: DiagramDocument): Buffer {
   return (doc.gzipped ??= gzipSync(doc.body, { level: 6 }))
+}
+
+/** The binary form (shared/diagram-columns.ts) of a cached document, made once on first demand. */
+export function binaryDiagram(doc: DiagramDocument, gzip: boolean): Buffer {
+  doc.binary ??= Buffer.from(encodeDiagramColumns(typedColumns(JSON.parse(doc.body.toString('utf8')) as DiagramColumnsJson)))
+  return gzip ? (doc.binaryGzipped ??= gzipSync(doc.binary, { level: 6 })) : doc.binary
 }
 const diagramCache = new Map<string, DiagramDocument>()
 const diagramInflight = new Map<string, Promise<DiagramDocument>>()

@@ -1,6 +1,8 @@
 import { createRouter, createWebHistory, type RouteRecordRaw } from 'vue-router'
 import { useDiagramStore } from '../stores/diagram'
+import { useProjectsStore } from '../stores/projects'
 import { useSessionStore } from '../stores/session'
+import { loadPlotly } from '../utils/plotly'
 
 declare module 'vue-router' {
   interface RouteMeta {
@@ -28,13 +30,19 @@ const routes: RouteRecordRaw[] = [
     path: '/projects/:projectId',
     component: () => import('../views/ProjectShellView.vue'),
     props: true,
+    // the shell shows its screens once the project is known: ask for it before the shell's code loads
+    beforeEnter: (to) => { useProjectsStore().fetchOne(String(to.params.projectId)).catch(() => {}) }, // the shell reports failures
     children: [
       { path: '', redirect: (to) => `/projects/${String(to.params.projectId)}/overview` },
       { path: 'overview', name: 'overview', component: () => import('../views/ProjectOverviewView.vue'), props: true, meta: { title: 'Overview' } },
       {
         path: 'diagrams', name: 'diagrams', component: () => import('../views/DiagramsView.vue'), props: true, meta: { title: 'Diagrams' },
-        // start the (large) columns download now, alongside the screen's code and plotly
-        beforeEnter: (to) => { useDiagramStore().enter(String(to.params.projectId)) },
+        // start the (large) columns download now, and plotly's download and compile beside it,
+        // instead of after the screen's own code has loaded and mounted
+        beforeEnter: (to) => {
+          useDiagramStore().enter(String(to.params.projectId))
+          loadPlotly().catch(() => {}) // the panels report a failed load themselves
+        },
       },
       { path: 'galaxies', name: 'galaxies', component: () => import('../views/GalaxiesView.vue'), props: true, meta: { title: 'Galaxies' } },
       { path: 'galaxies/:galaxyId', name: 'galaxy', component: () => import('../views/GalaxyView.vue'), props: true, meta: { title: 'Galaxy' } },

@@ -1,10 +1,10 @@
 import { defineStore } from 'pinia'
 import { computed, ref, shallowRef } from 'vue'
-import { galaxiesApi } from '../api/galaxies'
+import { loadDiagramArrays } from '../api/diagram-columns'
 import { ApiProblem } from '../api/http'
 import { projectsApi } from '../api/projects'
-import type { DiagramColumns, DiagramKey, GalaxyFilters, Settings } from '../api/types'
-import { prepareDiagramArrays, type DiagramArrays } from '../components/diagrams/diagram-arrays'
+import type { DiagramKey, GalaxyFilters, Settings } from '../api/types'
+import type { DiagramArrays } from '../components/diagrams/diagram-arrays'
 
 export type ColourBy = 'overall' | 'own'
 
@@ -14,12 +14,11 @@ export type ColourBy = 'overall' | 'own'
  */
 export const useDiagramStore = defineStore('diagram', () => {
   const projectId = ref<string | null>(null)
-  const columns = shallowRef<DiagramColumns | null>(null)
   const arrays = shallowRef<DiagramArrays | null>(null)
   const loading = ref(false)
   const problem = ref<ApiProblem | null>(null)
   const filters = ref<GalaxyFilters>({})
-  /** indices into the columns, ascending; null means nothing is selected */
+  /** indices into the arrays, ascending; null means nothing is selected */
   const selection = shallowRef<number[] | null>(null)
   /** the same selection as one byte per galaxy (1 = selected): what the panels draw from */
   const selectionMask = shallowRef<Uint8Array | null>(null)
@@ -47,11 +46,9 @@ export const useDiagramStore = defineStore('diagram', () => {
     try {
       // marks let `npm run bench:ui` say where the time to a drawn page goes
       performance.mark('rg:diagram-request')
-      const cols = await galaxiesApi.diagram(id, filters.value, signal)
+      // downloaded, parsed and turned into typed arrays off the main thread
+      arrays.value = await loadDiagramArrays(id, filters.value, signal)
       performance.mark('rg:diagram-received')
-      columns.value = cols
-      arrays.value = prepareDiagramArrays(cols)
-      performance.mark('rg:diagram-prepared')
       clearSelection()
     } catch (e) {
       if (e instanceof DOMException && e.name === 'AbortError') return
@@ -73,7 +70,7 @@ export const useDiagramStore = defineStore('diagram', () => {
     if (entered === id) return
     entered = id
     // a different project must not inherit the previous one's filters or selection
-    if (projectId.value !== id) { filters.value = {}; columns.value = null; arrays.value = null; settings.value = null; clearSelection() }
+    if (projectId.value !== id) { filters.value = {}; arrays.value = null; settings.value = null; clearSelection() }
     void load(id)
   }
 
@@ -102,7 +99,7 @@ export const useDiagramStore = defineStore('diagram', () => {
   }
 
   return {
-    projectId, columns, arrays, loading, problem, filters, selection, selectionMask, selectionSource, selectionCount,
+    projectId, arrays, loading, problem, filters, selection, selectionMask, selectionSource, selectionCount,
     colourBy, showErrors, showReddening, settings, load, enter, leave, select, clearSelection,
   }
 })

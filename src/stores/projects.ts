@@ -27,13 +27,22 @@ export const useProjectsStore = defineStore('projects', () => {
     return items.value.find((p) => p.id === id)
   }
 
-  /** Fetch one project (the shell does this on entry) and keep the list in step. */
-  async function fetchOne(id: string): Promise<Project> {
-    const project = await projectsApi.get(id)
-    const i = items.value.findIndex((p) => p.id === id)
-    if (i >= 0) items.value.splice(i, 1, project)
-    else items.value.push(project)
-    return project
+  const inflight = new Map<string, Promise<Project>>()
+  /**
+   * Fetch one project (the router starts this on entry, the shell waits for it) and keep the list
+   * in step; concurrent calls for the same project share one request.
+   */
+  function fetchOne(id: string): Promise<Project> {
+    const pending = inflight.get(id)
+    if (pending) return pending
+    const request = projectsApi.get(id).then((project) => {
+      const i = items.value.findIndex((p) => p.id === id)
+      if (i >= 0) items.value.splice(i, 1, project)
+      else items.value.push(project)
+      return project
+    }).finally(() => inflight.delete(id))
+    inflight.set(id, request)
+    return request
   }
 
   return { items, loading, problem, loaded, load, create, byId, fetchOne }

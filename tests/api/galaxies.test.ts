@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import { signedInAgent, startTestApp, type TestApp } from '../helpers/app.ts'
 import { galaxy, seyfert } from '../helpers/fixtures.ts'
+import { decodeDiagramColumns, DIAGRAM_COLUMNS_TYPE } from '../../shared/diagram-columns.ts'
 
 let t: TestApp
 let owner: Awaited<ReturnType<typeof signedInAgent>>
@@ -112,6 +113,33 @@ describe('queries', () => {
     // plotting precision: ratios are rounded to 10⁻⁴ dex (log10(1.1) = 0.041393 → 0.0414)
     expect(d.x.nii[i]).toBe(0.0414)
     expect(d.x.nii[i]).toBeCloseTo(Math.log10(330 / 300), 4)
+  })
+
+  it('serves the same columns in binary when asked by Accept, with its own validator', async () => {
+    const json = (await owner.agent.get(`/api/v1/projects/${projectId}/diagram`)).body
+    const res = await owner.agent.get(`/api/v1/projects/${projectId}/diagram`).set('Accept', `${DIAGRAM_COLUMNS_TYPE}, application/json;q=0.5`)
+      .buffer(true).parse((r, done) => { const chunks: Buffer[] = []; r.on('data', (c: Buffer) => chunks.push(c)); r.on('end', () => done(null, Buffer.concat(chunks))) })
+    expect(res.status).toBe(200)
+    expect(res.headers['content-type']).toContain(DIAGRAM_COLUMNS_TYPE)
+    expect(res.headers.vary).toContain('Accept')
+    expect(res.headers.etag).toMatch(/^"b/)
+    const body = res.body as Buffer
+    const d = decodeDiagramColumns(body.buffer.slice(body.byteOffset, body.byteOffset + body.byteLength) as ArrayBuffer)
+    expect(d.count).toBe(json.count)
+    expect(d.ids).toEqual(json.ids)
+    const i = d.ids.indexOf('P-000')
+    // Float32 of the 10⁻⁴-dex value, so equal to 6 decimals
+    expect(d.x.nii[i]).toBeCloseTo(json.x.nii[i], 6)
+    expect(d.class.nii[i]).toBe(json.class.nii[i])
+    for (let k = 0; k < d.count; k++) {
+      expect(Number.isNaN(d.y[k])).toBe(json.y[k] === null)
+      expect(d.yLimit[k]).toBe(json.yLimit[k])
+    }
+    const again = await owner.agent.get(`/api/v1/projects/${projectId}/diagram`).set('Accept', DIAGRAM_COLUMNS_TYPE).set('If-None-Match', res.headers.etag)
+    expect(again.status).toBe(304)
+    // the JSON validator does not revalidate the binary form
+    const other = await owner.agent.get(`/api/v1/projects/${projectId}/diagram`).set('Accept', DIAGRAM_COLUMNS_TYPE).set('If-None-Match', `"d${res.headers.etag.slice(2)}`)
+    expect(other.status).toBe(200)
   })
 
   it('revalidates diagram data by ETag, and a new intake changes it', async () => {

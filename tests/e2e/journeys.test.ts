@@ -137,6 +137,36 @@ describe('a scientist\'s day in the dashboard', () => {
     expect(problems).toEqual([])
   })
 
+  it('selects with a lasso from the toolbar, and the points follow a zoom', async () => {
+    const { page, projectId, problems } = await signIn('viewer')
+    await page.goto(`${base}/projects/${projectId}/diagrams`)
+    for (const k of ['nii', 'sii', 'oi', 'whan']) await page.locator(`[data-testid="diagram-${k}"][data-drawn="true"]`).waitFor({ timeout: 60_000 })
+    const sii = page.getByTestId('diagram-sii')
+    await sii.hover()
+    const titles = await sii.locator('.modebar-btn').evaluateAll((els) => els.map((e) => e.getAttribute('data-title')))
+    expect(titles).toEqual(expect.arrayContaining(['Box Select', 'Lasso Select', 'Zoom', 'Pan', 'Save this diagram as PNG']))
+    await sii.locator('[data-title="Lasso Select"]').click()
+    const b = (await sii.locator('.nsewdrag').first().boundingBox())!
+    await page.mouse.move(b.x + b.width * 0.2, b.y + b.height * 0.2)
+    await page.mouse.down()
+    for (const [fx, fy] of [[0.5, 0.2], [0.5, 0.6], [0.2, 0.6], [0.21, 0.21]]) await page.mouse.move(b.x + b.width * fx, b.y + b.height * fy, { steps: 5 })
+    await page.mouse.up()
+    await expect.poll(async () => Number(await page.getByTestId('selection-count').textContent()), { timeout: 10_000 }).toBeGreaterThan(0)
+    const count = await page.getByTestId('selection-count').textContent()
+    await expect.poll(() => sii.getAttribute('data-selected')).toBe(count)
+    // a zoom from the toolbar redraws the point layer for the new window
+    const nii = page.getByTestId('diagram-nii')
+    const paints = () => page.evaluate(() => performance.getEntriesByName('rg:points-nii').length)
+    const before = await paints()
+    await nii.hover()
+    await nii.locator('[data-title="Zoom in"]').click()
+    await expect.poll(paints, { timeout: 5_000 }).toBeGreaterThan(before)
+    const range = await page.evaluate(() => (document.querySelector('[data-testid="diagram-nii"] .js-plotly-plot') as unknown as { layout: { xaxis: { range: number[] } } }).layout.xaxis.range)
+    expect(range[1] - range[0]).toBeLessThan(3.1 * 0.75) // the full window is 3.1 dex wide
+    await shot(page, 'e2e-diagrams-lasso-zoom')
+    expect(problems).toEqual([])
+  })
+
   it('exports CSV with the project\'s rows and values', async () => {
     const { page, projectId } = await signIn('viewer')
     await page.goto(`${base}/projects/${projectId}/exports`)

@@ -1,6 +1,7 @@
 import type { ClassDiagram, DiagramColumns, DiagramKey } from '../../api/types'
 import { classColour, classLabel } from '../../utils/classes'
 import { parseColour, SYMBOL, type SymbolCode } from './point-raster'
+import { typedColumns, type DiagramColumnsJson, type TypedDiagramColumns } from '../../../shared/diagram-columns.ts'
 
 /**
  * The columnar /diagram answer turned into what the point layer draws: typed arrays with NaN for
@@ -8,10 +9,10 @@ import { parseColour, SYMBOL, type SymbolCode } from './point-raster'
  * with its palette. Computed once per load; selection and colouring only redraw.
  */
 export interface PanelArrays {
-  x: Float64Array
-  y: Float64Array
-  xErr: Float64Array
-  yErr: Float64Array
+  x: Float32Array
+  y: Float32Array
+  xErr: Float32Array
+  yErr: Float32Array
   /** marker shape per point (SYMBOL codes), or null when the panel has no limits */
   symbols: Uint8Array | null
   /** how many points have both coordinates */
@@ -19,23 +20,19 @@ export interface PanelArrays {
 }
 
 export interface DiagramArrays {
+  /** the assumptions revision the results were computed under */
+  revision: number
   count: number
   ids: string[]
+  redshift: Float32Array
+  /** EW(Hα) as measured (Å, emission positive); the WHAN panel places only positive widths */
+  ew: Float32Array
   panels: Record<DiagramKey, PanelArrays>
   /** class code per point for each classification; codes outside the vocabulary become its last name (unclassified) */
   codes: Record<ClassDiagram, Uint8Array>
   names: Record<ClassDiagram, string[]>
   /** straight RGB (0–1) per class code, Okabe & Ito hues */
   palettes: Record<ClassDiagram, [number, number, number][]>
-}
-
-function toFloat(values: (number | null)[] | undefined, n: number, map?: (v: number) => number): Float64Array {
-  const out = new Float64Array(n)
-  for (let i = 0; i < n; i++) {
-    const v = values?.[i]
-    out[i] = typeof v === 'number' && Number.isFinite(v) ? (map ? map(v) : v) : NaN
-  }
-  return out
 }
 
 /** Upper limit in x points left, in y points down; lower limits the other way (REFERENCE.md §9). */
@@ -56,41 +53,45 @@ export function limitSymbolCode(xLimit: number, yLimit: number): SymbolCode {
   return yLimit === 1 ? SYMBOL.down : SYMBOL.up
 }
 
-function symbolCodes(n: number, xl: number[] | undefined, yl: number[] | undefined): Uint8Array | null {
+function symbolCodes(n: number, xl: Int8Array | undefined, yl: Int8Array | undefined): Uint8Array | null {
   if (!xl?.some((v) => v) && !yl?.some((v) => v)) return null
   const out = new Uint8Array(n)
   for (let i = 0; i < n; i++) out[i] = limitSymbolCode(xl?.[i] ?? 0, yl?.[i] ?? 0)
   return out
 }
 
-function countPlaced(x: Float64Array, y: Float64Array): number {
+function countPlaced(x: Float32Array, y: Float32Array): number {
   let n = 0
   for (let i = 0; i < x.length; i++) if (!Number.isNaN(x[i]) && !Number.isNaN(y[i])) n++
   return n
 }
 
+/** From the JSON form of GET …/diagram (tests, and a server that answers JSON only). */
 export function prepareDiagramArrays(cols: DiagramColumns): DiagramArrays {
-  const n = cols.ids.length
-  const y = toFloat(cols.y, n)
-  const yErr = toFloat(cols.yErr, n)
+  return prepareTypedColumns(typedColumns(cols as unknown as DiagramColumnsJson))
+}
+
+/** From the typed form (the binary answer decodes straight into it); the data columns are used as they are. */
+export function prepareTypedColumns(t: TypedDiagramColumns): DiagramArrays {
+  const n = t.count
   const panels = {} as Record<DiagramKey, PanelArrays>
   for (const key of ['nii', 'sii', 'oi'] as const) {
-    const x = toFloat(cols.x[key], n)
-    panels[key] = { x, y, xErr: toFloat(cols.xErr?.[key], n), yErr, symbols: symbolCodes(n, cols.xLimit?.[key], cols.yLimit), placed: countPlaced(x, y) }
+    panels[key] = { x: t.x[key], y: t.y, xErr: t.xErr[key], yErr: t.yErr, symbols: symbolCodes(n, t.xLimit[key], t.yLimit), placed: countPlaced(t.x[key], t.y) }
   }
   // WHAN: EW(Hα) on a log axis, so only positive widths can be placed
-  const whanY = toFloat(cols.ewHalpha, n, (v) => (v > 0 ? v : NaN))
+  const whanY = new Float32Array(n)
+  for (let i = 0; i < n; i++) whanY[i] = t.ewHalpha[i] > 0 ? t.ewHalpha[i] : NaN
   panels.whan = {
-    x: panels.nii.x, y: whanY, xErr: panels.nii.xErr, yErr: new Float64Array(n).fill(NaN),
-    symbols: symbolCodes(n, cols.xLimit?.nii, undefined), placed: countPlaced(panels.nii.x, whanY),
+    x: t.x.nii, y: whanY, xErr: t.xErr.nii, yErr: new Float32Array(n).fill(NaN),
+    symbols: symbolCodes(n, t.xLimit.nii, undefined), placed: countPlaced(t.x.nii, whanY),
   }
 
   const codes = {} as Record<ClassDiagram, Uint8Array>
   const names = {} as Record<ClassDiagram, string[]>
   const palettes = {} as Record<ClassDiagram, [number, number, number][]>
   for (const d of ['overall', 'nii', 'sii', 'oi', 'whan'] as const) {
-    const vocabulary = cols.classNames?.[d]?.length ? cols.classNames[d] : ['unclassified']
-    const given = cols.class?.[d] ?? []
+    const vocabulary = t.classNames?.[d]?.length ? t.classNames[d] : ['unclassified']
+    const given = t.class[d]
     const unknown = vocabulary.length - 1
     const k = new Uint8Array(n)
     for (let i = 0; i < n; i++) {
@@ -101,7 +102,22 @@ export function prepareDiagramArrays(cols: DiagramColumns): DiagramArrays {
     names[d] = vocabulary
     palettes[d] = vocabulary.map((v) => parseColour(classColour(v)))
   }
-  return { count: n, ids: cols.ids, panels, codes, names, palettes }
+  return { revision: t.revision, count: n, ids: t.ids, redshift: t.redshift, ew: t.ewHalpha, panels, codes, names, palettes }
+}
+
+/** Every typed array's buffer once, for handing the arrays from a worker without copying. */
+export function transferables(a: DiagramArrays): ArrayBuffer[] {
+  const out = new Set<ArrayBuffer>()
+  const add = (v: ArrayBufferView | null) => { if (v) out.add(v.buffer as ArrayBuffer) }
+  add(a.redshift); add(a.ew)
+  for (const p of Object.values(a.panels)) { add(p.x); add(p.y); add(p.xErr); add(p.yErr); add(p.symbols) }
+  for (const c of Object.values(a.codes)) add(c)
+  return [...out]
+}
+
+/** The class name of point i under a classification. */
+export function classNameAt(a: DiagramArrays, d: ClassDiagram, i: number): string {
+  return a.names[d][a.codes[d][i]]
 }
 
 /** The class label of point i under a classification, for tooltips. */

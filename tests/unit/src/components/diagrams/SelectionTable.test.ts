@@ -3,6 +3,7 @@ import { mount, RouterLinkStub } from '@vue/test-utils'
 import { createVuetify } from 'vuetify'
 import SelectionTable from '../../../../../src/components/diagrams/SelectionTable.vue'
 import type { DiagramColumns } from '../../../../../src/api/types'
+import { prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
 
 const n = 5
 const columns: DiagramColumns = {
@@ -20,7 +21,7 @@ const columns: DiagramColumns = {
 
 function mountTable(selection: number[] | null) {
   return mount(SelectionTable, {
-    props: { projectId: 'p1', columns, selection },
+    props: { projectId: 'p1', arrays: prepareDiagramArrays(columns), selection },
     global: { plugins: [createVuetify()], stubs: { RouterLink: RouterLinkStub } },
   })
 }
@@ -61,7 +62,7 @@ describe('SelectionTable with a large selection', () => {
     const cols: DiagramColumns = { ...columns, count: big, ids: Array.from({ length: big }, (_, i) => `G-${i}`),
       redshift: [], class: { overall: [], nii: [], sii: [], oi: [], whan: [] }, x: { nii: [], sii: [], oi: [] }, y: [], ewHalpha: [] }
     const w = mount(SelectionTable, {
-      props: { projectId: 'p1', columns: cols, selection: Array.from({ length: big }, (_, i) => i) },
+      props: { projectId: 'p1', arrays: prepareDiagramArrays(cols), selection: Array.from({ length: big }, (_, i) => i) },
       global: { plugins: [createVuetify()], stubs: { RouterLink: RouterLinkStub } },
     })
     const rows = w.findAll('[data-testid="selection-row"]')

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import type { DiagramColumns } from '../../../../../src/api/types'
-import { classLabelAt, limitSymbol, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
+import { classLabelAt, limitSymbol, transferables, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
 import { parseColour, SYMBOL } from '../../../../../src/components/diagrams/point-raster'
 import { CLASS_COLOURS } from '../../../../../src/utils/classes'
 
@@ -28,8 +28,22 @@ const cols: DiagramColumns = {
 describe('prepareDiagramArrays', () => {
   const a = prepareDiagramArrays(cols)
 
+  it('keeps the revision, redshifts and the measured EW (NaN where missing)', () => {
+    expect(a.revision).toBe(1)
+    // Float32 columns, as the binary form delivers them
+    expect(Array.from(a.redshift)).toEqual([Math.fround(0.1), Math.fround(0.2), NaN])
+    expect(Array.from(a.ew)).toEqual([24, 8, -1])
+  })
+
+  it('lists each typed array buffer once for a zero-copy transfer', () => {
+    const buffers = transferables(a)
+    expect(new Set(buffers).size).toBe(buffers.length)
+    expect(buffers).toContain(a.panels.whan.x.buffer) // shared with the [N II] panel, listed once
+    expect(buffers).toContain(a.codes.overall.buffer)
+  })
+
   it('turns missing values into NaN and counts what can be placed', () => {
-    expect(Array.from(a.panels.nii.x)).toEqual([-0.5, 0.1, NaN])
+    expect(Array.from(a.panels.nii.x)).toEqual([-0.5, Math.fround(0.1), NaN])
     expect(a.panels.nii.placed).toBe(2)
     // WHAN needs a positive EW for its log axis
     expect(Number.isNaN(a.panels.whan.y[2])).toBe(true)
