@@ -201,8 +201,9 @@ export function warmDiagramSoon(db: Db, projectId: string) {
   clearTimeout(warmTimers.get(projectId))
   const timer = setTimeout(() => {
     warmTimers.delete(projectId)
-    // a failed warm-up only means the next reader builds the document itself
-    galaxiesService(db).diagram(projectId, {}).catch(() => {})
+    // the dashboard asks for the binary form, gzipped: make that too. A failed warm-up only means
+    // the next reader builds the document itself
+    galaxiesService(db).diagram(projectId, {}).then((doc) => { binaryDiagram(doc, true) }).catch(() => {})
   }, warmupDelayMs)
   timer.unref()
   warmTimers.set(projectId, timer)
