@@ -158,34 +158,34 @@ function blend(buf: Float32Array, o: number, r: number, g: number, b: number, a:
   buf[o + 3] = a + buf[o + 3] * k
 }
 
+/**
+ * One error bar: `thick` parallel runs of pixels along an axis from c − h to c + h (clipped to
+ * `len`), the runs at k, k + 1, … across it (clipped to `across`). `at` gives a pixel's offset.
+ */
+function bar(buf: Float32Array, c: number, h: number, len: number, k: number, across: number, thick: number,
+  at: (along: number, across: number) => number, step: number, r: number, g: number, b: number, a: number) {
+  const from = Math.max(0, Math.round(c - h)), to = Math.min(len - 1, Math.round(c + h))
+  for (let t = 0; t < thick; t++) {
+    const j = k + t
+    if (j < 0 || j >= across) continue
+    for (let s = from, o = at(from, j); s <= to; s++, o += step) blend(buf, o, r, g, b, a)
+  }
+}
+
 function drawErrors(buf: Float32Array, inp: RasterInput, e: ErrorBars) {
   const { width: W, height: H, px, py } = inp
   const [r, g, b, alpha] = e.colour
   const thick = Math.max(1, Math.round(inp.scale ?? 1))
+  const xy = (x: number, y: number) => (y * W + x) * 4
+  const yx = (y: number, x: number) => (y * W + x) * 4
   for (let i = 0; i < px.length; i++) {
     const X = px[i], Y = py[i]
     if (X !== X) continue
     const a = e.mask && e.mask[i] !== 1 ? alpha * (e.dimmed ?? 1) : alpha
     if (a <= 0) continue
-    const cx = Math.round(X), cy = Math.round(Y)
-    const hx = e.ex ? e.ex[i] : 0
-    if (hx > 0.5) {
-      const from = Math.max(0, Math.round(X - hx)), to = Math.min(W - 1, Math.round(X + hx))
-      for (let t = 0; t < thick; t++) {
-        const row = cy + t
-        if (row < 0 || row >= H) continue
-        for (let xx = from, o = (row * W + from) * 4; xx <= to; xx++, o += 4) blend(buf, o, r, g, b, a)
-      }
-    }
-    const hy = e.ey ? e.ey[i] : 0
-    if (hy > 0.5) {
-      const from = Math.max(0, Math.round(Y - hy)), to = Math.min(H - 1, Math.round(Y + hy))
-      for (let t = 0; t < thick; t++) {
-        const col = cx + t
-        if (col < 0 || col >= W) continue
-        for (let yy = from, o = (from * W + col) * 4; yy <= to; yy++, o += W * 4) blend(buf, o, r, g, b, a)
-      }
-    }
+    const hx = e.ex ? e.ex[i] : 0, hy = e.ey ? e.ey[i] : 0
+    if (hx > 0.5) bar(buf, X, hx, W, Math.round(Y), H, thick, xy, 4, r, g, b, a)
+    if (hy > 0.5) bar(buf, Y, hy, H, Math.round(X), W, thick, yx, W * 4, r, g, b, a)
   }
 }
 

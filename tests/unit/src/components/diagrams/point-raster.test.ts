@@ -93,4 +93,12 @@ describe('rasterise', () => {
     expect(at(out, 3, 10)[3]).toBe(0)
     expect(at(out, 10, 6)[3]).toBe(0) // no y bar asked for
   })
+
+  it('draws vertical bars too, clipped at the edge of the window', () => {
+    const out = new Uint8ClampedArray(21 * 21 * 4)
+    rasterise(out, input({ layers: [{ diameter: 1, opacity: 0 }], errors: { ex: null, ey: Float32Array.of(15), colour: [0, 0, 0, 1] } }))
+    expect(at(out, 10, 0)[3]).toBe(255) // 10 − 15 is clipped to row 0
+    expect(at(out, 10, 20)[3]).toBe(255)
+    expect(at(out, 9, 10)[3]).toBe(0)
+  })
 })
