@@ -4,7 +4,7 @@ import type { AppDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
-import { binaryDiagram, galaxiesService, gzippedDiagram, ingestBatch, requestHash, warmDiagramSoon } from '../services/galaxies.service.ts'
+import { binaryDiagram, galaxiesService, gzippedDiagram, ingestBatch, requestHash, writingGalaxies } from '../services/galaxies.service.ts'
 import { BatchRequestSchema, MAX_GALAXIES_PER_REQUEST } from '../../shared/schemas/galaxy.schema.ts'
 import { GalaxyListQuerySchema, DiagramQuerySchema } from '../../shared/schemas/query.schema.ts'
 import { BatchResponseSchema, GalaxyPathSchema, GalaxyRevisionPathSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
@@ -37,9 +37,8 @@ export function galaxiesRoutes(r: Router, deps: AppDeps, guard: Guard) {
   async (req, res, { params, body }) => {
     const key = req.get('idempotency-key')
     if (key !== undefined && (key.length === 0 || key.length > 200)) throw new HttpProblem(422, 'Unprocessable Content', 'Idempotency-Key must be 1–200 characters', [{ path: '/headers/Idempotency-Key', message: '1–200 characters' }])
-    const out = await ingestBatch(deps.db, requireAuth(req), params.projectId, body.galaxies, key, requestHash(req.body))
+    const out = await writingGalaxies(deps.db, params.projectId, () => ingestBatch(deps.db, requireAuth(req), params.projectId, body.galaxies, key, requestHash(req.body)))
     if (out.replay) res.setHeader('Idempotent-Replayed', 'true')
-    else warmDiagramSoon(deps.db, params.projectId)
     res.json(out.body)
   })
 

@@ -11,7 +11,7 @@ import { HttpProblem } from '../http/problem.ts'
 import { intakeService } from '../services/intake.service.ts'
 import { IntakePathSchema, IntakeSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
 import { ColumnMappingSchema, IntakeOptionsSchema } from '../../shared/schemas/intake.schema.ts'
-import { warmDiagramSoon } from '../services/galaxies.service.ts'
+import { writingGalaxies } from '../services/galaxies.service.ts'
 import type { Guard } from './index.ts'
 
 const CSV_TYPES = new Set(['text/csv', 'text/plain', 'text/tab-separated-values', 'application/csv', 'application/vnd.ms-excel', 'application/octet-stream'])
@@ -67,9 +67,7 @@ export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
     summary: 'Store every row of a staged file in one transaction (all or nothing)',
     responses: { 200: { description: 'committed', schema: z.object({ intake: IntakeSchema, inserted: z.number().int(), updated: z.number().int() }) }, 422: { description: 'problems; nothing stored' } } },
   guard, async (req, res, { params, body }) => {
-    const out = await intake.commit(requireAuth(req), params.projectId, params.intakeId, body)
-    warmDiagramSoon(deps.db, params.projectId)
-    res.json(out)
+    res.json(await writingGalaxies(deps.db, params.projectId, () => intake.commit(requireAuth(req), params.projectId, params.intakeId, body)))
   })
 
   route(r, { method: 'get', path: '/projects/:projectId/intakes/:intakeId', tag, access: 'viewer', params: IntakePathSchema,

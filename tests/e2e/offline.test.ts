@@ -32,8 +32,8 @@ describe('built client', () => {
 })
 
 /**
- * Host names inside plotly.js-dist-min: documentation links in error messages, map tile and
- * topojson defaults for geo/mapbox traces (not used: our diagrams are scattergl only), and MathJax.
+ * Host names that can stand inside a plotly bundle: documentation links in error messages, map tile
+ * and topojson defaults for geo/map traces (not in the SVG-only bundle we ship), and MathJax.
  */
 const PLOTLY_BUNDLED_DEFAULTS = new Set([
   'plot.ly', 'cdn.plot.ly', 'plotly.com', 'api.mapbox.com', 'www.mapbox.com', 'github.com', 'openstreetmap.org', 'www.openstreetmap.org',

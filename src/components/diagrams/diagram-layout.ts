@@ -34,7 +34,7 @@ export function linesFor(key: DiagramKey): DiagramLine[] {
   }
 }
 
-/** Line traces (SVG scatter, so they stay crisp above the WebGL points). */
+/** Line traces (SVG scatter, drawn above the point layer so they stay crisp). */
 export function lineTraces(key: DiagramKey, dark: boolean): Data[] {
   const base = dark ? ['#E0E0E0', '#BDBDBD', '#9E9E9E'] : LINE_COLOURS
   return linesFor(key).map((l, i) => ({
