@@ -24,6 +24,8 @@ export interface Config {
   largeIntakeRows: number
   /** pause after the last write before the diagram document is rebuilt in the background (0 = off) */
   diagramWarmupMs: number
+  /** staged CSV uploads older than this are closed and their files removed (0 = keep) */
+  stagedIntakeHours: number
   /** API requests per minute per key, user or address; anonymous diagnostics per address. */
   apiRateLimit: number
   anonymousDiagnosticsRateLimit: number
@@ -63,6 +65,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     authRateLimit: Number(env.AUTH_RATE_LIMIT ?? 20),
     largeIntakeRows: Number(env.LARGE_INTAKE_ROWS ?? 5000),
     diagramWarmupMs: Number(env.DIAGRAM_WARMUP_MS ?? 1500),
+    stagedIntakeHours: Number(env.STAGED_INTAKE_HOURS ?? 24),
     apiRateLimit: Number(env.API_RATE_LIMIT ?? 1200),
     anonymousDiagnosticsRateLimit: Number(env.DIAGNOSTICS_ANON_RATE_LIMIT ?? 600),
   }

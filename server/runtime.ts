@@ -10,6 +10,7 @@ import { smtpMailer, type Mailer } from './lib/mailer.ts'
 import { createApp } from './app.ts'
 import { logger } from './lib/logger.ts'
 import { startJobQueue, startRecomputeWorker } from './services/jobs.service.ts'
+import { expireStagedIntakes } from './services/intake.service.ts'
 
 export interface Runtime {
   config: Config
@@ -91,6 +92,12 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
   }
   if (opts.buildClient) buildClientIfStale(log)
 
+  // abandoned CSV uploads: swept at start and then hourly
+  const sweep = () => { expireStagedIntakes(db, config.stagedIntakeHours).catch((err) => logger.warn({ err }, 'sweeping staged intakes failed')) }
+  sweep()
+  const sweeper = setInterval(sweep, 60 * 60 * 1000)
+  sweeper.unref()
+
   const app = createApp({ db, config, mailer, jobs: jobs.queue, serveClient: opts.serveClient })
   const server = await new Promise<Server>((ok, fail) => {
     const s = app.listen(config.port, config.host, () => ok(s))
@@ -103,6 +110,7 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
   const url = `http://${config.host}:${port}`
   let stopping: Promise<void> | undefined
   const stop = () => stopping ??= (async () => {
+    clearInterval(sweeper)
     await new Promise<void>((ok) => { server.close(() => ok()); server.closeAllConnections() })
     await jobs.queue.stop().catch(() => {})
     mailer.close()

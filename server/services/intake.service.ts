@@ -186,3 +186,22 @@ export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: s
     uploadsDir: async () => { await mkdir(uploads, { recursive: true }); return uploads },
   }
 }
+
+/**
+ * Staged CSV uploads that nobody commits would keep their files on disk for ever. Those older
+ * than `maxAgeHours` are closed as rejected (the report says why) and their files removed. One
+ * UPDATE claims them, so a commit racing with the sweep finds the intake no longer staged (409).
+ */
+export async function expireStagedIntakes(db: Db, maxAgeHours: number): Promise<number> {
+  if (!(maxAgeHours > 0)) return 0
+  const expired = await db.execute<{ file_path: string | null }>(sql`
+    with old as (
+      select id, file_path from intakes
+      where status = 'staged' and created_at < now() - make_interval(hours => ${maxAgeHours}::int) for update)
+    update intakes i set status = 'rejected', finished_at = now(), file_path = null,
+      report = jsonb_build_object('expired', true, 'reason', ${`not committed within ${maxAgeHours} h; the uploaded file was removed`}::text)
+    from old where i.id = old.id
+    returning old.file_path`)
+  for (const r of expired.rows) if (r.file_path) await rm(r.file_path, { force: true })
+  return expired.rows.length
+}

@@ -1,5 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { parse } from 'csv-parse/sync'
+import { existsSync } from 'node:fs'
+import { expireStagedIntakes } from '../../server/services/intake.service.ts'
 import { signedInAgent, startTestApp, type TestApp } from '../helpers/app.ts'
 
 let t: TestApp
@@ -112,5 +114,29 @@ describe('exports', () => {
     expect(x).toMatch(/<FIELD name="ebv"[^>]*unit="mag"/)
     expect(x).toMatch(/<INFO name="assumptionsRevision" value="1"\/>/)
     expect(x.match(/<TR>/g)).toHaveLength(3)
+  })
+})
+
+describe('abandoned staged uploads', () => {
+  it('closes staged intakes older than the limit as rejected, removes their files, and leaves newer ones', async () => {
+    const old = (await upload(CSV, 'old.csv')).body.intake.id as string
+    const fresh = (await upload(CSV, 'fresh.csv')).body.intake.id as string
+    const pathOf = async (id: string) => (await t.db.$client.query('select file_path from intakes where id = $1', [id])).rows[0].file_path as string | null
+    const oldFile = (await pathOf(old))!
+    expect(existsSync(oldFile)).toBe(true)
+    await t.db.$client.query("update intakes set created_at = now() - interval '30 hours' where id = $1", [old])
+    expect(await expireStagedIntakes(t.db, 24)).toBe(1)
+    expect(existsSync(oldFile)).toBe(false)
+    expect(await pathOf(old)).toBeNull()
+    const shown = await owner.agent.get(`/api/v1/projects/${projectId}/intakes/${old}`)
+    expect(shown.body.status).toBe('rejected')
+    expect(shown.body.report).toMatchObject({ expired: true })
+    // too late to commit it; the newer upload is untouched and still commits
+    const late = await owner.agent.post(`/api/v1/projects/${projectId}/intakes/${old}/commit`).set('X-CSRF-Token', owner.csrf)
+      .send({ mapping: (await upload(CSV)).body.suggestedMapping, fluxUnit: 1e-17, nonDetection: 'limit-column' })
+    expect(late.status).toBe(409)
+    expect(existsSync((await pathOf(fresh))!)).toBe(true)
+    expect(await expireStagedIntakes(t.db, 24)).toBe(0)
+    expect(await expireStagedIntakes(t.db, 0)).toBe(0) // 0 keeps them for ever
   })
 })
