@@ -164,6 +164,14 @@ describe('a scientist\'s day in the dashboard', () => {
     const range = await page.evaluate(() => (document.querySelector('[data-testid="diagram-nii"] .js-plotly-plot') as unknown as { layout: { xaxis: { range: number[] } } }).layout.xaxis.range)
     expect(range[1] - range[0]).toBeLessThan(3.1 * 0.75) // the full window is 3.1 dex wide
     await shot(page, 'e2e-diagrams-lasso-zoom')
+    // from the keyboard: a class in the legend selects all its galaxies in every panel
+    await page.getByTestId('legend-seyfert').focus()
+    await page.keyboard.press('Enter')
+    await expect.poll(() => page.getByTestId('selection-count').textContent(), { timeout: 5_000 }).not.toBe(count)
+    const seyferts = Number(await page.getByTestId('selection-count').textContent())
+    expect(seyferts).toBeGreaterThan(0)
+    const overall = await page.evaluate(async (pid) => (await (await fetch(`/api/v1/projects/${pid}/galaxies?class=seyfert&limit=1`)).json()).total, projectId)
+    expect(seyferts).toBe(overall)
     expect(problems).toEqual([])
   })
 

@@ -120,6 +120,16 @@ export function classNameAt(a: DiagramArrays, d: ClassDiagram, i: number): strin
   return a.names[d][a.codes[d][i]]
 }
 
+/** Indices (ascending) of the galaxies given class `name` by any of the classifications `by`. */
+export function indicesOfClass(a: DiagramArrays, name: string, by: ClassDiagram[]): number[] {
+  const want = by.map((d) => a.names[d].indexOf(name))
+  const out: number[] = []
+  for (let i = 0; i < a.count; i++) {
+    for (let k = 0; k < by.length; k++) if (want[k] >= 0 && a.codes[by[k]][i] === want[k]) { out.push(i); break }
+  }
+  return out
+}
+
 /** The class label of point i under a classification, for tooltips. */
 export function classLabelAt(a: DiagramArrays, d: ClassDiagram, i: number): string {
   return classLabel(a.names[d][a.codes[d][i]])

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import type { DiagramColumns } from '../../../../../src/api/types'
-import { classLabelAt, limitSymbol, transferables, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
+import { classLabelAt, indicesOfClass, limitSymbol, transferables, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
 import { parseColour, SYMBOL } from '../../../../../src/components/diagrams/point-raster'
 import { CLASS_COLOURS } from '../../../../../src/utils/classes'
 
@@ -68,6 +68,15 @@ describe('prepareDiagramArrays', () => {
     expect(a.palettes.overall[a.codes.overall[1]]).toEqual(parseColour(CLASS_COLOURS.seyfert))
     expect(classLabelAt(a, 'whan', 1)).toBe('Strong AGN')
     expect(classLabelAt(a, 'whan', 2)).toBe('Unclassified')
+  })
+
+  it('finds the galaxies of a class under one classification or any of several', () => {
+    expect(indicesOfClass(a, 'seyfert', ['overall'])).toEqual([1])
+    expect(indicesOfClass(a, 'star-forming', ['overall'])).toEqual([0])
+    // 'seyfert' is a [S II] and [O I] class but not an [N II] one (that says 'agn')
+    expect(indicesOfClass(a, 'seyfert', ['nii', 'sii', 'oi', 'whan'])).toEqual([1])
+    expect(indicesOfClass(a, 'unclassified', ['nii', 'whan'])).toEqual([2])
+    expect(indicesOfClass(a, 'no-such-class', ['overall'])).toEqual([])
   })
 
   it('maps a code outside the vocabulary to its last name (unclassified)', () => {
