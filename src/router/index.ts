@@ -40,7 +40,7 @@ const routes: RouteRecordRaw[] = [
         // start the (large) columns download now, and plotly's download and compile beside it,
         // instead of after the screen's own code has loaded and mounted
         beforeEnter: (to) => {
-          useDiagramStore().enter(String(to.params.projectId))
+          useDiagramStore().prefetch(String(to.params.projectId))
           loadPlotly().catch(() => {}) // the panels report a failed load themselves
         },
       },

@@ -59,24 +59,29 @@ export const useDiagramStore = defineStore('diagram', () => {
     }
   }
 
-  /** The project whose Diagrams screen is open: entering twice (router, then view) loads once. */
-  let entered: string | null = null
+  /** A load the router started for the screen about to mount, which the screen then takes over. */
+  let prefetched: string | null = null
 
-  /**
-   * Entering the Diagrams screen. The router calls this as soon as the route is chosen, so the
-   * columns download while the screen's code and plotly load; the view calls it again on mount.
-   */
-  function enter(id: string) {
-    if (entered === id) return
-    entered = id
+  function start(id: string) {
     // a different project must not inherit the previous one's filters or selection
     if (projectId.value !== id) { filters.value = {}; arrays.value = null; settings.value = null; clearSelection() }
     void load(id)
   }
 
-  /** Leaving the screen: the next visit loads afresh (a 304 when nothing changed). */
-  function leave() {
-    entered = null
+  /**
+   * Called by the router as soon as the Diagrams route is chosen, so the columns download while the
+   * screen's code and plotly load. Every navigation loads afresh (a 304 when nothing changed).
+   */
+  function prefetch(id: string) {
+    prefetched = id
+    start(id)
+  }
+
+  /** Called by the screen on mount: takes over the router's load, or starts one. */
+  function enter(id: string) {
+    if (prefetched === id) { prefetched = null; return }
+    prefetched = null
+    start(id)
   }
 
   function select(indices: number[] | null, source: DiagramKey | null = null) {
@@ -100,6 +105,6 @@ export const useDiagramStore = defineStore('diagram', () => {
 
   return {
     projectId, arrays, loading, problem, filters, selection, selectionMask, selectionSource, selectionCount,
-    colourBy, showErrors, showReddening, settings, load, enter, leave, select, clearSelection,
+    colourBy, showErrors, showReddening, settings, load, prefetch, enter, select, clearSelection,
   }
 })
