@@ -1,3 +1,4 @@
+import type { DiagramColumnsJson } from '../../shared/diagram-columns.ts'
 /**
  * What the dashboard reads and sends, as described in server/API-DESIGN.md and the team's API
  * contract. Kept here rather than imported from the server so the client states what it relies on.
@@ -175,25 +176,8 @@ export interface GalaxyRevisionResults {
   results: GalaxyResult
 }
 
-type PerDiagram<T> = { nii: T; sii: T; oi: T }
-type Nullable = (number | null)[]
-
-/** Columnar diagram data: one entry per galaxy in every array (see API-DESIGN.md). */
-export interface DiagramColumns {
-  revision: number
-  count: number
-  ids: string[]
-  redshift: Nullable
-  class: Record<ClassDiagram, number[]>
-  classNames: Record<ClassDiagram, string[]>
-  x: PerDiagram<Nullable>
-  y: Nullable
-  xErr: PerDiagram<Nullable>
-  yErr: Nullable
-  xLimit: PerDiagram<number[]>
-  yLimit: number[]
-  ewHalpha: Nullable
-}
+/** Columnar diagram data: one entry per galaxy in every array (see API-DESIGN.md); one definition with the binary codec's. */
+export type DiagramColumns = DiagramColumnsJson
 
 export interface ColumnMapping {
   id: string

@@ -1,7 +1,7 @@
 import type { ClassDiagram, DiagramColumns, DiagramKey } from '../../api/types'
 import { classColour, classLabel } from '../../utils/classes'
 import { parseColour, SYMBOL, type SymbolCode } from './point-raster'
-import { typedColumns, type DiagramColumnsJson, type TypedDiagramColumns } from '../../../shared/diagram-columns.ts'
+import { typedColumns, type TypedDiagramColumns } from '../../../shared/diagram-columns.ts'
 
 /**
  * The columnar /diagram answer turned into what the point layer draws: typed arrays with NaN for
@@ -68,7 +68,7 @@ function countPlaced(x: Float32Array, y: Float32Array): number {
 
 /** From the JSON form of GET …/diagram (tests, and a server that answers JSON only). */
 export function prepareDiagramArrays(cols: DiagramColumns): DiagramArrays {
-  return prepareTypedColumns(typedColumns(cols as unknown as DiagramColumnsJson))
+  return prepareTypedColumns(typedColumns(cols))
 }
 
 /** From the typed form (the binary answer decodes straight into it); the data columns are used as they are. */
