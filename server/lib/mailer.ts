@@ -9,6 +9,7 @@ export interface Mailer {
   idle?(): Promise<void>
   close(): void
 }
+export interface QueuedMailer extends Mailer { idle(): Promise<void> }
 /** Hands one message to the relay; rejects when the relay refuses or cannot be reached. */
 export type Deliver = (message: MailMessage) => Promise<void>
 
@@ -27,7 +28,7 @@ export interface QueueOptions {
  * Answers never wait for SMTP, so whether a mail was sent cannot be read off the response time
  * (password reset, sign-up). Messages carry tokens: only the recipient and subject are logged.
  */
-export function queuedMailer(deliver: Deliver, opts: QueueOptions = {}): Mailer {
+export function queuedMailer(deliver: Deliver, opts: QueueOptions = {}): QueuedMailer {
   const attempts = opts.attempts ?? 5
   const backoffMs = opts.backoffMs ?? 1000
   const queue: MailMessage[] = []
@@ -87,7 +88,7 @@ export function smtpDelivery(smtpUrl: string): { deliver: Deliver; close: () => 
 }
 
 /** The product's mailer: SMTP behind the background queue. */
-export function smtpMailer(smtpUrl: string, opts: Omit<QueueOptions, 'onClose'> = {}): Mailer {
+export function smtpMailer(smtpUrl: string, opts: Omit<QueueOptions, 'onClose'> = {}): QueuedMailer {
   const smtp = smtpDelivery(smtpUrl)
   return queuedMailer(smtp.deliver, { ...opts, onClose: smtp.close })
 }
