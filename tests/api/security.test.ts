@@ -90,14 +90,19 @@ describe('security', () => {
     registerMailbox(base, outboxDb)
     for (let i = 0; i < 100; i++) { try { if ((await fetch(`${base}/api/health`)).ok) break } catch { /* starting */ } await new Promise((ok) => setTimeout(ok, 200)) }
     const password = 'Pa55word-that-must-not-leak'
-    const a = await signedInAgent(base as never, 'logs@example.org', password)
-    const key = (await a.agent.post('/api/v1/me/api-keys').set('X-CSRF-Token', a.csrf).send({ name: 'k', access: 'read' })).body.key as string
-    await request(base).get('/api/v1/me').set('Authorization', `Bearer ${key}`)
-    await request(base).post('/api/v1/auth/sign-in').send({ email: 'logs@example.org', password: 'wrong-' + password })
-    await request(base).get('/api/v1/me').set('Authorization', `Bearer ${key}x`)
-    child.kill('SIGTERM')
-    await new Promise((ok) => child.once('exit', ok))
-    await outboxDb.$client.end()
+    let key = ''
+    try {
+      const a = await signedInAgent(base as never, 'logs@example.org', password)
+      key = (await a.agent.post('/api/v1/me/api-keys').set('X-CSRF-Token', a.csrf).send({ name: 'k', access: 'read' })).body.key as string
+      await request(base).get('/api/v1/me').set('Authorization', `Bearer ${key}`)
+      await request(base).post('/api/v1/auth/sign-in').send({ email: 'logs@example.org', password: 'wrong-' + password })
+      await request(base).get('/api/v1/me').set('Authorization', `Bearer ${key}x`)
+    } finally { // never leave the server running when a step fails
+      child.kill('SIGTERM')
+      await new Promise((ok) => child.once('exit', ok))
+      await outboxDb.$client.end()
+    }
+    expect(key).toMatch(/^rg_/)
     expect(out).toMatch(/request/) // debug request lines were written
     expect(out).not.toContain(password)
     expect(out).not.toContain(key)
