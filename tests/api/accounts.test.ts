@@ -1,6 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import { signedInAgent, startTestApp, tokenIn as linkIn, waitForMail, type TestApp } from '../helpers/app.ts'
+import { startMailCatcher } from '../../server/lib/mail-catcher.ts'
+import { queuedMailer, smtpDelivery } from '../../server/lib/mailer.ts'
 
 let t: TestApp
 beforeAll(async () => { t = await startTestApp() })
@@ -343,6 +345,23 @@ describe('enumeration', () => {
       release()
       await gated.close()
     }
+  })
+})
+
+describe('the mail queue', () => {
+  it('retries a message the relay refused, in order, and idle() waits for the delivery', async () => {
+    const catcher = await startMailCatcher(t.db)
+    const smtp = smtpDelivery(catcher.url)
+    let refusals = 2
+    const mailer = queuedMailer(async (m) => { if (m.to === 'retry-1@example.org' && refusals-- > 0) throw new Error('relay busy'); await smtp.deliver(m) }, { backoffMs: 20, onClose: smtp.close })
+    try {
+      await mailer.send({ to: 'retry-1@example.org', subject: 'first', text: 'one' })
+      await mailer.send({ to: 'retry-2@example.org', subject: 'second', text: 'two' })
+      await mailer.idle()
+      const got = (await t.db.$client.query("select to_address, subject from outbox_messages where to_address like 'retry-%' order by id")).rows
+      expect(got).toEqual([{ to_address: 'retry-1@example.org', subject: 'first' }, { to_address: 'retry-2@example.org', subject: 'second' }])
+      expect(refusals).toBe(-1) // two refusals, then the third try went through
+    } finally { mailer.close(); await catcher.close() }
   })
 })
 
