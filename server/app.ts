@@ -27,7 +27,8 @@ export function createApp(deps: AppDeps) {
   configureDiagramWarmup(deps.config.diagramWarmupMs)
   const app = express()
   app.disable('x-powered-by')
-  app.set('trust proxy', 'loopback')
+  // only a configured proxy may say who the client is (X-Forwarded-For) and that it used TLS
+  app.set('trust proxy', deps.config.trustProxy)
   app.use(helmet({
     contentSecurityPolicy: {
       directives: {
@@ -39,8 +40,13 @@ export function createApp(deps: AppDeps) {
         'upgrade-insecure-requests': deps.config.secureCookies ? [] : null,
       },
     },
-    strictTransportSecurity: deps.config.secureCookies,
+    strictTransportSecurity: false, // below, per request
   }))
+  app.use((req, res, next) => {
+    // HSTS whenever the request came over TLS (directly, or through a trusted proxy that says so)
+    if (deps.config.secureCookies || req.secure) res.setHeader('Strict-Transport-Security', 'max-age=31536000; includeSubDomains')
+    next()
+  })
   app.use((req, res, next) => {
     const start = process.hrtime.bigint()
     res.on('finish', () => {

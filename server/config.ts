@@ -16,8 +16,13 @@ export interface Config {
   uploadLimitBytes: number
   embeddedPgPort: number
   appUrl: string
-  /** Secure cookies only when served over HTTPS (behind a proxy that says so). */
+  /** Secure cookies and HSTS always (SECURE_COOKIES=1 or an https APP_URL); otherwise per request over TLS. */
   secureCookies: boolean
+  /**
+   * Express "trust proxy": which peers may set X-Forwarded-For/-Proto. Off by default, so a client
+   * cannot pick its own address for the rate limits; a hop count or addresses/subnets when behind a proxy.
+   */
+  trustProxy: false | number | string[]
   /** Requests per minute per address on sign-in / sign-up / reset. */
   authRateLimit: number
   /** Intakes at least this large mail their starter when they finish. */
@@ -38,6 +43,15 @@ function readOrCreateSecret(dataDir: string): string {
     writeFileSync(file, randomBytes(32).toString('hex'), { mode: 0o600 })
   }
   return readFileSync(file, 'utf8').trim()
+}
+
+/** TRUST_PROXY: unset/0/false/off → trust no proxy; a number → that many hops; else a comma list (loopback, 10.0.0.0/8, …). */
+export function parseTrustProxy(value: string | undefined): Config['trustProxy'] {
+  const v = (value ?? '').trim()
+  if (v === '' || /^(0|false|off|no)$/i.test(v)) return false
+  if (/^\d+$/.test(v)) return Number(v)
+  if (/^(true|on|yes|all)$/i.test(v)) throw new Error('TRUST_PROXY=true would let any client choose its address; give the hop count or the proxy addresses')
+  return v.split(',').map((s) => s.trim()).filter(Boolean)
 }
 
 /** Reads the environment once; throws for settings that would be unsafe. */
@@ -62,6 +76,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     embeddedPgPort: Number(env.EMBEDDED_PG_PORT ?? 54329),
     appUrl: (env.APP_URL ?? `http://${host}:${port}`).replace(/\/$/, ''),
     secureCookies: env.SECURE_COOKIES === '1' || (env.APP_URL ?? '').startsWith('https:'),
+    trustProxy: parseTrustProxy(env.TRUST_PROXY),
     authRateLimit: Number(env.AUTH_RATE_LIMIT ?? 20),
     largeIntakeRows: Number(env.LARGE_INTAKE_ROWS ?? 5000),
     diagramWarmupMs: Number(env.DIAGRAM_WARMUP_MS ?? 1500),

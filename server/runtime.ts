@@ -113,6 +113,8 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
     clearInterval(sweeper)
     await new Promise<void>((ok) => { server.close(() => ok()); server.closeAllConnections() })
     await jobs.queue.stop().catch(() => {})
+    // let queued mail reach the relay (or the catcher, which closes next), but never hang the stop
+    await Promise.race([mailer.idle?.(), new Promise((ok) => setTimeout(ok, 5000).unref())])
     mailer.close()
     await catcher?.close()
     await db.$client.end().catch(() => {})

@@ -16,9 +16,9 @@ export const users = pgTable('users', {
   passwordHash: text().notNull(),
   isSiteAdmin: boolean().notNull().default(false),
   disabledAt: timestamp({ withTimezone: true }),
-  failedSignIns: integer().notNull().default(0),
-  lockedUntil: timestamp({ withTimezone: true }),
-  /** Sessions issued before this instant are void (sign-out, password reset). */
+  /** When the owner of the address proved it (a mailed link); keys and invitations need it. */
+  emailVerifiedAt: timestamp({ withTimezone: true }),
+  /** Sessions issued before this instant are void (sign-out, password reset, disable, e-mail change). */
   sessionsValidAfter: timestamp({ withTimezone: true }).notNull().defaultNow(),
   createdAt: createdAt(),
 }, (t) => [uniqueIndex('users_email_lower').on(sql`lower(${t.email})`)])
@@ -80,6 +80,31 @@ export const passwordResets = pgTable('password_resets', {
   usedAt: timestamp({ withTimezone: true }),
   createdAt: createdAt(),
 }, (t) => [uniqueIndex('password_resets_token').on(t.tokenHash)])
+
+/** Single-use links that prove an address: the account's own (sign-up) or a new one (e-mail change). */
+export const emailVerifications = pgTable('email_verifications', {
+  id: uuid().primaryKey().defaultRandom(),
+  userId: uuid().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  /** the address the link was mailed to; differs from users.email for an e-mail change */
+  email: text().notNull(),
+  tokenHash: text().notNull(),
+  expiresAt: timestamp({ withTimezone: true }).notNull(),
+  usedAt: timestamp({ withTimezone: true }),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('email_verifications_token').on(t.tokenHash), index('email_verifications_user').on(t.userId)])
+
+/**
+ * Failed sign-ins per (e-mail, client address) and per client address (email = ''). Keyed by the
+ * e-mail as typed (normalised), so unknown and known addresses are throttled alike, and never per
+ * account alone, so strangers elsewhere cannot lock the owner out.
+ */
+export const signInFailures = pgTable('sign_in_failures', {
+  email: text().notNull(),
+  ip: text().notNull(),
+  failures: integer().notNull(),
+  lastFailureAt: timestamp({ withTimezone: true }).notNull(),
+  lockedUntil: timestamp({ withTimezone: true }),
+}, (t) => [primaryKey({ columns: [t.email, t.ip] }), index('sign_in_failures_time').on(t.lastFailureAt)])
 
 export const auditEvents = pgTable('audit_events', {
   id: bigserial({ mode: 'number' }).primaryKey(),

@@ -44,17 +44,32 @@ function safeEqual(a: string, b: string) {
 
 interface SessionClaims { sub: string; csrf: string; iat: number; exp: number; /** issue time in ms: sign-out in the same second must still void it */ t: number }
 
+const UUID_RE = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i
+
+/** A verified token is a session only with every claim we issue; anything else counts as no session. */
+function sessionClaims(payload: unknown): SessionClaims | null {
+  if (!payload || typeof payload !== 'object') return null
+  const c = payload as Record<string, unknown>
+  const ok = typeof c.sub === 'string' && UUID_RE.test(c.sub) && typeof c.csrf === 'string' && c.csrf.length > 0
+    && Number.isFinite(c.iat) && Number.isFinite(c.exp) && Number.isFinite(c.t)
+  return ok ? (c as unknown as SessionClaims) : null
+}
+
+/** Secure cookies whenever the request came over TLS (a trusted proxy may say so), or always when configured. */
+const cookieBase = (res: Response, config: Config) =>
+  ({ sameSite: 'lax' as const, secure: config.secureCookies || res.req.secure, path: '/' })
+
 /** Issues the session cookie (httpOnly, SameSite=Lax) and the readable CSRF cookie. */
 export function setSession(res: Response, config: Config, userId: string) {
   const csrf = randomBytes(18).toString('base64url')
   const token = jwt.sign({ sub: userId, csrf, t: Date.now() }, config.jwtSecret, { expiresIn: SESSION_TTL_S, algorithm: 'HS256' })
-  const base = { sameSite: 'lax' as const, secure: config.secureCookies, path: '/', maxAge: SESSION_TTL_S * 1000 }
+  const base = { ...cookieBase(res, config), maxAge: SESSION_TTL_S * 1000 }
   res.cookie(SESSION_COOKIE, token, { ...base, httpOnly: true })
   res.cookie(CSRF_COOKIE, csrf, { ...base, httpOnly: false })
 }
 
 export function clearSession(res: Response, config: Config) {
-  const base = { sameSite: 'lax' as const, secure: config.secureCookies, path: '/' }
+  const base = cookieBase(res, config)
   res.clearCookie(SESSION_COOKIE, { ...base, httpOnly: true })
   res.clearCookie(CSRF_COOKIE, base)
 }
@@ -68,6 +83,9 @@ const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE'])
  */
 export function authenticate(db: Db, config: Config) {
   return async (req: Request, res: Response, next: NextFunction) => {
+    // answers for a caller (the signed-in user's data) must not stay in browser or proxy caches;
+    // a route that revalidates with an ETag sets its own header
+    res.setHeader('Cache-Control', 'no-store')
     const header = req.headers.authorization
     if (header) {
       const m = /^Bearer\s+(\S+)$/i.exec(header)
@@ -93,14 +111,15 @@ export function authenticate(db: Db, config: Config) {
     }
     const token = parseCookies(req.headers.cookie)[SESSION_COOKIE]
     if (!token) return next()
-    let claims: SessionClaims
+    let claims: SessionClaims | null
     try {
-      claims = jwt.verify(token, config.jwtSecret, { algorithms: ['HS256'] }) as SessionClaims
+      claims = sessionClaims(jwt.verify(token, config.jwtSecret, { algorithms: ['HS256'] }))
     } catch {
       return next()
     }
+    if (!claims) return next()
     const [user] = await db.select().from(users).where(eq(users.id, claims.sub))
-    if (!user || user.disabledAt || user.sessionsValidAfter.getTime() >= (claims.t ?? claims.iat * 1000)) return next()
+    if (!user || user.disabledAt || user.sessionsValidAfter.getTime() >= claims.t) return next()
     if (STATE_CHANGING.has(req.method)) {
       const sent = req.get(CSRF_HEADER) ?? ''
       if (!safeEqual(sent, claims.csrf)) throw new HttpProblem(403, 'Forbidden', 'missing or wrong CSRF token (send the rg_csrf cookie value in X-CSRF-Token)')
@@ -125,8 +144,6 @@ export async function effectiveRole(db: Db, auth: Auth, projectId: string): Prom
     .where(and(eq(memberships.projectId, projectId), eq(memberships.userId, auth.user.id)))
   return m ? capRole(auth, m.role) : null
 }
-
-const UUID_RE = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i
 
 /** Route guard built from the route's declared access; the server is the gate for every route. */
 export function guardFor(db: Db) {

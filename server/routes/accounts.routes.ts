@@ -7,8 +7,8 @@ import { route } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
 import { accountsService, publicUser } from '../services/accounts.service.ts'
 import {
-  AcceptInvitationSchema, ApiKeyCreateSchema, ApiKeyCreatedSchema, ApiKeySchema, IdPathSchema, ListOf, MeSchema,
-  ResetConfirmSchema, ResetRequestSchema, SignInSchema, SignUpSchema, TokenPathSchema, UserSchema,
+  AcceptInvitationSchema, ApiKeyCreateSchema, ApiKeyCreatedSchema, ApiKeySchema, EmailChangeSchema, IdPathSchema, ListOf, MeSchema,
+  ResetConfirmSchema, ResetRequestSchema, SignInSchema, SignUpSchema, TokenPathSchema, UserSchema, VerifyEmailSchema,
 } from '../../shared/schemas/api.schema.ts'
 import type { Guard } from './index.ts'
 
@@ -25,12 +25,13 @@ export function accountsRoutes(r: Router, deps: AppDeps, guard: Guard) {
   }
   const tag = 'Accounts'
 
-  route(r, { method: 'post', path: '/auth/sign-up', tag, summary: 'Create an account (and sign in)', access: 'public', body: SignUpSchema,
-    responses: { 201: { description: 'created', schema: z.object({ user: UserSchema }) }, 409: { description: 'e-mail taken' } } },
+  route(r, { method: 'post', path: '/auth/sign-up', tag, summary: 'Create an account; a link mailed to the address verifies it',
+    description: 'Answers 201 with the same shape whether or not the address already has an account (its owner is mailed a notice instead), '
+      + 'and sets no session: sign in next. API keys and joining projects need the verified address.',
+    access: 'public', body: SignUpSchema,
+    responses: { 201: { description: 'created (or a notice mailed to the existing owner)', schema: z.object({ user: UserSchema }) } } },
   limited(guard), async (req, res, { body }) => {
-    const u = await accounts.signUp(body, req.ip)
-    setSession(res, deps.config, u.id)
-    res.status(201).json({ user: publicUser(u) })
+    res.status(201).json({ user: await accounts.signUp(body, req.ip) })
   })
 
   route(r, { method: 'post', path: '/auth/sign-in', tag, summary: 'Sign in; sets the session and CSRF cookies', access: 'public', body: SignInSchema,
@@ -48,6 +49,32 @@ export function accountsRoutes(r: Router, deps: AppDeps, guard: Guard) {
     res.status(204).end()
   })
 
+  route(r, { method: 'post', path: '/auth/verify-email', tag, summary: 'Open a mailed verification link (signed in as its account)',
+    description: 'Verifies the account\'s address, or finishes an e-mail change: then every other session and every API key ends, and this answer signs you in again.',
+    access: 'user', write: true, body: VerifyEmailSchema,
+    responses: { 200: { description: 'verified', schema: z.object({ email: z.string(), changed: z.boolean() }) }, 400: { description: 'invalid, used or expired link' }, 403: { description: 'the link belongs to another account' } } },
+  limited(guard), async (req, res, { body }) => {
+    const out = await accounts.verifyEmail(requireAuth(req), body.token, req.ip)
+    if (out.changed) setSession(res, deps.config, out.userId)
+    res.json({ email: out.changed ? out.to : requireAuth(req).user.email, changed: out.changed })
+  })
+
+  route(r, { method: 'post', path: '/auth/verify-email/resend', tag, summary: 'Mail a new verification link to your address (nothing when verified)',
+    access: 'user', write: true, responses: { 202: { description: 'accepted' } } },
+  limited(guard), async (req, res) => {
+    await accounts.resendVerification(requireAuth(req))
+    res.status(202).json({ status: 'if the address is not verified yet, a link was sent' })
+  })
+
+  route(r, { method: 'post', path: '/me/email', tag, summary: 'Move your account to a new address (finished by a link mailed there)',
+    description: 'Needs the current password. The same answer whether or not the address is free; opening the link ends every session and API key of the account.',
+    access: 'user', write: true, body: EmailChangeSchema,
+    responses: { 202: { description: 'accepted; a link was mailed to the new address' }, 403: { description: 'wrong current password' } } },
+  limited(guard), async (req, res, { body }) => {
+    await accounts.requestEmailChange(requireAuth(req), body.email, body.password, req.ip)
+    res.status(202).json({ status: 'open the link mailed to the new address to finish the change' })
+  })
+
   route(r, { method: 'post', path: '/auth/password-reset', tag, summary: 'Mail a password-reset link (always 202)', access: 'public', body: ResetRequestSchema,
     responses: { 202: { description: 'accepted' } } },
   limited(guard), async (_req, res, { body }) => {
@@ -56,6 +83,7 @@ export function accountsRoutes(r: Router, deps: AppDeps, guard: Guard) {
   })
 
   route(r, { method: 'post', path: '/auth/password-reset/confirm', tag, summary: 'Set a new password with a reset token', access: 'public', body: ResetConfirmSchema,
+    description: 'Every session, API key and other outstanding reset link of the account ends; the address counts as verified.',
     responses: { 204: { description: 'password changed' }, 400: { description: 'invalid or used token' } } },
   limited(guard), async (_req, res, { body }) => {
     await accounts.confirmPasswordReset(body.token, body.password)

@@ -1,13 +1,12 @@
 import type { Router } from 'express'
-import { desc, eq, sql } from 'drizzle-orm'
+import { desc, eq } from 'drizzle-orm'
 import { z } from 'zod'
 import type { AppDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route } from '../http/route.ts'
-import { HttpProblem, notFound } from '../http/problem.ts'
+import { notFound } from '../http/problem.ts'
 import { outboxMessages, users } from '../db/schema.ts'
-import { audit } from '../services/audit.ts'
-import { publicUser } from '../services/accounts.service.ts'
+import { accountsService, publicUser } from '../services/accounts.service.ts'
 import { ListOf, OutboxPathSchema, UserAdminUpdateSchema, UserPathSchema, UserSchema } from '../../shared/schemas/api.schema.ts'
 import type { Guard } from './index.ts'
 
@@ -16,6 +15,7 @@ const OutboxItemSchema = z.object({ id: z.number().int(), to: z.string(), from: 
 
 export function adminRoutes(r: Router, deps: AppDeps, guard: Guard) {
   const { db } = deps
+  const accounts = accountsService(db, deps.mailer, deps.config.appUrl)
   const tag = 'Site admin'
   route(r, { method: 'get', path: '/admin/users', tag, summary: 'All accounts', access: 'admin', responses: { 200: { description: 'users', schema: ListOf(AdminUserSchema) } } },
     guard, async (_req, res) => {
@@ -23,15 +23,10 @@ export function adminRoutes(r: Router, deps: AppDeps, guard: Guard) {
       res.json({ items: rows.map((u) => ({ ...publicUser(u), disabledAt: u.disabledAt?.toISOString() ?? null })) })
     })
 
-  route(r, { method: 'patch', path: '/admin/users/:userId', tag, summary: 'Disable or enable an account (a disabled account cannot sign in; its keys stop)', access: 'admin', write: true,
+  route(r, { method: 'patch', path: '/admin/users/:userId', tag, summary: 'Disable or enable an account (a disabled account cannot sign in; its sessions and keys end for good)', access: 'admin', write: true,
     params: UserPathSchema, body: UserAdminUpdateSchema, responses: { 200: { description: 'updated', schema: AdminUserSchema } } },
   guard, async (req, res, { params, body }) => {
-    const auth = requireAuth(req)
-    if (params.userId === auth.user.id && body.disabled) throw new HttpProblem(409, 'Conflict', 'you cannot disable your own account')
-    const [u] = await db.update(users).set({ disabledAt: body.disabled ? sql`now()` : null, ...(body.disabled ? { sessionsValidAfter: sql`now()` } : {}) })
-      .where(eq(users.id, params.userId)).returning()
-    if (!u) throw notFound('user')
-    await audit(db, { action: body.disabled ? 'user-disabled' : 'user-enabled', actorUserId: auth.user.id, target: u.email })
+    const u = await accounts.setDisabled(requireAuth(req), params.userId, body.disabled)
     res.json({ ...publicUser(u), disabledAt: u.disabledAt?.toISOString() ?? null })
   })
 

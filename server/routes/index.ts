@@ -14,13 +14,18 @@ import { exportRoutes } from './exports.routes.ts'
 import { adminRoutes } from './admin.routes.ts'
 
 export const JSON_LIMIT = '32mb'
+/** Sign-in, sign-up, reset, verification and invitations need little; anyone can call them. */
+export const AUTH_JSON_LIMIT = '16kb'
 
 export function buildRoutes(deps: AppDeps): Router {
   const router = Router()
   const v1 = Router()
   const guard = guardFor(deps.db)
   router.use(openapiRoutes())
-  router.use('/v1', express.json({ limit: JSON_LIMIT, strict: false, type: ['application/json', 'application/*+json'] }))
+  const jsonTypes = ['application/json', 'application/*+json']
+  // the small limit first: a body read here is not read again by the general parser (413 beyond it)
+  router.use(['/v1/auth', '/v1/invitations'], express.json({ limit: AUTH_JSON_LIMIT, strict: false, type: jsonTypes }))
+  router.use('/v1', express.json({ limit: JSON_LIMIT, strict: false, type: jsonTypes }))
   router.use('/v1', authenticate(deps.db, deps.config))
   // per key (or signed-in user) and per address
   router.use('/v1', rateLimit({

@@ -28,7 +28,8 @@ export async function seedDemo(db: Db, log: (m: string) => void = () => {}) {
     for (const [i, a] of DEMO_ACCOUNTS.entries()) {
       const [existing] = await tx.select().from(users).where(sql`lower(${users.email}) = ${a.email}`)
       const [u] = existing ? [existing]
-        : await tx.insert(users).values({ email: a.email, name: a.name, passwordHash: hashes[i], isSiteAdmin: n === 0 && a.role === 'owner' }).returning()
+        // verified: the README's accounts create keys and join projects at once
+        : await tx.insert(users).values({ email: a.email, name: a.name, passwordHash: hashes[i], isSiteAdmin: n === 0 && a.role === 'owner', emailVerifiedAt: sql`now()` }).returning()
       ids[a.role] = u.id
     }
     const [p] = await tx.insert(projects).values({

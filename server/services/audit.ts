@@ -2,7 +2,8 @@ import type { Db } from '../db/client.ts'
 import { auditEvents } from '../db/schema.ts'
 
 export type AuditAction =
-  | 'sign-in' | 'sign-in-failed' | 'sign-up' | 'password-reset' | 'api-key-created' | 'api-key-revoked'
+  | 'sign-in' | 'sign-in-failed' | 'sign-up' | 'sign-up-existing-address' | 'password-reset' | 'api-key-created' | 'api-key-revoked'
+  | 'email-verified' | 'email-change-requested' | 'email-changed'
   | 'member-added' | 'member-role-changed' | 'member-removed' | 'invitation-sent' | 'invitation-revoked'
   | 'assumptions-changed' | 'project-created' | 'project-renamed' | 'project-deleted' | 'user-disabled' | 'user-enabled'
 

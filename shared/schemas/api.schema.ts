@@ -1,17 +1,23 @@
 import { z } from 'zod'
+import { NewPasswordSchema } from './password.schema.ts'
 
 export const RoleSchema = z.enum(['owner', 'analyst', 'viewer'])
 const uuid = z.uuid()
 
 export const SignUpSchema = z.object({
   email: z.email().max(200),
-  password: z.string().min(10, 'at least 10 characters').max(200),
+  password: NewPasswordSchema,
   name: z.string().trim().min(1).max(120),
 }).strict().meta({ id: 'SignUp' })
 export const SignInSchema = z.object({ email: z.string().max(200), password: z.string().max(200) }).strict().meta({ id: 'SignIn' })
 export const ResetRequestSchema = z.object({ email: z.string().max(200) }).strict()
-export const ResetConfirmSchema = z.object({ token: z.string().min(10).max(200), password: z.string().min(10, 'at least 10 characters').max(200) }).strict()
-export const AcceptInvitationSchema = z.object({ name: z.string().trim().min(1).max(120).optional(), password: z.string().min(10).max(200).optional() }).strict()
+export const ResetConfirmSchema = z.object({ token: z.string().min(10).max(200), password: NewPasswordSchema }).strict()
+export const AcceptInvitationSchema = z.object({ name: z.string().trim().min(1).max(120).optional(), password: NewPasswordSchema.optional() }).strict()
+export const VerifyEmailSchema = z.object({ token: z.string().min(10).max(200) }).strict()
+export const EmailChangeSchema = z.object({
+  email: z.email().max(200).meta({ description: 'the new address; a link mailed there finishes the change' }),
+  password: z.string().max(200).meta({ description: 'your current password' }),
+}).strict()
 export const TokenPathSchema = z.object({ token: z.string().min(10).max(200) })
 
 export const ApiKeyCreateSchema = z.object({
@@ -41,6 +47,7 @@ export const OutboxPathSchema = z.object({ id: z.coerce.number().int().positive(
 export const UserSchema = z.object({ id: uuid, email: z.string(), name: z.string(), isSiteAdmin: z.boolean(), createdAt: z.string() }).meta({ id: 'User' })
 export const MeSchema = UserSchema.extend({
   via: z.enum(['session', 'key']),
+  emailVerified: z.boolean().meta({ description: 'API keys and joining projects need a verified address' }),
   projects: z.array(z.object({ id: uuid, name: z.string(), role: RoleSchema })),
 }).meta({ id: 'Me' })
 export const ApiKeySchema = z.object({

@@ -23,6 +23,8 @@ export interface Me {
   email: string
   name: string
   isSiteAdmin: boolean
+  /** API keys and joining projects need a verified address */
+  emailVerified: boolean
   projects: ProjectRoleRef[]
 }
 

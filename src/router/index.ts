@@ -24,6 +24,7 @@ const routes: RouteRecordRaw[] = [
   { path: '/sign-in', name: 'sign-in', component: () => import('../views/SignInView.vue'), meta: { public: true, guestOnly: true, bare: true, title: 'Sign in' } },
   { path: '/sign-up', name: 'sign-up', component: () => import('../views/SignUpView.vue'), meta: { public: true, guestOnly: true, bare: true, title: 'Create an account' } },
   { path: '/reset', name: 'reset', component: () => import('../views/ResetPasswordView.vue'), meta: { public: true, bare: true, title: 'Reset password' } },
+  { path: '/verify-email', name: 'verify-email', component: () => import('../views/VerifyEmailView.vue'), meta: { public: true, bare: true, title: 'Confirm your e-mail address' } },
   { path: '/invite', name: 'invite', component: () => import('../views/InvitationView.vue'), meta: { public: true, bare: true, title: 'Invitation' } },
   { path: '/projects', name: 'projects', component: () => import('../views/ProjectsView.vue'), meta: { title: 'Projects' } },
   {

@@ -31,9 +31,20 @@ export const useSessionStore = defineStore('session', () => {
     await load(true)
   }
 
-  async function signUp(body: { email: string; password: string; name: string }) {
+  /**
+   * Signs up, then in: sign-up answers alike for a taken address (whose owner is mailed instead),
+   * so a failing sign-in here means "look in your mailbox", not an error.
+   */
+  async function signUp(body: { email: string; password: string; name: string }): Promise<'signed-in' | 'check-mail'> {
     await authApi.signUp(body)
+    try {
+      await authApi.signIn(body.email, body.password)
+    } catch (e) {
+      if (e instanceof ApiProblem && e.status === 401) return 'check-mail'
+      throw e
+    }
     await load(true)
+    return 'signed-in'
   }
 
   async function signOut() {

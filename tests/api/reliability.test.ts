@@ -19,7 +19,8 @@ const sleep = (ms: number) => new Promise((ok) => setTimeout(ok, ms))
 
 async function signUpAndProject(base: string | ReturnType<typeof createApp>) {
   const agent = request.agent(base as never)
-  const res = await agent.post('/api/v1/auth/sign-up').send({ email: 'rel@example.org', password: 'reliable password', name: 'Rel' })
+  await agent.post('/api/v1/auth/sign-up').send({ email: 'rel@example.org', password: 'reliable password', name: 'Rel' })
+  const res = await agent.post('/api/v1/auth/sign-in').send({ email: 'rel@example.org', password: 'reliable password' }) // sign-up sets no session
   const csrf = decodeURIComponent(/rg_csrf=([^;]+)/.exec(([] as string[]).concat(res.headers['set-cookie']).join(';'))![1])
   const p = await agent.post('/api/v1/projects').set('X-CSRF-Token', csrf).send({ name: 'reliability' })
   return { agent, csrf, projectId: p.body.id as string }
