@@ -7,10 +7,12 @@ import { PROJECT_ROOT } from '../server/config.ts'
 import { freePort, startEmbeddedPostgres } from '../server/db/embedded-postgres.ts'
 import { connect, runMigrations } from '../server/db/client.ts'
 
+// as root in a private folder the cluster itself is kept in a postgres-owned temporary folder (pg.dir)
 const dir = join(PROJECT_ROOT, `.pg-test-${process.pid}`)
-const port = await freePort()
-const pg = await startEmbeddedPostgres({ dir, port, durable: false, createdb: true, database: 'ratiograph_template', log: (m) => console.log(m) })
+const pg = await startEmbeddedPostgres({ dir, defaultPort: await freePort(), durable: false, createdb: true, database: 'ratiograph_template', log: (m) => console.log(m) })
 let code = 1
+// Ctrl-C reaches vitest too (same process group): wait for it to end, then stop and remove the cluster
+process.on('SIGINT', () => {})
 try {
   const db = connect(pg.url, 2)
   await runMigrations(db)
@@ -34,6 +36,7 @@ try {
   console.log(`\n${passed} passed, ${failed} failed, ${skipped} skipped`)
 } finally {
   pg.stop()
+  rmSync(pg.dir, { recursive: true, force: true })
   rmSync(dir, { recursive: true, force: true })
 }
 process.exit(code)
