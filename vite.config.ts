@@ -39,6 +39,13 @@ export default defineConfig({
         },
       },
       {
+        // start-up and the embedded database as a newcomer meets them (fresh clone, private folder, ports)
+        test: {
+          name: 'system', environment: 'node', include: ['tests/system/**/*.test.ts'],
+          testTimeout: 240_000, hookTimeout: 60_000, fileParallelism: false,
+        },
+      },
+      {
         test: {
           name: 'e2e', environment: 'node', include: ['tests/e2e/**/*.test.ts'],
           globalSetup: ['tests/e2e/global-setup.ts'],
