@@ -48,7 +48,7 @@ export default defineConfig({
       {
         test: {
           name: 'e2e', environment: 'node', include: ['tests/e2e/**/*.test.ts'],
-          globalSetup: ['tests/e2e/global-setup.ts'],
+          globalSetup: ['tests/e2e/global-setup.ts'], setupFiles: ['tests/e2e/page-errors.ts'],
           testTimeout: 120_000, hookTimeout: 180_000, fileParallelism: false,
         },
       },
