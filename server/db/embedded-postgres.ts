@@ -102,7 +102,7 @@ export async function freePort(): Promise<number> {
   })
 }
 
-/** The folder a relocated cluster's folder names (in `cluster-location`) and the one it lives in. */
+/** The file in the requested folder that names where its relocated cluster lives. */
 export const CLUSTER_POINTER = 'cluster-location'
 /** Durable clusters that postgres cannot keep where they were asked for live here. */
 export const RELOCATED_CLUSTERS = '/var/lib/ratiograph'
@@ -161,7 +161,10 @@ function placeCluster(requested: string, durable: boolean, log: (m: string) => v
     ownDir(dir, owner)
     return { dir, relocatedFrom: requested }
   }
-  if (!isRoot()) { chmodSync(requested, 0o700); return { dir: requested } }
+  if (!isRoot()) {
+    try { chmodSync(requested, 0o700) } catch { /* a folder of another owner: postgres (us) says so itself if it matters */ }
+    return { dir: requested }
+  }
   if (postgresCan(dirname(requested))) {
     chownSync(requested, owner.uid, owner.gid)
     chmodSync(requested, 0o700)
