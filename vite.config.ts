@@ -39,9 +39,16 @@ export default defineConfig({
         },
       },
       {
+        // start-up and the embedded database as a newcomer meets them (fresh clone, private folder, ports)
+        test: {
+          name: 'system', environment: 'node', include: ['tests/system/**/*.test.ts'],
+          testTimeout: 240_000, hookTimeout: 60_000, fileParallelism: false,
+        },
+      },
+      {
         test: {
           name: 'e2e', environment: 'node', include: ['tests/e2e/**/*.test.ts'],
-          globalSetup: ['tests/e2e/global-setup.ts'],
+          globalSetup: ['tests/e2e/global-setup.ts'], setupFiles: ['tests/e2e/page-errors.ts'],
           testTimeout: 120_000, hookTimeout: 180_000, fileParallelism: false,
         },
       },

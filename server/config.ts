@@ -14,7 +14,8 @@ export interface Config {
   jwtSecret: string
   dataDir: string
   uploadLimitBytes: number
-  embeddedPgPort: number
+  /** EMBEDDED_PG_PORT when set (then exactly that port); unset → 54329, or a free port when taken */
+  embeddedPgPort: number | undefined
   appUrl: string
   /** Secure cookies and HSTS always (SECURE_COOKIES=1 or an https APP_URL); otherwise per request over TLS. */
   secureCookies: boolean
@@ -64,6 +65,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const port = Number(env.PORT ?? 8080)
   if (!Number.isInteger(port) || port < 0 || port > 65535) throw new Error(`PORT must be a port number, got ${env.PORT}`)
   const host = env.HOST ?? '127.0.0.1'
+  const embeddedPgPort = env.EMBEDDED_PG_PORT ? Number(env.EMBEDDED_PG_PORT) : undefined
+  if (embeddedPgPort !== undefined && (!Number.isInteger(embeddedPgPort) || embeddedPgPort < 1 || embeddedPgPort > 65535)) {
+    throw new Error(`EMBEDDED_PG_PORT must be a port number, got ${env.EMBEDDED_PG_PORT}`)
+  }
   return {
     port,
     host,
@@ -73,7 +78,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     jwtSecret: env.JWT_SECRET ?? readOrCreateSecret(dataDir),
     dataDir,
     uploadLimitBytes: Number(env.UPLOAD_LIMIT_MB ?? 50) * 1024 * 1024,
-    embeddedPgPort: Number(env.EMBEDDED_PG_PORT ?? 54329),
+    embeddedPgPort,
     appUrl: (env.APP_URL ?? `http://${host}:${port}`).replace(/\/$/, ''),
     secureCookies: env.SECURE_COOKIES === '1' || (env.APP_URL ?? '').startsWith('https:'),
     trustProxy: parseTrustProxy(env.TRUST_PROXY),

@@ -70,7 +70,7 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
       log,
     })
     databaseUrl = pg.url
-    log(`embedded PostgreSQL on 127.0.0.1:${pg.port}`)
+    log(`embedded PostgreSQL on 127.0.0.1:${pg.port} (cluster in ${pg.dir}${pg.startedHere ? '' : ', already running'})`)
   }
   const db = connect(databaseUrl, 20)
   await runMigrations(db)

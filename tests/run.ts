@@ -1,20 +1,25 @@
 // `npm test`: a throwaway PostgreSQL on loopback, migrations into a template database, every vitest
-// project (science, unit, api, e2e), then the plain "N passed, N failed" line and a clean stop.
+// project (science, unit, api, system, e2e), then the plain "N passed, N failed" line and a clean stop.
 import { spawnSync } from 'node:child_process'
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs'
 import { join } from 'node:path'
 import { PROJECT_ROOT } from '../server/config.ts'
-import { freePort, startEmbeddedPostgres } from '../server/db/embedded-postgres.ts'
+import { clusterDirOf, freePort, startEmbeddedPostgres, stopClusterAt } from '../server/db/embedded-postgres.ts'
 import { connect, runMigrations } from '../server/db/client.ts'
 
+// as root in a private folder the cluster itself is kept in a postgres-owned temporary folder (pg.dir)
 const dir = join(PROJECT_ROOT, `.pg-test-${process.pid}`)
-const port = await freePort()
-const pg = await startEmbeddedPostgres({ dir, port, durable: false, createdb: true, database: 'ratiograph_template', log: (m) => console.log(m) })
+const pg = await startEmbeddedPostgres({ dir, defaultPort: await freePort(), durable: false, createdb: true, database: 'ratiograph_template', log: (m) => console.log(m) })
+  .catch((err) => { stopClusterAt(dir); rmSync(clusterDirOf(dir), { recursive: true, force: true }); rmSync(dir, { recursive: true, force: true }); throw err })
 let code = 1
+// Ctrl-C reaches vitest too (same process group): let it end, then stop and remove the cluster
+let interrupted = false
+process.on('SIGINT', () => { interrupted = true })
 try {
   const db = connect(pg.url, 2)
   await runMigrations(db)
   await db.$client.end()
+  if (interrupted) throw new Error('interrupted')
   const out = join(PROJECT_ROOT, 'tests', '.output')
   mkdirSync(out, { recursive: true })
   const report = join(out, 'vitest.json')
@@ -34,6 +39,7 @@ try {
   console.log(`\n${passed} passed, ${failed} failed, ${skipped} skipped`)
 } finally {
   pg.stop()
+  rmSync(pg.dir, { recursive: true, force: true })
   rmSync(dir, { recursive: true, force: true })
 }
 process.exit(code)

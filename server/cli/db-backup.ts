@@ -8,8 +8,9 @@ import { backupDatabase } from '../db/backup.ts'
 const config = loadConfig()
 const stamp = new Date().toISOString().replace(/[:.]/g, '-')
 const file = resolve(process.argv[2] ?? join(config.dataDir, 'backups', `ratiograph-${stamp}.dump`))
-mkdirSync(join(file, '..'), { recursive: true })
-const pg = config.databaseUrl ? undefined : await startEmbeddedPostgres({ dir: join(config.dataDir, 'pg'), port: config.embeddedPgPort, durable: true })
+mkdirSync(join(file, '..'), { recursive: true, mode: 0o700 })
+// the cluster is found where it lives (also when it was moved out of a private folder) and at its own port
+const pg = config.databaseUrl ? undefined : await startEmbeddedPostgres({ dir: join(config.dataDir, 'pg'), port: config.embeddedPgPort, durable: true, log: (m) => console.log(m) })
 try {
   backupDatabase(config.databaseUrl ?? pg!.url, file)
   console.log(`backup written: ${file}`)

@@ -1,5 +1,5 @@
 import { spawnSync } from 'node:child_process'
-import { existsSync } from 'node:fs'
+import { chmodSync, existsSync } from 'node:fs'
 import { ensurePostgresBinaries } from './embedded-postgres.ts'
 
 /** pg_dump in the custom archive format (compressed, restorable table by table). */
@@ -7,6 +7,7 @@ export function backupDatabase(url: string, file: string) {
   const bin = ensurePostgresBinaries()
   const r = spawnSync(`${bin}/pg_dump`, ['--format=custom', '--no-owner', '--no-privileges', '--file', file, '--dbname', url], { encoding: 'utf8' })
   if (r.status !== 0) throw new Error(`pg_dump failed: ${r.stderr.trim()}`)
+  chmodSync(file, 0o600) // it holds password hashes and API key digests
 }
 
 /** Replaces the database's contents with an archive made by backupDatabase. */

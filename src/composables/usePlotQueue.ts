@@ -1,6 +1,9 @@
 import { onBeforeUnmount } from 'vue'
 import type { PlotlyModule } from '../utils/plotly'
 
+/** Plotly's figure state on its element: set by the first draw, removed by purge. */
+const hasFigure = (gd: HTMLElement | undefined) => !!(gd as { _fullLayout?: unknown } | undefined)?._fullLayout
+
 /**
  * Plotly calls on one element, one after another, and none once the component is gone: plotly's
  * drawing is asynchronous, and a purge (or a second react) landing in the middle of one leaves it
@@ -10,10 +13,20 @@ export function usePlotQueue(element: () => HTMLElement | undefined, plotly: () 
   let chain: Promise<unknown> = Promise.resolve()
   let disposed = false
 
+  /** A call that draws the figure (newPlot, react). */
   function run<T>(op: () => T | Promise<T>): Promise<T | undefined> {
     const next = chain.then(() => (disposed ? undefined : op()))
     chain = next.catch(() => {}) // a failed call must not block the ones after it
     return next
+  }
+
+  /**
+   * A change to a drawn figure (relayout, resize). Plotly's relayout reads `gd._fullLayout` and
+   * throws on an element not yet drawn, so one asked for before the first draw (settings arriving
+   * while the panel waits for its width) is dropped: that draw reads the current state anyway.
+   */
+  function update<T>(op: () => T | Promise<T>): Promise<T | undefined> {
+    return run(() => (hasFigure(element()) ? op() : undefined))
   }
 
   onBeforeUnmount(() => {
@@ -23,5 +36,5 @@ export function usePlotQueue(element: () => HTMLElement | undefined, plotly: () 
     void chain.then(() => { if (gd && P) P.purge(gd) })
   })
 
-  return { run, isDisposed: () => disposed }
+  return { run, update, isDisposed: () => disposed }
 }

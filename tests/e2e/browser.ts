@@ -6,10 +6,32 @@ import { PROJECT_ROOT } from '../../server/config.ts'
 export const CHROMIUM_ARGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
   '--disable-background-networking', '--disable-component-update', '--disable-sync', '--disable-dev-shm-usage']
 
-/** Debian's chromium (the real binary when present: it starts a little faster than the wrapper). */
-export function launchChromium(): Promise<Browser> {
+/**
+ * Uncaught errors (and console.error) of every page opened through launchChromium, whichever test
+ * opened it; tests/e2e/page-errors.ts fails the running test when any arrived. Failed loads are left
+ * to watch(), which judges them by status (the console repeats them without the URL).
+ */
+export const pageErrors: string[] = []
+
+function guard(page: Page) {
+  page.on('pageerror', (e) => pageErrors.push(`uncaught in ${page.url()}: ${e.stack ?? e.message}`))
+  page.on('console', (m) => {
+    if (m.type() === 'error' && !m.text().startsWith('Failed to load resource')) pageErrors.push(`console.error in ${page.url()}: ${m.text()}`)
+  })
+}
+
+/** Debian's chromium (the real binary when present: it starts a little faster than the wrapper); every page is guarded. */
+export async function launchChromium(): Promise<Browser> {
   const executablePath = existsSync('/usr/lib/chromium/chromium') ? '/usr/lib/chromium/chromium' : '/usr/bin/chromium'
-  return chromium.launch({ executablePath, args: CHROMIUM_ARGS, headless: true })
+  const browser = await chromium.launch({ executablePath, args: CHROMIUM_ARGS, headless: true })
+  // browser.newPage() goes through newContext() as well
+  const newContext = browser.newContext.bind(browser)
+  browser.newContext = async (...args: Parameters<Browser['newContext']>) => {
+    const context = await newContext(...args)
+    context.on('page', guard)
+    return context
+  }
+  return browser
 }
 
 export const SCREENSHOTS = join(PROJECT_ROOT, 'tests', 'screenshots')

@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { parse } from 'csv-parse/sync'
 import { DEMO_ACCOUNTS } from '../../server/seed/demo-accounts.ts'
-import { launchChromium, shot, watch } from './browser.ts'
+import { launchChromium, pageErrors, shot, watch } from './browser.ts'
 
 const base = inject('baseUrl')
 let browser: Browser
@@ -16,8 +16,12 @@ async function signIn(role: 'owner' | 'analyst' | 'viewer') {
   const page = await context.newPage()
   const problems = watch(page, base)
   await page.goto(`${base}/sign-in`)
-  await page.getByTestId('sign-in-email').locator('input').fill(account(role).email)
-  await page.getByTestId('sign-in-password').locator('input').fill(account(role).password)
+  // the app asks who is signed in first; typing before that answer can land in a form about to be redrawn
+  await page.waitForLoadState('networkidle')
+  const email = page.getByTestId('sign-in-email').locator('input'), password = page.getByTestId('sign-in-password').locator('input')
+  await email.fill(account(role).email)
+  await password.fill(account(role).password)
+  expect([await email.inputValue(), await password.inputValue()]).toEqual([account(role).email, account(role).password])
   await page.getByTestId('sign-in-submit').click()
   await page.waitForURL(/\/projects/)
   const projects = await (await page.request.get(`${base}/api/v1/projects`)).json()
@@ -54,6 +58,48 @@ describe('a scientist\'s day in the dashboard', () => {
     expect(text).toContain('E2E-0000003')
     await shot(page, 'e2e-galaxies')
     expect(problems).toEqual([])
+  })
+
+  it('loads Diagrams in full (demo data), again and again, without one error in the page', async () => {
+    const { page, projectId, problems } = await signIn('viewer')
+    // The race behind the old errors, made certain: the project's assumptions (extinction law, R_V:
+    // they relabel each frame) arrive after plotly has loaded but before the panels have drawn their
+    // frames — the panels wait a few animation frames for their width, slowed here as on a busy machine.
+    await page.addInitScript(() => {
+      const w = window as unknown as Record<string, unknown>
+      // plotly reads window.PlotlyLocales as its module finishes loading
+      Object.defineProperty(window, 'PlotlyLocales', { configurable: true, get: () => { w.__plotlyLoaded = true; return undefined } })
+      const raf = window.requestAnimationFrame.bind(window)
+      window.requestAnimationFrame = (cb) => { setTimeout(() => raf(cb), 60); return 0 }
+    })
+    const panelsWaiting = () => page.evaluate(() => !!(window as unknown as { __plotlyLoaded?: boolean }).__plotlyLoaded &&
+      document.querySelectorAll('[data-testid="diagram-grid"] .plot').length === 4)
+    let held = 0
+    await page.route(/\/api\/v1\/projects\/[^/]+\/assumptions$/, async (route) => {
+      for (let i = 0; i < 200 && !(await panelsWaiting().catch(() => false)); i++) await new Promise((ok) => setTimeout(ok, 25))
+      held++
+      await route.continue()
+    })
+    const drawn = async () => {
+      for (const k of ['nii', 'sii', 'oi', 'whan']) await page.locator(`[data-testid="diagram-${k}"][data-drawn="true"]`).waitFor({ timeout: 60_000 })
+      await page.waitForLoadState('networkidle')
+      // a few frames for anything the panels scheduled after drawing (a resize, a repaint)
+      await page.evaluate(() => new Promise((done) => { let n = 0; const tick = () => (++n < 4 ? requestAnimationFrame(tick) : done(null)); requestAnimationFrame(tick) }))
+    }
+    // a full load, then reloads with plotly cached
+    await page.goto(`${base}/projects/${projectId}/diagrams`)
+    await drawn()
+    for (let i = 0; i < 2; i++) { await page.reload(); await drawn() }
+    expect(held).toBe(3)
+    expect(Number(await page.getByTestId('diagram-nii').getAttribute('data-placed'))).toBeGreaterThan(1000)
+    // a change after the first draw still reaches the frame: the reddening arrow switched off
+    const annotations = () => page.evaluate(() => (document.querySelector('[data-testid="diagram-nii"] .js-plotly-plot') as unknown as { layout: { annotations?: unknown[] } }).layout.annotations?.length ?? 0)
+    const before = await annotations()
+    await page.getByTestId('toggle-reddening').locator('input').click()
+    await expect.poll(annotations, { timeout: 10_000 }).not.toBe(before)
+    await drawn()
+    expect(problems).toEqual([])
+    expect(pageErrors).toEqual([])
   })
 
   it('selects a group with a box: the same galaxies are highlighted in every panel and listed below', async () => {

@@ -13,8 +13,10 @@ function harness() {
   let queue!: ReturnType<typeof usePlotQueue>
   const Comp = defineComponent({ setup() { queue = usePlotQueue(() => gd, () => plotly); return () => h('div') } })
   const wrapper = mount(Comp)
-  return { log, wrapper, queue: () => queue }
+  return { log, wrapper, gd, queue: () => queue }
 }
+/** What plotly's first draw leaves on its element (its relayout reads it and throws without it). */
+const drawFigure = (gd: HTMLElement) => { (gd as unknown as { _fullLayout: object })._fullLayout = {} }
 const later = (ms: number) => new Promise((done) => setTimeout(done, ms))
 
 describe('usePlotQueue', () => {
@@ -43,5 +45,23 @@ describe('usePlotQueue', () => {
     await later(0)
     expect(log).toEqual(['drawn', 'purge'])
     expect(queue().isDisposed()).toBe(true)
+  })
+
+  it('drops a change asked for before the first draw (it would throw inside plotly), and runs one queued behind it', async () => {
+    const { log, gd, queue } = harness()
+    await queue().update(() => { log.push('relayout before any draw') })
+    const draw = queue().run(async () => { await later(10); drawFigure(gd); log.push('newPlot') })
+    const change = queue().update(() => { log.push('relayout') })
+    await Promise.all([draw, change])
+    expect(log).toEqual(['newPlot', 'relayout'])
+  })
+
+  it('starts no change once unmounted', async () => {
+    const { log, gd, wrapper, queue } = harness()
+    await queue().run(() => { drawFigure(gd) })
+    wrapper.unmount()
+    await queue().update(() => { log.push('relayout') })
+    await later(0)
+    expect(log).toEqual(['purge'])
   })
 })
