@@ -12,7 +12,7 @@ import { RESULT_COLUMN_SQL, resultRow, LIMIT_BITS } from './result-columns.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
 import { encodeDiagramColumns, typedColumns, type DiagramColumnsJson } from '../../shared/diagram-columns.ts'
-import { textLine } from '../../shared/schemas/text.ts'
+import { isWellFormed } from '../../shared/schemas/text.ts'
 import { z } from 'zod'
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
@@ -151,8 +151,12 @@ export async function projectRevisionForQueries(db: Db, projectId: string, revis
 }
 
 const encodeCursor = (v: [string | number | null, number]) => Buffer.from(JSON.stringify(v)).toString('base64url')
-/** [sort value of the last row, its internal id]: text for the id sort, a number (or null) for the others. */
-const CursorSchema = z.tuple([z.union([textLine().max(200), z.number(), z.null()]), z.number().int().min(1)])
+/**
+ * [sort value of the last row, its internal id]: text for the id sort, a number (or null) for the
+ * others. The text is a stored ID (which may predate today's text rules), so only what PostgreSQL
+ * cannot take is refused: NUL and unpaired surrogates.
+ */
+const CursorSchema = z.tuple([z.union([z.string().max(200).refine((s) => !s.includes('\u0000') && isWellFormed(s)), z.number(), z.null()]), z.number().int().min(1)])
 function decodeCursor(c: string, textSort: boolean): [string | number | null, number] {
   let decoded: unknown
   try { decoded = JSON.parse(Buffer.from(c, 'base64url').toString('utf8')) } catch { decoded = undefined }
