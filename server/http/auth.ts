@@ -32,7 +32,9 @@ function parseCookies(header: string | undefined): Record<string, string> {
   const out: Record<string, string> = {}
   for (const part of (header ?? '').split(';')) {
     const i = part.indexOf('=')
-    if (i > 0) out[part.slice(0, i).trim()] = decodeURIComponent(part.slice(i + 1).trim())
+    if (i <= 0) continue
+    // a value that is not valid percent-encoding is no cookie of ours: ignore it (anonymous), never a 500
+    try { out[part.slice(0, i).trim()] = decodeURIComponent(part.slice(i + 1).trim()) } catch { /* skip it */ }
   }
   return out
 }
@@ -150,7 +152,7 @@ export function guardFor(db: Db) {
   return (spec: AnySpec) =>
     async (req: Request, _res: Response, next: (err?: unknown) => void) => {
       const access = spec.access
-      if (spec.body && !req.is('application/json') && req.headers['content-type'] !== undefined && !req.is('multipart/form-data')) {
+      if (spec.body && !req.is('application/json') && req.headers['content-type'] !== undefined) {
         return next(new HttpProblem(415, 'Unsupported Media Type', 'send application/json'))
       }
       if (access === 'public' || access === 'optional') return next()

@@ -1,4 +1,5 @@
 import type { ErrorRequestHandler } from 'express'
+import { STATUS_CODES } from 'node:http'
 import { HttpProblem, unavailable } from './problem.ts'
 import { logger } from '../lib/logger.ts'
 
@@ -14,21 +15,40 @@ export function isDatabaseUnavailable(err: unknown): boolean {
   return e.cause ? isDatabaseUnavailable(e.cause) : false
 }
 
-function fromBodyParser(err: { type?: string; status?: number }): HttpProblem | null {
+interface HttpError { type?: string; status?: number; statusCode?: number; expose?: boolean; code?: string; message?: string }
+
+function fromBodyParser(err: HttpError, contentEncoding: string | undefined): HttpProblem | null {
   if (err.type === 'entity.parse.failed') return new HttpProblem(400, 'Bad Request', 'the body is not valid JSON')
   if (err.type === 'entity.too.large') return new HttpProblem(413, 'Content Too Large', 'the body is larger than the limit')
   if (err.type === 'encoding.unsupported' || err.type === 'charset.unsupported') return new HttpProblem(415, 'Unsupported Media Type', 'unsupported body encoding')
   if (err.type === 'request.aborted') return new HttpProblem(400, 'Bad Request', 'the request was aborted')
+  // zlib's errors while inflating a body whose Content-Encoding does not match what was sent
+  const zlib = (typeof err.code === 'string' && err.code.startsWith('Z_')) || /incorrect header check|unexpected end of file|invalid (block type|stored block|distance)|Decompression failed/i.test(err.message ?? '')
+  if (zlib && (err.status ?? err.statusCode) === 400) {
+    return new HttpProblem(400, 'Bad Request', `the body is not valid ${contentEncoding ?? 'compressed'} data, as its Content-Encoding header says`)
+  }
   return null
 }
 
+/**
+ * Errors raised below our code with an HTTP status of their own (body parsing, the router's
+ * percent-decoding of path parameters): the client's fault, so a 4xx problem, never a 500.
+ */
+function fromHttpError(err: HttpError): HttpProblem | null {
+  const status = err.status ?? err.statusCode
+  if (typeof status !== 'number' || status < 400 || status > 499) return null
+  if (err instanceof URIError) return new HttpProblem(400, 'Bad Request', 'the URL path is not valid percent-encoded UTF-8')
+  return new HttpProblem(status, STATUS_CODES[status] ?? 'Bad Request', err.expose !== false && err.message ? err.message : undefined)
+}
+
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
-  let known = err instanceof HttpProblem ? err : fromBodyParser(err)
+  const e = (err ?? {}) as HttpError
+  let known = err instanceof HttpProblem ? err : fromBodyParser(e, req.headers['content-encoding']) ?? fromHttpError(e)
   if (!known && isDatabaseUnavailable(err)) known = unavailable()
   if (!known) logger.error({ err, method: req.method, url: req.path }, 'unhandled error')
-  const p = known ?? new HttpProblem(500, 'Internal Server Error')
+  const p = known ?? new HttpProblem(500, 'Internal Server Error', 'an unexpected error; it has been logged')
   if (res.headersSent) { res.destroy(); return }
   for (const [k, v] of Object.entries(p.headers)) res.setHeader(k, v)
   res.status(p.status).type('application/problem+json')
-    .send(JSON.stringify({ type: p.type, title: p.title, status: p.status, detail: p.detail, errors: p.errors ?? [] }))
+    .send(JSON.stringify({ type: p.type, title: p.title, status: p.status, detail: p.detail ?? p.title, errors: p.errors ?? [] }))
 }

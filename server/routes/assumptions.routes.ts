@@ -7,6 +7,7 @@ import { assumptionsService } from '../services/assumptions.service.ts'
 import { getJob, listJobs } from '../services/jobs.service.ts'
 import { JobPathSchema, JobSchema, ListOf, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
 import { SettingsInputSchema, SettingsSchema } from '../../shared/schemas/galaxy.schema.ts'
+import { textBlock } from '../../shared/schemas/text.ts'
 import type { Guard } from './index.ts'
 
 const RevisionSchema = z.object({
@@ -23,7 +24,7 @@ export function assumptionsRoutes(r: Router, deps: AppDeps, guard: Guard) {
 
   route(r, { method: 'put', path: '/projects/:projectId/assumptions', tag, access: 'analyst', write: true, params: ProjectPathSchema,
     summary: 'Change the assumptions: makes a new revision and recomputes every galaxy in the background',
-    body: z.object({ settings: SettingsInputSchema, note: z.string().max(2000).default('') }).strict(),
+    body: z.object({ settings: SettingsInputSchema, note: textBlock().max(2000).default('') }).strict(),
     bodyExample: { settings: { extinctionLaw: 'calzetti00', intrinsicBalmer: 2.86, minSnr: 3 }, note: 'switch to Calzetti 2000 for the dusty nuclei' },
     responses: { 201: { description: 'the new revision and its recompute job', schema: z.object({ revision: RevisionSchema, job: JobSchema }) } } },
   guard, async (req, res, { params, body }) => { res.status(201).json(await assumptions.change(requireAuth(req), params.projectId, body.settings, body.note)) })

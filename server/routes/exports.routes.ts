@@ -6,10 +6,11 @@ import { exportsService, pickColumns } from '../services/exports.service.ts'
 import { projectsService } from '../services/projects.service.ts'
 import { GalaxyFilterSchema } from '../../shared/schemas/query.schema.ts'
 import { ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
+import { textLine } from '../../shared/schemas/text.ts'
 import type { Guard } from './index.ts'
 
 const ExportQuerySchema = GalaxyFilterSchema.extend({
-  columns: z.string().max(20000).optional().transform((s) => s?.split(',').map((c) => c.trim()).filter(Boolean))
+  columns: textLine().max(20000).optional().transform((s) => s?.split(',').map((c) => c.trim()).filter(Boolean))
     .meta({ description: 'comma-separated column names (default: all); galaxy_id is always included' }),
 }).strict()
 

@@ -10,6 +10,7 @@ import { GalaxyListQuerySchema, DiagramQuerySchema } from '../../shared/schemas/
 import { BatchResponseSchema, GalaxyPathSchema, GalaxyRevisionPathSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
 import type { Guard } from './index.ts'
 import { DIAGRAM_COLUMNS_TYPE } from '../../shared/diagram-columns.ts'
+import { isCleanText } from '../../shared/schemas/text.ts'
 
 /** 413 before validation when a request carries more galaxies than one request may. */
 export function galaxyCountLimit(req: Request, _res: Response, next: NextFunction) {
@@ -36,7 +37,7 @@ export function galaxiesRoutes(r: Router, deps: AppDeps, guard: Guard) {
   }, (spec) => { const g = guard(spec); return (req, res, next) => g(req, res, (err?: unknown) => (err ? next(err) : galaxyCountLimit(req, res, next))) },
   async (req, res, { params, body }) => {
     const key = req.get('idempotency-key')
-    if (key !== undefined && (key.length === 0 || key.length > 200)) throw new HttpProblem(422, 'Unprocessable Content', 'Idempotency-Key must be 1–200 characters', [{ path: '/headers/Idempotency-Key', message: '1–200 characters' }])
+    if (key !== undefined && (key.length === 0 || key.length > 200 || !isCleanText(key))) throw new HttpProblem(422, 'Unprocessable Content', 'Idempotency-Key must be 1–200 characters without control characters', [{ path: '/headers/Idempotency-Key', message: '1–200 characters without control characters' }])
     const out = await writingGalaxies(deps.db, params.projectId, () => ingestBatch(deps.db, requireAuth(req), params.projectId, body.galaxies, key, requestHash(req.body)))
     if (out.replay) res.setHeader('Idempotent-Replayed', 'true')
     res.json(out.body)

@@ -8,12 +8,16 @@ import type { AppDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
+import { parseRequest } from '../http/parse-request.ts'
+import { textLine } from '../../shared/schemas/text.ts'
 import { intakeService } from '../services/intake.service.ts'
 import { IntakePathSchema, IntakeSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
 import { ColumnMappingSchema, IntakeOptionsSchema } from '../../shared/schemas/intake.schema.ts'
 import { writingGalaxies } from '../services/galaxies.service.ts'
 import type { Guard } from './index.ts'
 
+/** The uploaded file's own name (multer decodes filename*= and %0A in it): stored and shown, so plain text. */
+const FileNameSchema = textLine().min(1).max(255)
 const CSV_TYPES = new Set(['text/csv', 'text/plain', 'text/tab-separated-values', 'application/csv', 'application/vnd.ms-excel', 'application/octet-stream'])
 
 export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
@@ -24,6 +28,7 @@ export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
     storage: multer.diskStorage({ destination: dir, filename: (_req, _file, cb) => cb(null, `${randomUUID()}.csv`) }),
     limits: { fileSize: deps.config.uploadLimitBytes, files: 1, fields: 10 },
     fileFilter: (_req, file, cb) => {
+      try { parseRequest(FileNameSchema, file.originalname, ['file', 'filename']) } catch (err) { return cb(err as Error) }
       const okName = /\.(csv|tsv|txt)$/i.test(file.originalname)
       if (!okName && !CSV_TYPES.has(file.mimetype)) return cb(new HttpProblem(415, 'Unsupported Media Type', 'upload a CSV file (.csv, .tsv or .txt)', [{ path: '/file', message: `type ${file.mimetype} is not CSV` }]))
       if (/^(image|video|audio)\//.test(file.mimetype) || file.mimetype === 'application/zip' || file.mimetype === 'application/pdf') {
@@ -34,6 +39,8 @@ export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
   }).single('file')
   const receive = (req: Request, res: Response, next: NextFunction) => {
     if (!req.is('multipart/form-data')) return next(new HttpProblem(415, 'Unsupported Media Type', 'send multipart/form-data with a "file" field'))
+    const encoding = req.headers['content-encoding']
+    if (encoding && encoding.toLowerCase() !== 'identity') return next(new HttpProblem(415, 'Unsupported Media Type', `uploads cannot be sent with Content-Encoding ${encoding}; send the form uncompressed`))
     upload(req, res, (err: unknown) => {
       if (!err) return next()
       const e = err as { code?: string; field?: string }

@@ -1,5 +1,6 @@
 import type { Response } from 'express'
 import { stringify } from 'csv-stringify'
+import { stringify as stringifyRecords } from 'csv-stringify/sync'
 import { sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { HttpProblem } from '../http/problem.ts'
@@ -8,7 +9,6 @@ import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
 import { filterSql, projectRevisionForQueries } from './galaxies.service.ts'
 import { revisionSettings } from './projects.service.ts'
 import { METHOD_VERSION } from '../../shared/science.ts'
-import { FORMULA_START } from './csv-rows.ts'
 import { APP_VERSION } from '../lib/version.ts'
 
 const CHUNK = 2000
@@ -21,14 +21,51 @@ export function pickColumns(names: string[] | undefined): ExportColumn[] {
   return EXPORT_COLUMNS.filter((c) => set.has(c.name))
 }
 
-/** Text cells that a spreadsheet would evaluate get a leading apostrophe; numbers stay numbers. */
-export const safeCell = (v: string | number | null) => (typeof v === 'string' && FORMULA_START.test(v) ? `'${v}` : v)
+/**
+ * Text cells that a spreadsheet would evaluate get a leading apostrophe (OWASP "CSV injection");
+ * numbers stay numbers. A spreadsheet set to split on semicolons sees every `;`-separated part of a
+ * cell as a cell of its own, so each part is checked too (quotes and spaces before = + - @ do not
+ * hide a formula).
+ */
+export const safeCell = (v: string | number | null) =>
+  (typeof v === 'string' ? v.replace(/(^|;)(?=[\s"]*[=+\-@]|[\t\r])/g, "$1'") : v)
 
-async function* rowsOf(db: Db, projectId: string, revision: number, f: GalaxyFilter) {
+/** The CSV writer's options: fields holding `;` are quoted as well as those holding `,`. */
+const CSV_OPTIONS = { quoted_match: [';'], cast: { number: (v: number) => String(v) } }
+
+/** Settings as `key=value` words, so the provenance line needs no CSV quoting and stays a `#` line. */
+export function settingsWords(settings: Record<string, unknown>): string {
+  return Object.entries(settings).flatMap(([k, v]) => (v && typeof v === 'object'
+    ? Object.entries(v as Record<string, unknown>).map(([k2, v2]) => `${k}.${k2}=${String(v2)}`)
+    : [`${k}=${String(v)}`])).join(' ')
+}
+
+/**
+ * The commented provenance block, written by the CSV writer like every other record: free text
+ * (the project name) is a quoted field of its own after the `#` text, so the line still starts
+ * with `#` for readers that skip comments and a spreadsheet sees one plain text cell for it.
+ */
+export function csvHeaderBlock(p: { projectName: string; revision: number; settings: Record<string, unknown>; generated: string; columns: ExportColumn[] }): string {
+  const records: Array<Array<string | number | null>> = [
+    [`# Ratiograph ${APP_VERSION} export of project`, safeCell(p.projectName)],
+    [`# assumptions revision: ${p.revision}`],
+    [`# method version: ${METHOD_VERSION}`],
+    [`# settings: ${settingsWords(p.settings)}`],
+    [`# generated: ${p.generated}`],
+    ['# equivalent widths: emission positive. Fluxes corrected for dust in erg s-1 cm-2. Ratios are log10 of observed fluxes except the doublets'],
+    ['# units: ' + p.columns.filter((c) => c.unit).map((c) => `${c.name}=${c.unit}`).join(' ')],
+    ['# text cells (and each part of one after a semicolon) that begin with = + - @ get a leading apostrophe'],
+  ]
+  return stringifyRecords(records, CSV_OPTIONS)
+}
+
+type ExportRow = { id: number; key: string; redshift: number | null; ra: number | null; dec: number | null; flux_unit: number; result: unknown }
+
+async function* rowsOf(db: Db, projectId: string, revision: number, f: GalaxyFilter): AsyncGenerator<ExportRow> {
   const where = filterSql(projectId, revision, { ...f, revision })
   let lastId = 0
   for (;;) {
-    const res = await db.execute<{ id: number; key: string; redshift: number | null; ra: number | null; dec: number | null; flux_unit: number; result: unknown }>(sql`
+    const res = await db.execute<ExportRow>(sql`
       select g.id, g.key, g.redshift, g.ra, g.dec, g.flux_unit, r.result from galaxies g join results r on r.galaxy_id = g.id
       where ${where} and g.id > ${lastId} order by g.id limit ${CHUNK}`)
     if (!res.rows.length) return
@@ -41,6 +78,16 @@ const xml = (s: string) => s.replace(/[<>&"']/g, (c) => ({ '<': '&lt;', '>': '&g
   // XML 1.0 forbids most control characters even escaped
   .replace(/[\u0000-\u0008\u000b\u000c\u000e-\u001f]/g, '')
 
+/**
+ * Runs the first query before the caller sends anything: a failure there still answers a problem
+ * document instead of a 200 whose body is cut off.
+ */
+async function primedRows(db: Db, projectId: string, revision: number, f: GalaxyFilter): Promise<AsyncIterable<ExportRow>> {
+  const rows = rowsOf(db, projectId, revision, f)
+  const first = await rows.next()
+  return (async function* () { if (!first.done) { yield first.value; yield* rows } })()
+}
+
 export function exportsService(db: Db) {
   async function context(projectId: string, f: GalaxyFilter) {
     const revision = await projectRevisionForQueries(db, projectId, f.revision)
@@ -51,22 +98,13 @@ export function exportsService(db: Db) {
     /** Streams CSV: a commented header block (provenance, units), then one row per galaxy. */
     async csv(res: Response, projectId: string, projectName: string, f: GalaxyFilter, columns: ExportColumn[]) {
       const { revision, settings } = await context(projectId, f)
+      const rows = await primedRows(db, projectId, revision, f)
       res.setHeader('Content-Type', 'text/csv; charset=utf-8')
       res.setHeader('Content-Disposition', `attachment; filename="ratiograph-${projectId.slice(0, 8)}-rev${revision}.csv"`)
-      const lines = [
-        `# Ratiograph ${APP_VERSION} export of project "${projectName.replace(/[\r\n]/g, ' ')}"`,
-        `# assumptions revision: ${revision}`,
-        `# method version: ${METHOD_VERSION}`,
-        `# settings: ${JSON.stringify(settings)}`,
-        `# generated: ${new Date().toISOString()}`,
-        '# equivalent widths: emission positive; fluxes corrected for dust in erg s-1 cm-2; ratios are log10 of observed fluxes except the doublets',
-        '# units: ' + columns.filter((c) => c.unit).map((c) => `${c.name}=${c.unit}`).join(' '),
-        '# text cells that begin with = + - @ are prefixed with an apostrophe',
-      ]
-      res.write(lines.join('\n') + '\n')
-      const out = stringify({ header: true, columns: columns.map((c) => c.name), cast: { number: (v) => String(v) } })
+      res.write(csvHeaderBlock({ projectName, revision, settings, generated: new Date().toISOString(), columns }))
+      const out = stringify({ header: true, columns: columns.map((c) => c.name), ...CSV_OPTIONS })
       out.pipe(res)
-      for await (const row of rowsOf(db, projectId, revision, f)) {
+      for await (const row of rows) {
         const g = { key: row.key, redshift: row.redshift, ra: row.ra, dec: row.dec, fluxUnit: row.flux_unit }
         if (!out.write(columns.map((c) => safeCell(c.get(g, row.result))))) await new Promise((ok) => out.once('drain', ok))
       }
@@ -76,6 +114,7 @@ export function exportsService(db: Db) {
     /** Streams a VOTable 1.4 document with a unit and a UCD on every field. */
     async votable(res: Response, projectId: string, projectName: string, f: GalaxyFilter, columns: ExportColumn[]) {
       const { revision, settings } = await context(projectId, f)
+      const rows = await primedRows(db, projectId, revision, f)
       res.setHeader('Content-Type', 'application/x-votable+xml; charset=utf-8')
       res.setHeader('Content-Disposition', `attachment; filename="ratiograph-${projectId.slice(0, 8)}-rev${revision}.vot"`)
       const fields = columns.map((c) => {
@@ -94,7 +133,7 @@ ${fields.join('\n')}
       <DATA><TABLEDATA>
 `)
       let buf = ''
-      for await (const row of rowsOf(db, projectId, revision, f)) {
+      for await (const row of rows) {
         const g = { key: row.key, redshift: row.redshift, ra: row.ra, dec: row.dec, fluxUnit: row.flux_unit }
         buf += '        <TR>' + columns.map((c) => { const v = c.get(g, row.result); return v === null ? '<TD/>' : `<TD>${xml(String(v))}</TD>` }).join('') + '</TR>\n'
         if (buf.length > 1 << 16) { if (!res.write(buf)) await new Promise((ok) => res.once('drain', ok)); buf = '' }

@@ -12,6 +12,8 @@ import { RESULT_COLUMN_SQL, resultRow, LIMIT_BITS } from './result-columns.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
 import { encodeDiagramColumns, typedColumns, type DiagramColumnsJson } from '../../shared/diagram-columns.ts'
+import { isWellFormed } from '../../shared/schemas/text.ts'
+import { z } from 'zod'
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 type Executor = Db | Tx
@@ -130,13 +132,14 @@ export function filterSql(projectId: string, revision: number, f: GalaxyFilter):
     if (names?.length) parts.push(sql`${CLASS_COLUMNS[d]} in (${sql.join(names.map((n) => sql`${classCode(d, n)}`), sql`, `)})`)
   }
   if (f.q) parts.push(sql`g.key ilike ${'%' + f.q.replace(/[\\%_]/g, (c) => '\\' + c) + '%'}`)
-  if (f.zMin !== undefined) parts.push(sql`g.redshift >= ${f.zMin}`)
-  if (f.zMax !== undefined) parts.push(sql`g.redshift <= ${f.zMax}`)
-  if (f.minSnr !== undefined) parts.push(sql`r.snr_min >= ${f.minSnr}`)
+  // bounds are doubles: typed so, a bound beyond float4 (1e300) filters instead of failing to convert to `real`
+  if (f.zMin !== undefined) parts.push(sql`g.redshift >= ${f.zMin}::float8`)
+  if (f.zMax !== undefined) parts.push(sql`g.redshift <= ${f.zMax}::float8`)
+  if (f.minSnr !== undefined) parts.push(sql`r.snr_min >= ${f.minSnr}::float8`)
   for (const r of f.range ?? []) {
     const col = RANGE_FIELDS[r.field]
-    if (r.min !== null) parts.push(sql`${col} >= ${r.min}`)
-    if (r.max !== null) parts.push(sql`${col} <= ${r.max}`)
+    if (r.min !== null) parts.push(sql`${col} >= ${r.min}::float8`)
+    if (r.max !== null) parts.push(sql`${col} <= ${r.max}::float8`)
   }
   return sql.join(parts, sql` and `)
 }
@@ -147,13 +150,21 @@ export async function projectRevisionForQueries(db: Db, projectId: string, revis
   return revision ?? p.shown
 }
 
-const encodeCursor = (v: unknown[]) => Buffer.from(JSON.stringify(v)).toString('base64url')
-function decodeCursor(c: string): [unknown, number] {
-  try {
-    const v = JSON.parse(Buffer.from(c, 'base64url').toString('utf8'))
-    if (Array.isArray(v) && v.length === 2 && typeof v[1] === 'number') return v as [unknown, number]
-  } catch { /* fall through */ }
-  throw new HttpProblem(422, 'Unprocessable Content', 'invalid cursor', [{ path: '/cursor', message: 'not a cursor from this API' }])
+const encodeCursor = (v: [string | number | null, number]) => Buffer.from(JSON.stringify(v)).toString('base64url')
+/**
+ * [sort value of the last row, its internal id]: text for the id sort, a number (or null) for the
+ * others. The text is a stored ID (which may predate today's text rules), so only what PostgreSQL
+ * cannot take is refused: NUL and unpaired surrogates.
+ */
+const CursorSchema = z.tuple([z.union([z.string().max(200).refine((s) => !s.includes('\u0000') && isWellFormed(s)), z.number(), z.null()]), z.number().int().min(1)])
+function decodeCursor(c: string, textSort: boolean): [string | number | null, number] {
+  let decoded: unknown
+  try { decoded = JSON.parse(Buffer.from(c, 'base64url').toString('utf8')) } catch { decoded = undefined }
+  const parsed = CursorSchema.safeParse(decoded)
+  if (parsed.success && (typeof parsed.data[0] === 'string') === textSort) return parsed.data
+  throw new HttpProblem(422, 'Unprocessable Content', 'invalid cursor', [{ path: '/cursor', message: parsed.success
+    ? 'this cursor belongs to another sort; pass the sort it was made with, or start without a cursor'
+    : 'not a cursor from this API (pass nextCursor unchanged)' }])
 }
 
 export function summary(row: Record<string, unknown>) {
@@ -244,8 +255,8 @@ export function galaxiesService(db: Db) {
       const where = filterSql(projectId, revision, f)
       let page = where
       if (f.cursor) {
-        const [v, id] = decodeCursor(f.cursor)
-        const val = isText ? sql`${String(v)}` : sql`${v === null ? (desc ? -Infinity : Infinity) : Number(v)}::float8`
+        const [v, id] = decodeCursor(f.cursor, isText)
+        const val = isText ? sql`${v}` : sql`${v === null ? (desc ? -Infinity : Infinity) : v}::float8`
         page = sql`${where} and (${key}, g.id) ${desc ? sql`<` : sql`>`} (${val}, ${id})`
       }
       const rows = await db.execute<Record<string, unknown>>(sql`
@@ -257,7 +268,7 @@ export function galaxiesService(db: Db) {
       const sv = last ? (typeof last.sort_value === 'number' && !Number.isFinite(last.sort_value) ? null : last.sort_value) : null
       return {
         revision, total: n, items: items.map(summary),
-        nextCursor: rows.rows.length > f.limit && last ? encodeCursor([sv, last.id]) : null,
+        nextCursor: rows.rows.length > f.limit && last ? encodeCursor([sv as string | number | null, last.id as number]) : null,
       }
     },
 

@@ -13,6 +13,7 @@ import type { IntakeOptions, IntakeProblem } from '../../shared/schemas/intake.s
 import { checkBatchRules, computeForRevisions, writeGalaxies } from './galaxies.service.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import { rowToGalaxy, suggestMapping } from './csv-rows.ts'
+import { CONTROL_MESSAGE, isCleanText } from '../../shared/schemas/text.ts'
 
 const PREVIEW_ROWS = 20
 const MAX_PROBLEMS = 500
@@ -27,6 +28,8 @@ async function inspect(path: string): Promise<{ delimiter: string; bytes: number
   try {
     for await (const chunk of fh.createReadStream()) {
       bytes += (chunk as Buffer).length
+      // valid UTF-8, but no text file holds NUL (a UTF-16 file does), and PostgreSQL cannot store it
+      if ((chunk as Buffer).includes(0)) throw bad('the file holds NUL bytes, so it is not UTF-8 text (UTF-16? save it as UTF-8 CSV)')
       let text: string
       try { text = decoder.decode(chunk as Buffer, { stream: true }) } catch { throw bad('the file is not UTF-8 text (save it as UTF-8 CSV)') }
       if (first.length < 65536 && !first.includes('\n')) first += text
@@ -57,10 +60,11 @@ function checkHeaders(headers: string[]) {
   headers.forEach((h, i) => {
     const name = h.trim()
     if (!name) errors.push({ path: `/file/header/${i + 1}`, message: `column ${i + 1} has no header` })
+    else if (!isCleanText(name)) errors.push({ path: `/file/header/${i + 1}`, message: `the header of column ${i + 1} ${CONTROL_MESSAGE}` })
     else if (seen.has(name)) errors.push({ path: `/file/header/${i + 1}`, message: `header "${name}" repeats column ${seen.get(name)! + 1}` })
     else seen.set(name, i)
   })
-  if (errors.length) throw new HttpProblem(422, 'Unprocessable Content', 'the header row has missing or repeated names', errors)
+  if (errors.length) throw new HttpProblem(422, 'Unprocessable Content', 'the header row has missing, repeated or unreadable names', errors)
 }
 
 export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: string, largeIntakeRows: number) {

@@ -9,6 +9,22 @@ export const LIMIT_BITS = {
 type Num = number | null | undefined
 const num = (v: Num) => (typeof v === 'number' && Number.isFinite(v) ? v : null)
 
+const FLOAT4_MAX = 3.4028234663852886e38
+const FLOAT4_MIN_NORMAL = 1.1754943508222875e-38
+/**
+ * A finite number as a `real` column can hold it. Derived values such as a star-formation rate or
+ * a ratio error can leave float4's range (±3.4·10³⁸) while the result document (double) holds them
+ * exactly; the column copy saturates at the largest float4 (so filters and sorting still put it
+ * beyond every bound) and flushes magnitudes below the smallest normal float4 to 0.
+ */
+export function float4(v: Num): number | null {
+  const n = num(v)
+  if (n === null) return null
+  if (Math.abs(n) > FLOAT4_MAX) return Math.sign(n) * FLOAT4_MAX
+  if (Math.abs(n) < FLOAT4_MIN_NORMAL) return 0
+  return n
+}
+
 // The result is the science library's GalaxyResult; read defensively, it is also what was stored.
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 type AnyResult = any
@@ -36,15 +52,15 @@ export function resultColumns(g: GalaxyInputDto, r: AnyResult) {
     classSii: classCode('sii', r.classes?.sii),
     classOi: classCode('oi', r.classes?.oi),
     classWhan: classCode('whan', r.classes?.whan),
-    xNii: num(r.ratios?.niiHa), xSii: num(r.ratios?.siiHa), xOi: num(r.ratios?.oiHa), yOiii: num(r.ratios?.oiiiHb),
-    xNiiErr: num(r.ratioErrors?.niiHa), xSiiErr: num(r.ratioErrors?.siiHa), xOiErr: num(r.ratioErrors?.oiHa), yOiiiErr: num(r.ratioErrors?.oiiiHb),
+    xNii: float4(r.ratios?.niiHa), xSii: float4(r.ratios?.siiHa), xOi: float4(r.ratios?.oiHa), yOiii: float4(r.ratios?.oiiiHb),
+    xNiiErr: float4(r.ratioErrors?.niiHa), xSiiErr: float4(r.ratioErrors?.siiHa), xOiErr: float4(r.ratioErrors?.oiHa), yOiiiErr: float4(r.ratioErrors?.oiiiHb),
     limits,
-    ewHalpha: num(g.ew?.halpha),
-    snrMin: sa === null || sb === null ? null : Math.min(sa, sb),
-    ebv: num(r.extinction?.ebv), ebvError: num(r.extinction?.ebvError), av: num(r.extinction?.av),
-    neSii: num(r.density?.sii?.ne), neOii: num(r.density?.oii?.ne), teOiii: num(r.temperature?.oiii?.te),
-    n2Pp04: num(r.metallicity?.n2Pp04), o3n2Pp04: num(r.metallicity?.o3n2Pp04),
-    sfrHalpha: num(r.sfr?.sfrHalpha),
+    ewHalpha: float4(g.ew?.halpha),
+    snrMin: sa === null || sb === null ? null : float4(Math.min(sa, sb)),
+    ebv: float4(r.extinction?.ebv), ebvError: float4(r.extinction?.ebvError), av: float4(r.extinction?.av),
+    neSii: float4(r.density?.sii?.ne), neOii: float4(r.density?.oii?.ne), teOiii: float4(r.temperature?.oiii?.te),
+    n2Pp04: float4(r.metallicity?.n2Pp04), o3n2Pp04: float4(r.metallicity?.o3n2Pp04),
+    sfrHalpha: float4(r.sfr?.sfrHalpha),
     flagCount: Array.isArray(r.flags) ? Math.min(r.flags.length, 32767) : 0,
   }
 }

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { NewPasswordSchema } from './password.schema.ts'
+import { positiveBigId, positiveInt4, textBlock, textLine } from './text.ts'
 
 export const RoleSchema = z.enum(['owner', 'analyst', 'viewer'])
 const uuid = z.uuid()
@@ -7,41 +8,43 @@ const uuid = z.uuid()
 export const SignUpSchema = z.object({
   email: z.email().max(200),
   password: NewPasswordSchema,
-  name: z.string().trim().min(1).max(120),
+  name: textLine().trim().min(1).max(120),
 }).strict().meta({ id: 'SignUp' })
-export const SignInSchema = z.object({ email: z.string().max(200), password: z.string().max(200) }).strict().meta({ id: 'SignIn' })
-export const ResetRequestSchema = z.object({ email: z.string().max(200) }).strict()
-export const ResetConfirmSchema = z.object({ token: z.string().min(10).max(200), password: NewPasswordSchema }).strict()
-export const AcceptInvitationSchema = z.object({ name: z.string().trim().min(1).max(120).optional(), password: NewPasswordSchema.optional() }).strict()
-export const VerifyEmailSchema = z.object({ token: z.string().min(10).max(200) }).strict()
+export const SignInSchema = z.object({ email: textLine().max(200), password: z.string().max(200) }).strict().meta({ id: 'SignIn' })
+export const ResetRequestSchema = z.object({ email: textLine().max(200) }).strict()
+/** The single-use tokens of reset, invitation and verification links (base64url). */
+const LinkToken = z.string().min(10).max(200).regex(/^[A-Za-z0-9_-]+$/, 'must be the token from the link (letters, digits, - and _)')
+export const ResetConfirmSchema = z.object({ token: LinkToken, password: NewPasswordSchema }).strict()
+export const AcceptInvitationSchema = z.object({ name: textLine().trim().min(1).max(120).optional(), password: NewPasswordSchema.optional() }).strict()
+export const VerifyEmailSchema = z.object({ token: LinkToken }).strict()
 export const EmailChangeSchema = z.object({
   email: z.email().max(200).meta({ description: 'the new address; a link mailed there finishes the change' }),
   password: z.string().max(200).meta({ description: 'your current password' }),
 }).strict()
-export const TokenPathSchema = z.object({ token: z.string().min(10).max(200) })
+export const TokenPathSchema = z.object({ token: LinkToken })
 
 export const ApiKeyCreateSchema = z.object({
-  name: z.string().trim().min(1).max(120),
+  name: textLine().trim().min(1).max(120),
   projectId: uuid.optional().meta({ description: 'limit the key to one project (default: all of your projects)' }),
   access: z.enum(['read', 'write']),
   expiresAt: z.iso.datetime({ offset: true }).optional(),
 }).strict().meta({ id: 'ApiKeyCreate' })
 export const IdPathSchema = z.object({ id: uuid })
 
-export const ProjectCreateSchema = z.object({ name: z.string().trim().min(1).max(200), description: z.string().max(5000).optional() }).strict().meta({ id: 'ProjectCreate' })
-export const ProjectUpdateSchema = z.object({ name: z.string().trim().min(1).max(200).optional(), description: z.string().max(5000).optional() }).strict()
+export const ProjectCreateSchema = z.object({ name: textLine().trim().min(1).max(200), description: textBlock().max(5000).optional() }).strict().meta({ id: 'ProjectCreate' })
+export const ProjectUpdateSchema = z.object({ name: textLine().trim().min(1).max(200).optional(), description: textBlock().max(5000).optional() }).strict()
 export const ProjectPathSchema = z.object({ projectId: uuid })
 export const MemberPathSchema = z.object({ projectId: uuid, userId: uuid })
 export const RoleChangeSchema = z.object({ role: RoleSchema }).strict()
 export const InvitationCreateSchema = z.object({ email: z.email().max(200), role: RoleSchema }).strict()
 export const InvitationPathSchema = z.object({ projectId: uuid, id: uuid })
-export const GalaxyPathSchema = z.object({ projectId: uuid, galaxyId: z.string().min(1).max(120) })
-export const GalaxyRevisionPathSchema = GalaxyPathSchema.extend({ revision: z.coerce.number().int().positive() })
+export const GalaxyPathSchema = z.object({ projectId: uuid, galaxyId: textLine().min(1).max(120) })
+export const GalaxyRevisionPathSchema = GalaxyPathSchema.extend({ revision: positiveInt4() })
 export const JobPathSchema = z.object({ projectId: uuid, jobId: uuid })
 export const IntakePathSchema = z.object({ projectId: uuid, intakeId: uuid })
 export const UserPathSchema = z.object({ userId: uuid })
 export const UserAdminUpdateSchema = z.object({ disabled: z.boolean() }).strict()
-export const OutboxPathSchema = z.object({ id: z.coerce.number().int().positive() })
+export const OutboxPathSchema = z.object({ id: positiveBigId() })
 
 // ---- responses (documented shapes; the server builds them) --------------------------------------
 export const UserSchema = z.object({ id: uuid, email: z.string(), name: z.string(), isSiteAdmin: z.boolean(), createdAt: z.string() }).meta({ id: 'User' })

@@ -1,4 +1,6 @@
 import { z } from 'zod'
+import { textLine } from './text.ts'
+import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
 
 /** The contract's line identifiers (API-CONTRACT.md "Line identifiers"). */
 export const LINE_ID_LIST = [
@@ -8,13 +10,32 @@ export const LINE_ID_LIST = [
 export const LineIdSchema = z.enum(LINE_ID_LIST)
 
 /**
+ * Bounds of the numbers a galaxy may carry. They are wide enough for any survey's units and keep
+ * every product and ratio the chain forms (flux × unit × 4πd², flux / error, squares of errors)
+ * finite in double precision.
+ */
+export const FLUX_MAX = 1e30
+/** Errors and limits below this are not measurements in any unit (and 1/σ² would overflow). */
+export const ERROR_MIN = 1e-30
+export const FLUX_UNIT_MIN = 1e-30
+export const FLUX_UNIT_MAX = 1e10
+/** Å; the largest emission-line equivalent widths observed are a few thousand Å. */
+export const EW_MAX = 1e5
+/** km/s; no line is narrower than this (thermal widths alone are ~10 km/s) or as broad as light travels. */
+export const FWHM_MIN = 1
+
+/** erg s⁻¹ cm⁻² per flux unit of a galaxy or a file. */
+export const FluxUnitSchema = z.number().min(FLUX_UNIT_MIN).max(FLUX_UNIT_MAX)
+  .meta({ description: `erg s⁻¹ cm⁻² per flux unit (default 1), ${FLUX_UNIT_MIN}–${FLUX_UNIT_MAX}; matters only for luminosities` })
+
+/**
  * One line: `{flux, error}` or `{upperLimit}`. Checked field by field (not a bare union) so that an
  * error names the leaf, e.g. /galaxies/3/lines/hbeta/error.
  */
 export const LineValueSchema = z.object({
-  flux: z.number().optional().meta({ description: 'measured flux in the galaxy\'s fluxUnit' }),
-  error: z.number().positive().optional().meta({ description: '1σ error of the flux, > 0' }),
-  upperLimit: z.number().positive().optional().meta({ description: 'a non-detection: the flux is below this value' }),
+  flux: z.number().min(-FLUX_MAX).max(FLUX_MAX).optional().meta({ description: 'measured flux in the galaxy\'s fluxUnit' }),
+  error: z.number().min(ERROR_MIN).max(FLUX_MAX).optional().meta({ description: `1σ error of the flux, ${ERROR_MIN}–${FLUX_MAX}` }),
+  upperLimit: z.number().min(ERROR_MIN).max(FLUX_MAX).optional().meta({ description: 'a non-detection: the flux is below this value' }),
 }).strict().superRefine((v, ctx) => {
   if (v.upperLimit !== undefined) {
     if (v.flux !== undefined) ctx.addIssue({ code: 'custom', path: ['flux'], message: 'give either upperLimit or flux and error, not both' })
@@ -29,14 +50,14 @@ const perLine = <T extends z.ZodType>(value: T) =>
   z.object(Object.fromEntries(LINE_ID_LIST.map((id) => [id, value.optional()])) as Record<(typeof LINE_ID_LIST)[number], z.ZodOptional<T>>).strict()
 
 export const GalaxyInputSchema = z.object({
-  id: z.string().min(1).max(120).regex(/^[^\u0000-\u001f]+$/, 'no control characters').meta({ description: 'the pipeline\'s own galaxy ID' }),
+  id: textLine().min(1).max(120).meta({ description: 'the pipeline\'s own galaxy ID' }),
   redshift: z.number().min(0).max(20).optional(),
-  fluxUnit: z.number().positive().optional().meta({ description: 'erg s⁻¹ cm⁻² per flux unit (default 1); matters only for luminosities' }),
+  fluxUnit: FluxUnitSchema.optional(),
   ra: z.number().min(0).lt(360).optional().meta({ description: 'right ascension, degrees (ICRS)' }),
   dec: z.number().min(-90).max(90).optional().meta({ description: 'declination, degrees (ICRS)' }),
   lines: perLine(LineValueSchema),
-  ew: perLine(z.number()).optional().meta({ description: 'equivalent widths in Å, emission positive' }),
-  fwhm: perLine(z.number().positive()).optional().meta({ description: 'line FWHM in km/s (halpha_broad for black-hole masses)' }),
+  ew: perLine(z.number().min(-EW_MAX).max(EW_MAX)).optional().meta({ description: 'equivalent widths in Å, emission positive' }),
+  fwhm: perLine(z.number().min(FWHM_MIN).lt(SPEED_OF_LIGHT_KM_PER_S)).optional().meta({ description: 'line FWHM in km/s (halpha_broad for black-hole masses)' }),
 }).strict().meta({ id: 'GalaxyInput' })
 export type GalaxyInputDto = z.infer<typeof GalaxyInputSchema>
 

@@ -1,7 +1,8 @@
 import { z } from 'zod'
-import { LINE_ID_LIST } from './galaxy.schema.ts'
+import { FluxUnitSchema, LINE_ID_LIST } from './galaxy.schema.ts'
+import { textLine } from './text.ts'
 
-const header = z.string().min(1).max(200)
+const header = textLine().min(1).max(200)
 const perLine = <T extends z.ZodType>(v: T) =>
   z.object(Object.fromEntries(LINE_ID_LIST.map((id) => [id, v.optional()])) as Record<(typeof LINE_ID_LIST)[number], z.ZodOptional<T>>).strict()
 
@@ -27,9 +28,9 @@ export const NonDetectionSchema = z.enum(['limit-column', 'negative-error', 'snr
 
 export const IntakeOptionsSchema = z.object({
   mapping: ColumnMappingSchema,
-  fluxUnit: z.number().positive().default(1).meta({ description: 'erg s⁻¹ cm⁻² per flux unit of the file' }),
+  fluxUnit: FluxUnitSchema.default(1).meta({ description: 'erg s⁻¹ cm⁻² per flux unit of the file' }),
   nonDetection: NonDetectionSchema.default('limit-column'),
-  saveMappingAs: z.string().trim().min(1).max(120).optional(),
+  saveMappingAs: textLine().trim().min(1).max(120).optional(),
 }).strict().meta({ id: 'IntakeOptions' })
 export type IntakeOptions = z.output<typeof IntakeOptionsSchema>
 

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { CLASS_NAMES } from './classes.ts'
+import { positiveInt4, textLine } from './text.ts'
 
 /** Query-string list: repeated parameter or comma-separated. */
 const list = <T extends readonly [string, ...string[]]>(values: T) =>
@@ -11,16 +12,23 @@ const num = z.coerce.number().refine(Number.isFinite, 'must be a finite number')
 export const RANGE_FIELD_NAMES = ['redshift', 'ebv', 'av', 'neSii', 'neOii', 'teOiii', 'n2Pp04', 'o3n2Pp04', 'sfrHalpha',
   'niiHa', 'oiiiHb', 'siiHa', 'oiHa', 'ewHalpha', 'snrMin'] as const
 
-const RangeSchema = z.string().transform((s, ctx) => {
-  const [field, min, max] = s.split(':')
+const DECIMAL = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/
+
+const RangeSchema = textLine().max(200).transform((s, ctx) => {
+  const parts = s.split(':')
+  if (parts.length !== 3) {
+    ctx.addIssue({ code: 'custom', message: `range must be field:min:max (three parts, either bound may be empty), got ${parts.length} part(s)` })
+    return z.NEVER
+  }
+  const [field, min, max] = parts
   if (!(RANGE_FIELD_NAMES as readonly string[]).includes(field)) {
     ctx.addIssue({ code: 'custom', message: `unknown range field "${field}" (one of ${RANGE_FIELD_NAMES.join(', ')})` })
     return z.NEVER
   }
-  const parse = (v: string | undefined) => (v === undefined || v === '' ? null : Number(v))
+  const parse = (v: string) => (v === '' ? null : DECIMAL.test(v) ? Number(v) : NaN)
   const lo = parse(min), hi = parse(max)
   if ((lo !== null && !Number.isFinite(lo)) || (hi !== null && !Number.isFinite(hi))) {
-    ctx.addIssue({ code: 'custom', message: 'range must be field:min:max with numbers (either may be empty)' })
+    ctx.addIssue({ code: 'custom', message: 'range must be field:min:max with finite decimal numbers (either may be empty)' })
     return z.NEVER
   }
   return { field: field as (typeof RANGE_FIELD_NAMES)[number], min: lo, max: hi }
@@ -32,13 +40,13 @@ export const GalaxyFilterSchema = z.object({
   classSii: list(CLASS_NAMES.sii),
   classOi: list(CLASS_NAMES.oi),
   classWhan: list(CLASS_NAMES.whan),
-  q: z.string().max(120).optional().meta({ description: 'text contained in the galaxy ID' }),
+  q: textLine().max(120).optional().meta({ description: 'text contained in the galaxy ID' }),
   zMin: num.optional(),
   zMax: num.optional(),
   minSnr: num.optional().meta({ description: 'minimum S/N of both Hα and Hβ' }),
   range: z.preprocess((v) => (v === undefined ? undefined : Array.isArray(v) ? v : [v]), z.array(RangeSchema).optional())
     .meta({ description: 'field:min:max, repeatable; either bound may be empty' }),
-  revision: z.coerce.number().int().positive().optional().meta({ description: 'assumptions revision (default: the latest complete one)' }),
+  revision: positiveInt4().optional().meta({ description: 'assumptions revision (default: the latest complete one)' }),
 })
 export type GalaxyFilter = z.output<typeof GalaxyFilterSchema>
 
@@ -46,7 +54,7 @@ export const SORT_FIELD_NAMES = ['id', 'redshift', 'ebv', 'av', 'neSii', 'teOiii
 
 export const GalaxyListQuerySchema = GalaxyFilterSchema.extend({
   limit: z.coerce.number().int().min(1).max(1000).default(50),
-  cursor: z.string().max(500).optional(),
+  cursor: textLine().max(1000).optional().meta({ description: 'nextCursor of the previous page, with the same sort' }),
   sort: z.enum([...SORT_FIELD_NAMES, ...SORT_FIELD_NAMES.map((s) => `-${s}` as const)]).default('id'),
 }).strict()
 

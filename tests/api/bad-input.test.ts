@@ -5,6 +5,7 @@ import { join } from 'node:path'
 import { PROJECT_ROOT } from '../../server/config.ts'
 import { signedInAgent, startTestApp, type TestApp } from '../helpers/app.ts'
 import { galaxy } from '../helpers/fixtures.ts'
+import { parse } from 'csv-parse/sync'
 
 /**
  * The bad-input corpus (tests/bad-input): every file is named after what it tries. Each must get its
@@ -126,5 +127,99 @@ describe('bad-input corpus: CSV files', () => {
       .send({ mapping: staged.body.suggestedMapping })
     expect(res.status).toBe(200)
     expect(res.body.inserted).toBe(2)
+  })
+})
+
+describe('numbers at the edges of the schema are stored, never a 500', () => {
+  const send = (gals: unknown[]) => request(t.app).post(`/api/v1/projects/${projectId}/galaxies/batch`).set('Authorization', `Bearer ${key}`).send({ galaxies: gals })
+
+  it('derived values beyond float4 (star-formation rate, S/N, ratio errors) are kept exactly in the result and saturate in the columns', async () => {
+    // fluxUnit and fluxes at their upper bounds at z = 20: L(Hα) ≈ 10⁹⁹ erg/s, far beyond the 3.4·10³⁸ a `real` holds
+    const huge = galaxy('EDGE-HUGE', { redshift: 20, fluxUnit: 1e10, lines: { halpha: { flux: 1e30, error: 1e-30 }, hbeta: { flux: 3e29, error: 1e-30 }, nii_6584: { flux: 1e-30, error: 1e30 } }, ew: { halpha: 1e5 } })
+    // and at the lower bounds: values below the smallest float4 are 0 in the columns
+    const tiny = galaxy('EDGE-TINY', { fluxUnit: 1e-30, lines: { halpha: { flux: 1e-30, error: 1e30 }, hbeta: { flux: 3e-31, error: 1e30 } }, ew: { halpha: -1e5 } })
+    const res = await send([huge, tiny])
+    expect(res.status, JSON.stringify(res.body)).toBe(200)
+    const detail = await request(t.app).get(`/api/v1/projects/${projectId}/galaxies/EDGE-HUGE`).set('Authorization', `Bearer ${key}`)
+    const sfr = detail.body.results.sfr.sfrHalpha as number
+    expect(sfr).toBeGreaterThan(3.5e38) // the result document holds the double
+    const [cols] = (await t.db.$client.query("select r.sfr_halpha, r.snr_min, r.x_nii_err, r.ew_halpha from results r join galaxies g on g.id = r.galaxy_id where g.key = 'EDGE-HUGE'")).rows
+    expect(cols.sfr_halpha).toBeCloseTo(3.4028234663852886e38, -33) // saturated at the largest float4
+    expect(cols.snr_min).toBeCloseTo(3.4028234663852886e38, -33)
+    expect(cols.ew_halpha).toBe(1e5)
+    const [small] = (await t.db.$client.query("select r.snr_min, r.ew_halpha from results r join galaxies g on g.id = r.galaxy_id where g.key = 'EDGE-TINY'")).rows
+    expect(small.snr_min).toBe(0) // 3·10⁻⁶¹ flushed to zero
+    expect(small.ew_halpha).toBe(-1e5)
+    // sorting and filtering still place it beyond every bound
+    const top = await request(t.app).get(`/api/v1/projects/${projectId}/galaxies`).query({ sort: '-sfrHalpha', limit: 1 }).set('Authorization', `Bearer ${key}`)
+    expect(top.body.items[0].id).toBe('EDGE-HUGE')
+    const next = await request(t.app).get(`/api/v1/projects/${projectId}/galaxies`).query({ sort: '-sfrHalpha', limit: 1, cursor: top.body.nextCursor }).set('Authorization', `Bearer ${key}`)
+    expect(next.status).toBe(200)
+    expect(next.body.items[0].id).not.toBe('EDGE-HUGE')
+    const diagram = await request(t.app).get(`/api/v1/projects/${projectId}/diagram`).set('Authorization', `Bearer ${key}`)
+    expect(diagram.status).toBe(200)
+    const csv = await request(t.app).get(`/api/v1/projects/${projectId}/exports/galaxies.csv`).set('Authorization', `Bearer ${key}`).buffer(true)
+      .parse((r, cb) => { let s = ''; r.on('data', (c: Buffer) => { s += c }); r.on('end', () => cb(null, s)) })
+    expect(csv.status).toBe(200)
+    expect(csv.body as string).not.toMatch(/Infinity|NaN/)
+  })
+
+  it('filter bounds beyond float4 filter instead of failing (minSnr=1e300, range=sfrHalpha:1e38:, zMax=1e308)', async () => {
+    for (const query of [{ minSnr: '1e300' }, { range: 'sfrHalpha:1e38:' }, { range: 'ebv::1e-300' }, { zMax: '1e308' }]) {
+      const list = await request(t.app).get(`/api/v1/projects/${projectId}/galaxies`).query(query).set('Authorization', `Bearer ${key}`)
+      expect(list.status, `${JSON.stringify(query)} ${JSON.stringify(list.body)}`).toBe(200)
+      const diagram = await request(t.app).get(`/api/v1/projects/${projectId}/diagram`).query(query).set('Authorization', `Bearer ${key}`)
+      expect(diagram.status).toBe(200)
+    }
+    const big = await request(t.app).get(`/api/v1/projects/${projectId}/galaxies`).query({ range: 'sfrHalpha:1e38:' }).set('Authorization', `Bearer ${key}`)
+    expect(big.body.items.map((g: { id: string }) => g.id)).toEqual(['EDGE-HUGE'])
+  })
+})
+
+describe('text fields: control characters refused, line breaks where text may span lines', () => {
+  it('a description and an assumptions note may hold line breaks and tabs; a name may not', async () => {
+    const ok = await owner.agent.post('/api/v1/projects').set('X-CSRF-Token', owner.csrf).send({ name: 'Lines', description: 'first line\nsecond\tline\r\n' })
+    expect(ok.status).toBe(201)
+    expect(ok.body.description).toBe('first line\nsecond\tline\r\n')
+    const note = await owner.agent.put(`/api/v1/projects/${ok.body.id}/assumptions`).set('X-CSRF-Token', owner.csrf).send({ settings: {}, note: 'why:\n- dusty nuclei' })
+    expect(note.status).toBe(201)
+    const bad = await owner.agent.post('/api/v1/projects').set('X-CSRF-Token', owner.csrf).send({ name: 'two\nlines' })
+    expect(bad.status).toBe(422)
+    expect(bad.body.errors).toEqual([{ path: '/name', message: 'must not contain control characters (such as NUL)' }])
+  })
+
+  it('a NUL in the sign-in and password-reset e-mail is a 422 naming /email, not a 500', async () => {
+    for (const url of ['/api/v1/auth/sign-in', '/api/v1/auth/password-reset']) {
+      const res = await request(t.app).post(url).send({ email: 'bad-input@example.org\u0000', password: 'correct horse battery' })
+      expect([res.status, res.body.errors?.[0]?.path], url).toEqual([422, '/email'])
+    }
+  })
+})
+
+describe('CSV export: no live formula in any spreadsheet locale', () => {
+  it('the project name goes through the CSV writer; every ;-separated part of a text cell is neutralised', async () => {
+    const name = 'Survey,=HYPERLINK("http://example.org/?q=1";"click"),end'
+    const p = (await owner.agent.post('/api/v1/projects').set('X-CSRF-Token', owner.csrf).send({ name })).body.id
+    const ids = ['X;=1+1', '=SUM(A1:A9)', 'plain;part', 'Q; "@cmd"']
+    const stored = await owner.agent.post(`/api/v1/projects/${p}/galaxies/batch`).set('X-CSRF-Token', owner.csrf).send({ galaxies: ids.map((id) => galaxy(id)) })
+    expect(stored.status, JSON.stringify(stored.body)).toBe(200)
+    const res = await owner.agent.get(`/api/v1/projects/${p}/exports/galaxies.csv`).query({ columns: 'redshift' }).buffer(true)
+      .parse((r, cb) => { let s = ''; r.on('data', (c: Buffer) => { s += c }); r.on('end', () => cb(null, s)) })
+    expect(res.status).toBe(200)
+    const text = res.body as string
+    const lines = text.trimEnd().split('\n')
+    const comments = lines.filter((l) => l.startsWith('#'))
+    expect(comments).toHaveLength(8) // every provenance line still starts with # for readers that skip comments
+    expect(comments[0]).toBe(`# Ratiograph 0.1.0 export of project,"Survey,=HYPERLINK(""http://example.org/?q=1"";""click""),end"`)
+    // a comma spreadsheet: every cell of every line (comments included) is plain text
+    const FORMULA = /^[\s"]*[=+\-@]|^[\t\r]/
+    for (const record of parse(text, { relax_column_count: true, relax_quotes: true }) as string[][]) {
+      for (const cell of record) expect(cell, cell).not.toMatch(FORMULA)
+    }
+    // a semicolon spreadsheet splits on every ';', inside quotes or not
+    for (const line of lines) for (const cell of line.split(';')) expect(cell, line).not.toMatch(FORMULA)
+    const rows = parse(lines.filter((l) => !l.startsWith('#')).join('\n'), { columns: true }) as Array<Record<string, string>>
+    expect(rows.map((r) => r.galaxy_id).sort()).toEqual(["'=SUM(A1:A9)", 'Q;\' "@cmd"', "X;'=1+1", 'plain;part'].sort())
+    expect(text).toContain('"X;\'=1+1"') // fields holding ; are quoted
   })
 })

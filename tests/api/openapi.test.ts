@@ -60,6 +60,39 @@ describe('OpenAPI document', () => {
     expect(examples).toBeGreaterThanOrEqual(3)
   })
 
+  it('every text a request carries (path, query, body) refuses control characters, and says so in a pattern', () => {
+    // passwords are hashed and never shown or stored as text, so any character is theirs to use
+    const EXEMPT = new Set(['password'])
+    const FORMATS = new Set(['uuid', 'email', 'date-time'])
+    const unguarded: string[] = []
+    let strings = 0
+    const walk = (node: any, where: string, seen: Set<string>) => { // eslint-disable-line @typescript-eslint/no-explicit-any
+      if (!node || typeof node !== 'object') return
+      if (typeof node.$ref === 'string') {
+        const name = node.$ref.replace('#/components/schemas/', '')
+        if (!seen.has(name)) walk(doc.components.schemas[name], where, new Set([...seen, name]))
+        return
+      }
+      const types = ([] as string[]).concat(node.type ?? [])
+      if (types.includes('string') && node.enum === undefined && node.const === undefined && !FORMATS.has(node.format)) {
+        strings++
+        const pattern = node.pattern === undefined ? null : new RegExp(node.pattern, 'u')
+        if (!pattern || pattern.test('a\u0000b') || pattern.test('a\u001bb') || pattern.test('a\u0085b')) unguarded.push(where)
+      }
+      for (const [k, v] of Object.entries(node.properties ?? {})) if (!EXEMPT.has(k)) walk(v, `${where}/${k}`, seen)
+      for (const key of ['items', 'additionalProperties', 'not'] as const) walk(node[key], `${where}/${key}`, seen)
+      for (const key of ['anyOf', 'oneOf', 'allOf', 'prefixItems'] as const) for (const [i, v] of (node[key] ?? []).entries()) walk(v, `${where}/${key}/${i}`, seen)
+    }
+    for (const [p, ops] of Object.entries(doc.paths)) {
+      for (const [m, op] of Object.entries(ops as Record<string, any>)) { // eslint-disable-line @typescript-eslint/no-explicit-any
+        for (const param of op.parameters ?? []) if (param.in !== 'header') walk(param.schema, `${m} ${p} ${param.in} ${param.name}`, new Set())
+        for (const [type, media] of Object.entries(op.requestBody?.content ?? {}) as Array<[string, any]>) walk(media.schema, `${m} ${p} body (${type})`, new Set()) // eslint-disable-line @typescript-eslint/no-explicit-any
+      }
+    }
+    expect(strings).toBeGreaterThan(20)
+    expect(unguarded).toEqual([])
+  })
+
   it('matches the committed openapi/openapi.json (run `npm run openapi` after changing a route)', () => {
     const committed = JSON.parse(readFileSync(join(PROJECT_ROOT, 'openapi', 'openapi.json'), 'utf8'))
     expect(committed).toEqual(doc)
