@@ -4,7 +4,7 @@ import { auditEvents } from '../db/schema.ts'
 export type AuditAction =
   | 'sign-in' | 'sign-in-failed' | 'sign-up' | 'password-reset' | 'api-key-created' | 'api-key-revoked'
   | 'member-added' | 'member-role-changed' | 'member-removed' | 'invitation-sent' | 'invitation-revoked'
-  | 'assumptions-changed' | 'project-created' | 'project-renamed' | 'project-deleted' | 'user-disabled' | 'user-enabled'
+  | 'assumptions-changed' | 'intake-undone' | 'project-created' | 'project-renamed' | 'project-deleted' | 'user-disabled' | 'user-enabled'
 
 /** Appends one audit event; runs inside the caller's transaction when given one. */
 export async function audit(db: Pick<Db, 'insert'>, e: {
