@@ -23,11 +23,11 @@ function rescale(v: Line, factor: number): Line {
 /**
  * `onExisting: merge`: the stored record with the new one laid over it. Lines, equivalent widths and
  * FWHM given anew replace the stored ones of the same line; the others are kept. Redshift, RA and Dec
- * are kept unless given. The result is in the new record's flux unit, so kept lines are rescaled
- * when the two units differ (the physical fluxes stay the same).
+ * are kept unless given, and so is the flux unit. The result is in the new record's flux unit, so
+ * kept lines are rescaled when the two units differ (the physical fluxes stay the same).
  */
 export function mergeGalaxy(stored: StoredGalaxy, incoming: GalaxyInputDto): GalaxyInputDto {
-  const unit = incoming.fluxUnit ?? 1
+  const unit = incoming.fluxUnit ?? stored.fluxUnit
   const factor = stored.fluxUnit / unit
   const lines: Record<string, Line> = {}
   for (const [id, v] of Object.entries(stored.input.lines ?? {})) lines[id] = rescale(v, factor)
