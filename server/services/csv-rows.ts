@@ -49,7 +49,8 @@ export function rowToGalaxy(record: string[], row: number, headerIndex: Map<stri
     if (!cols) continue
     const flux = number(cols.flux), error = number(cols.error), limit = opts.nonDetection === 'limit-column' ? number(cols.limit) : undefined
     if (limit !== undefined && flux === undefined) { lines[lineId] = { upperLimit: limit }; continue }
-    if (flux === undefined) { if (error !== undefined) problem(cols.flux, 'an error is given but no flux'); continue }
+    // (a flux cell that is not a number has its problem already)
+    if (flux === undefined) { if (error !== undefined && cell(cols.flux) === '') problem(cols.flux, 'an error is given but no flux'); continue }
     if (opts.nonDetection === 'negative-error' && error !== undefined && error < 0) { lines[lineId] = { upperLimit: flux }; continue }
     if (error === undefined) { problem(cols.error ?? cols.flux, `no error for ${lineId}`); continue }
     lines[lineId] = { flux, error }

@@ -15,14 +15,14 @@ import {
 } from './galaxies.service.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import { CSV_PARSE_OPTIONS, columnFor, rowToGalaxy, suggestMapping } from './csv-rows.ts'
-import { dispatchJob, jobDto, registerJobRunner, reportProgress, runJob, type JobLease } from './jobs.service.ts'
+import { dispatchJob, errorText, jobDto, registerJobRunner, reportProgress, runJob, type JobLease } from './jobs.service.ts'
 import { resultRow } from './result-columns.ts'
 import { audit } from './audit.ts'
 
 const PREVIEW_ROWS = 20
 const MAX_PROBLEMS = 500
 /** Rows parsed, checked, computed and written at a time: bounds memory and each pause of the event loop. */
-const CHUNK_ROWS = 2000
+const CHUNK_ROWS = 1000
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 
@@ -292,7 +292,7 @@ registerJobRunner('intake', {
     const { intakeId } = job.params as IntakeJobParams
     const report = err instanceof IntakeProblems ? { problems: err.problems, problemCount: err.problemCount }
       : err instanceof HttpProblem ? { problems: [], problemCount: 1, error: err.detail ?? err.title, errors: err.errors ?? [] }
-        : { error: err instanceof Error ? err.message : String(err) }
+        : { error: errorText(err) }
     await db.update(intakes).set({ status: 'staged', report }).where(and(eq(intakes.id, intakeId), eq(intakes.status, 'committing')))
   },
 })

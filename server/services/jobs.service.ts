@@ -123,7 +123,13 @@ export interface JobRunner {
 const runners = new Map<string, JobRunner>()
 export function registerJobRunner(kind: string, runner: JobRunner) { runners.set(kind, runner) }
 
-const errorText = (err: unknown) => (err instanceof Error ? err.message : String(err))
+/** What a failed job says: the database's own message, not the query and its parameters around it. */
+export function errorText(err: unknown): string {
+  let e = err
+  while (e instanceof Error && e.message.startsWith('Failed query:') && e.cause) e = e.cause
+  const text = e instanceof Error ? e.message : String(e)
+  return text.length > 500 ? text.slice(0, 497) + '…' : text
+}
 
 /**
  * Runs one job under its lease. Without the lease (another worker has it) nothing happens, so a
