@@ -153,7 +153,7 @@ export const galaxyIntakes = pgTable('galaxy_intakes', {
   intakeId: uuid().notNull().references(() => intakes.id, { onDelete: 'cascade' }),
   /** What the intake did to the galaxy: 'created' | 'replaced' | 'merged'; null before history was kept. */
   change: text(),
-}, (t) => [primaryKey({ columns: [t.galaxyId, t.intakeId] }), index('galaxy_intakes_intake').on(t.intakeId)])
+}, (t) => [primaryKey({ columns: [t.galaxyId, t.intakeId] }), index('galaxy_intakes_intake').on(t.intakeId, t.galaxyId)])
 
 /**
  * A galaxy's record as it was before an intake replaced or merged into it: kept so that every
@@ -174,7 +174,7 @@ export const galaxyVersions = pgTable('galaxy_versions', {
   /** When the superseded record had been written (its `updated_at`). */
   writtenAt: timestamp({ withTimezone: true }).notNull(),
   replacedAt: createdAt(),
-}, (t) => [index('galaxy_versions_galaxy').on(t.galaxyId), index('galaxy_versions_intake').on(t.intakeId)])
+}, (t) => [index('galaxy_versions_galaxy').on(t.galaxyId), index('galaxy_versions_intake').on(t.intakeId, t.galaxyId)])
 
 /**
  * Everything derived for a galaxy under one assumptions revision and one method version. The full

@@ -87,8 +87,12 @@ export async function computeForRevisions(db: Db, projectId: string, gals: Galax
   return { revision: plans[0].revision, computed }
 }
 
-/** A JSON array of strings as a SQL set (keys are user text: always a parameter). */
-const keySet = (keys: string[]) => sql`(select json_array_elements_text(${JSON.stringify(keys)}::json))`
+/**
+ * `column = any(…)` over a JSON array of strings (keys are user text: always a parameter). An array
+ * rather than `in (subquery)`, so PostgreSQL looks each key up in the index instead of hashing the
+ * whole project's galaxies for every chunk.
+ */
+export const anyKey = (keys: string[]) => sql`any(array(select json_array_elements_text(${JSON.stringify(keys)}::json)))`
 const idArray = (ids: number[]) => sql`${'{' + ids.join(',') + '}'}::bigint[]`
 
 export interface WriteOptions {
@@ -119,7 +123,7 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
       const kept = await tx.execute<{ id: number }>(sql`
         with old as (
           select id, last_intake_id, redshift, ra, dec, flux_unit, input, updated_at from galaxies
-          where project_id = ${projectId}::uuid and key in ${keySet(keys)} for update),
+          where project_id = ${projectId}::uuid and key = ${anyKey(keys)} for update),
         saved as (
           insert into galaxy_versions (galaxy_id, intake_id, previous_intake_id, redshift, ra, dec, flux_unit, input, written_at)
           select id, ${intakeId}::uuid, last_intake_id, redshift, ra, dec, flux_unit, input, updated_at from old)
@@ -167,7 +171,7 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
 async function storedGalaxies(tx: Executor, projectId: string, keys: string[], withInput: boolean) {
   const rows = await tx.execute<{ id: number; key: string; redshift: number | null; ra: number | null; dec: number | null; flux_unit: number; input: StoredGalaxy['input'] | null }>(sql`
     select id, key, redshift, ra, dec, flux_unit, ${withInput ? sql`input` : sql`null::json as input`} from galaxies
-    where project_id = ${projectId}::uuid and key in ${keySet(keys)} for update`)
+    where project_id = ${projectId}::uuid and key = ${anyKey(keys)} for update`)
   return new Map(rows.rows.map((r) => [r.key, { id: r.id, key: r.key, redshift: r.redshift, ra: r.ra, dec: r.dec, fluxUnit: r.flux_unit, input: r.input ?? { lines: {} } }]))
 }
 

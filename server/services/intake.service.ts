@@ -11,7 +11,7 @@ import type { Mailer } from '../lib/mailer.ts'
 import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
 import { IntakeOptionsSchema, type IntakeCounts, type IntakeOptions, type IntakeProblem } from '../../shared/schemas/intake.schema.ts'
 import {
-  bumpDataVersion, computeAll, negativeFluxErrors, revisionsToCompute, upsertResults, writeIntakeChunk, writingGalaxies, type RevisionPlan,
+  anyKey, bumpDataVersion, computeAll, negativeFluxErrors, revisionsToCompute, upsertResults, writeIntakeChunk, writingGalaxies, type RevisionPlan,
 } from './galaxies.service.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import { CSV_PARSE_OPTIONS, columnFor, rowToGalaxy, suggestMapping } from './csv-rows.ts'
@@ -160,7 +160,7 @@ async function pass(tx: Tx, projectId: string, path: string, opts: IntakeOptions
     const firstRow = new Map(firsts.rows.map((r) => [r.key, r.row]))
     const repeated = gals.map((g, i) => [g.id, i] as const).filter(([key, i]) => firstRow.get(key) !== rows[i])
     if (repeated.length) {
-      const earlier = await tx.execute<{ key: string; row: number }>(sql`select key, row from intake_keys where key in (select json_array_elements_text(${JSON.stringify(repeated.map(([k]) => k))}::json))`)
+      const earlier = await tx.execute<{ key: string; row: number }>(sql`select key, row from intake_keys where key = ${anyKey(repeated.map(([k]) => k))}`)
       const at = new Map(earlier.rows.map((r) => [r.key, r.row]))
       for (const [key, i] of repeated) note(i, { row: rows[i], column: headerIndex!.get(opts.mapping.id)! + 1, field: opts.mapping.id, message: `duplicate galaxy id "${key}" (also in row ${at.get(key)})` })
     }
@@ -168,7 +168,7 @@ async function pass(tx: Tx, projectId: string, path: string, opts: IntakeOptions
     const okGals = gals.filter((_, i) => !bad.has(i)), okRows = rows.filter((_, i) => !bad.has(i))
     if (!hooks.write) {
       const [{ n }] = (await tx.execute<{ n: number }>(sql`select count(*)::int as n from galaxies where project_id = ${projectId}::uuid
-        and key in (select json_array_elements_text(${JSON.stringify(okGals.map((g) => g.id))}::json))`)).rows
+        and key = ${anyKey(okGals.map((g) => g.id))}`)).rows
       out.existing += n
     } else if (out.problemCount === 0) {
       await hooks.write(okGals, okRows)
@@ -213,8 +213,8 @@ async function computeIntakeUnder(tx: Tx, projectId: string, intakeId: string, p
   let lastId = 0
   for (;;) {
     const rows = (await tx.execute<{ id: number; key: string; redshift: number | null; flux_unit: number; input: Pick<GalaxyInputDto, 'lines' | 'ew' | 'fwhm'> }>(sql`
-      select g.id, g.key, g.redshift, g.flux_unit, g.input from galaxies g join galaxy_intakes gi on gi.galaxy_id = g.id
-      where gi.intake_id = ${intakeId}::uuid and g.id > ${lastId} order by g.id limit ${CHUNK_ROWS}`)).rows
+      select g.id, g.key, g.redshift, g.flux_unit, g.input from galaxy_intakes gi join galaxies g on g.id = gi.galaxy_id
+      where gi.intake_id = ${intakeId}::uuid and gi.galaxy_id > ${lastId} order by gi.galaxy_id limit ${CHUNK_ROWS}`)).rows
     if (!rows.length) return
     const inputs: GalaxyInputDto[] = rows.map((r) => ({ id: r.key, ...(r.redshift !== null ? { redshift: r.redshift } : {}), fluxUnit: r.flux_unit, ...r.input }))
     for (const p of plans) {
@@ -457,14 +457,14 @@ async function recomputeRestored(tx: Tx, projectId: string, intakeId: string): P
   let lastId = 0, restored = 0
   for (;;) {
     const rows = (await tx.execute<{ id: number; key: string; redshift: number | null; flux_unit: number; input: Pick<GalaxyInputDto, 'lines' | 'ew' | 'fwhm'> }>(sql`
-      select g.id, g.key, g.redshift, g.flux_unit, g.input from galaxies g
-      where g.id in (select galaxy_id from galaxy_versions where intake_id = ${intakeId}::uuid) and g.id > ${lastId} order by g.id limit ${CHUNK_ROWS}`)).rows
+      select g.id, g.key, g.redshift, g.flux_unit, g.input from galaxy_versions v join galaxies g on g.id = v.galaxy_id
+      where v.intake_id = ${intakeId}::uuid and v.galaxy_id > ${lastId} order by v.galaxy_id limit ${CHUNK_ROWS}`)).rows
     if (!rows.length) return restored
     restored += rows.length
     const inputs: GalaxyInputDto[] = rows.map((r) => ({ id: r.key, ...(r.redshift !== null ? { redshift: r.redshift } : {}), fluxUnit: r.flux_unit, ...r.input }))
     const have = new Map<number, Set<number>>()
     for (const r of (await tx.execute<{ galaxy_id: number; revision: number }>(sql`select galaxy_id, revision from results
-      where galaxy_id in (select unnest(${'{' + rows.map((r) => r.id).join(',') + '}'}::bigint[]))`)).rows) {
+      where galaxy_id = any(${'{' + rows.map((r) => r.id).join(',') + '}'}::bigint[])`)).rows) {
       if (!have.has(r.revision)) have.set(r.revision, new Set())
       have.get(r.revision)!.add(r.galaxy_id)
     }
