@@ -80,9 +80,16 @@ export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
 
   route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/undo', tag, access: 'analyst', write: true, params: IntakePathSchema,
     summary: 'Undo a committed intake: restore the records it replaced, remove the galaxies it created, recompute their results',
-    description: 'One transaction. Refused with 409 when a later intake changed any of the same galaxies (undo that one first), or when the intake is not committed.',
-    responses: { 200: { description: 'undone', schema: z.object({ intake: IntakeSchema, restored: z.number().int(), removed: z.number().int() }) }, 409: { description: 'a later intake changed its galaxies, or not committed' } } },
-  guard, async (req, res, { params }) => { res.json(await intake.undo(requireAuth(req), params.projectId, params.intakeId)) })
+    description: 'One transaction: all of it or nothing. Refused with 409 when a later intake changed any of the same galaxies (undo that one first), or when the intake is not committed.',
+    responses: {
+      200: { description: 'undone', schema: z.object({ intake: IntakeSchema, restored: z.number().int(), removed: z.number().int() }) },
+      202: { description: 'an intake of more than INTAKE_INLINE_ROWS rows: undone by an `undo` job; follow it', schema: z.object({ intake: IntakeSchema, job: JobSchema }) },
+      409: { description: 'a later intake changed its galaxies, not committed, or an undo of it is running' },
+    } },
+  guard, async (req, res, { params }) => {
+    const out = await intake.undo(requireAuth(req), params.projectId, params.intakeId)
+    res.status(out.status).json(out.body)
+  })
 
   const RecordSchema = z.object({ id: z.string(), redshift: z.number().nullable(), fluxUnit: z.number(), ra: z.number().nullable(), dec: z.number().nullable(),
     lines: z.unknown(), ew: z.unknown().nullable(), fwhm: z.unknown().nullable() })

@@ -388,43 +388,28 @@ export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: s
     },
 
     /**
-     * Undoes a committed intake in one transaction: the records it replaced or merged into are
-     * restored exactly (inputs and their earlier intake), the galaxies it created are removed, and
-     * every stored result of a restored galaxy is computed again from the restored inputs. Refused
-     * (409) when a later intake has changed any of its galaxies: undo that one first.
+     * Undoes a committed intake (see `undoIntake`). Intakes of up to `inlineRows` rows are undone
+     * within the request (200); larger ones by an `undo` job (202), after the same checks.
      */
     async undo(auth: Auth, projectId: string, intakeId: string) {
-          return writingGalaxies(db, projectId, () => db.transaction(async (tx) => {
-        const [i] = await tx.select().from(intakes).where(and(eq(intakes.id, intakeId), eq(intakes.projectId, projectId))).for('update')
-        if (!i) throw notFound('intake')
-        if (i.status !== 'committed') throw conflict(`this intake is ${i.status}; only a committed intake can be undone`)
-        const [check] = (await tx.execute<{ total: number; unknown: number; later: number; example: string | null; created: number }>(sql`
-          with touched as (
-            select g.id, g.key, g.last_intake_id, gi.change from galaxy_intakes gi join galaxies g on g.id = gi.galaxy_id
-            where gi.intake_id = ${intakeId}::uuid for update of g)
-          select count(*)::int as total, count(*) filter (where change is null)::int as unknown,
-            count(*) filter (where last_intake_id is distinct from ${intakeId}::uuid)::int as later,
-            min(key) filter (where last_intake_id is distinct from ${intakeId}::uuid) as example,
-            count(*) filter (where change = 'created')::int as created
-          from touched`)).rows
-        if (check.unknown > 0) throw conflict('this intake was stored before intake history was kept, so its earlier records are not known; it cannot be undone')
-        if (check.later > 0) throw conflict(`${fmtInt(check.later)} of its galaxies (e.g. "${check.example}") were changed by a later intake; undo that intake first`)
-        await tx.execute(sql`
-          update galaxies g set redshift = v.redshift, ra = v.ra, dec = v.dec, flux_unit = v.flux_unit, input = v.input,
-            last_intake_id = v.previous_intake_id, updated_at = v.written_at
-          from galaxy_versions v where v.intake_id = ${intakeId}::uuid and v.galaxy_id = g.id`)
-        await tx.execute(sql`delete from galaxies where id in (select galaxy_id from galaxy_intakes where intake_id = ${intakeId}::uuid and change = 'created')`)
-        const restored = await recomputeRestored(tx, projectId, intakeId)
-        await tx.delete(galaxyVersions).where(eq(galaxyVersions.intakeId, intakeId))
-        await tx.delete(galaxyIntakes).where(eq(galaxyIntakes.intakeId, intakeId))
-        await bumpDataVersion(tx, projectId)
-        const undone = { at: new Date().toISOString(), by: { id: auth.user.id, name: auth.user.name }, restored, removed: check.created }
-        const [u] = await tx.update(intakes).set({ status: 'undone', report: sql`coalesce(${intakes.report}, '{}'::jsonb) || ${JSON.stringify({ undone })}::jsonb` })
-          .where(eq(intakes.id, intakeId)).returning()
-        await audit(tx, { action: 'intake-undone', actorUserId: auth.user.id, projectId, target: `intake ${intakeId}`, details: { restored, removed: check.created, fileName: i.fileName, kind: i.kind } })
-        const [byRow] = await tx.select({ name: users.name }).from(users).where(eq(users.id, u.userId ?? auth.user.id))
-        return { intake: intakeDto(u, { id: u.userId, name: byRow?.name ?? null }), restored, removed: check.created }
-      }))
+      const by = { id: auth.user.id, name: auth.user.name }
+      const [i] = await db.select().from(intakes).where(and(eq(intakes.id, intakeId), eq(intakes.projectId, projectId)))
+      if (!i) throw notFound('intake')
+      if (i.rowsAccepted <= limits.inlineRows) {
+        const out = await writingGalaxies(db, projectId, () => db.transaction((tx) => undoIntake(tx, by, projectId, intakeId)))
+        return { status: 200 as const, body: { intake: intakeDto(out.intake, i.userId ? { id: i.userId, name: out.byName } : null), restored: out.restored, removed: out.removed } }
+      }
+      const job = await db.transaction(async (tx) => {
+        await undoChecks(tx, projectId, intakeId, false)
+        const [running] = await tx.select({ id: jobs.id }).from(jobs)
+          .where(and(eq(jobs.kind, 'undo'), sql`${jobs.status} in ('queued', 'running')`, sql`${jobs.params}->>'intakeId' = ${intakeId}`))
+        if (running) throw conflict('an undo of this intake is already running')
+        const [j] = await tx.insert(jobs).values({ projectId, kind: 'undo', status: 'queued', total: i.rowsAccepted, createdBy: by.id, params: { intakeId, by } }).returning()
+        return j
+      })
+      await dispatchJob(db, undefined, job)
+      const [byRow] = i.userId ? await db.select({ name: users.name }).from(users).where(eq(users.id, i.userId)) : []
+      return { status: 202 as const, body: { intake: intakeDto(i, i.userId ? { id: i.userId, name: byRow?.name ?? null } : null), job: jobDto(job) } }
     },
 
     /** Earlier records of a galaxy, newest first, each with the intake that had written it and the one that superseded it. */
@@ -449,8 +434,68 @@ export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: s
   }
 }
 
+/** The intake must be committed, kept with history, and the last to have written each of its galaxies. */
+async function undoChecks(tx: Tx, projectId: string, intakeId: string, lock: boolean) {
+  const [i] = await (lock
+    ? tx.select().from(intakes).where(and(eq(intakes.id, intakeId), eq(intakes.projectId, projectId))).for('update')
+    : tx.select().from(intakes).where(and(eq(intakes.id, intakeId), eq(intakes.projectId, projectId))))
+  if (!i) throw notFound('intake')
+  if (i.status !== 'committed') throw conflict(`this intake is ${i.status}; only a committed intake can be undone`)
+  const [check] = (await tx.execute<{ unknown: number; later: number; example: string | null; created: number }>(sql`
+    with touched as (
+      select g.id, g.key, g.last_intake_id, gi.change from galaxy_intakes gi join galaxies g on g.id = gi.galaxy_id
+      where gi.intake_id = ${intakeId}::uuid ${lock ? sql`for update of g` : sql``})
+    select count(*) filter (where change is null)::int as unknown,
+      count(*) filter (where last_intake_id is distinct from ${intakeId}::uuid)::int as later,
+      min(key) filter (where last_intake_id is distinct from ${intakeId}::uuid) as example,
+      count(*) filter (where change = 'created')::int as created
+    from touched`)).rows
+  if (check.unknown > 0) throw conflict('this intake was stored before intake history was kept, so its earlier records are not known; it cannot be undone')
+  if (check.later > 0) throw conflict(`${fmtInt(check.later)} of its galaxies (e.g. "${check.example}") were changed by a later intake; undo that intake first`)
+  return { intake: i, created: check.created }
+}
+
+/**
+ * Undoes a committed intake inside the caller's transaction: the records it replaced or merged into
+ * are restored exactly (inputs, their earlier intake and time), the galaxies it created are removed,
+ * and every stored result of a restored galaxy is computed again from the restored inputs.
+ * Refused (409) when a later intake has changed any of its galaxies: undo that one first.
+ */
+async function undoIntake(tx: Tx, by: { id: string; name: string | null }, projectId: string, intakeId: string, progress?: (n: number) => Promise<void>) {
+  const { intake: i, created } = await undoChecks(tx, projectId, intakeId, true)
+  await tx.execute(sql`
+    update galaxies g set redshift = v.redshift, ra = v.ra, dec = v.dec, flux_unit = v.flux_unit, input = v.input,
+      last_intake_id = v.previous_intake_id, updated_at = v.written_at
+    from galaxy_versions v where v.intake_id = ${intakeId}::uuid and v.galaxy_id = g.id`)
+  await tx.execute(sql`delete from galaxies where id in (select galaxy_id from galaxy_intakes where intake_id = ${intakeId}::uuid and change = 'created')`)
+  await progress?.(created)
+  const restored = await recomputeRestored(tx, projectId, intakeId, (n) => progress?.(created + n))
+  await tx.delete(galaxyVersions).where(eq(galaxyVersions.intakeId, intakeId))
+  await tx.delete(galaxyIntakes).where(eq(galaxyIntakes.intakeId, intakeId))
+  await bumpDataVersion(tx, projectId)
+  const undone = { at: new Date().toISOString(), by, restored, removed: created }
+  const [u] = await tx.update(intakes).set({ status: 'undone', report: sql`coalesce(${intakes.report}, '{}'::jsonb) || ${JSON.stringify({ undone })}::jsonb` })
+    .where(eq(intakes.id, intakeId)).returning()
+  await audit(tx, { action: 'intake-undone', actorUserId: by.id, projectId, target: `intake ${intakeId}`, details: { restored, removed: created, fileName: i.fileName, kind: i.kind } })
+  const [byRow] = u.userId ? await tx.select({ name: users.name }).from(users).where(eq(users.id, u.userId)) : []
+  return { intake: u, byName: byRow?.name ?? null, restored, removed: created }
+}
+
+/** The `undo` job: a large intake undone in one transaction on the lease's connection, with progress. */
+registerJobRunner('undo', {
+  continues: false, // one transaction: after a crash nothing of it was kept
+  inProcess: true,
+  async run(lease, job, db) {
+    const { intakeId, by } = job.params as { intakeId: string; by: { id: string; name: string | null } }
+    await writingGalaxies(db, job.projectId, () => lease.db.transaction(async (tx) => {
+      await undoIntake(tx, by, job.projectId, intakeId, (n) => reportProgress(db, job.id, { done: n }))
+      await tx.update(jobs).set({ status: 'done', done: job.total, finishedAt: sql`now()`, heartbeatAt: sql`now()` }).where(eq(jobs.id, job.id))
+    }))
+  },
+})
+
 /** Every stored result of the galaxies an undo restored, computed again from the restored inputs. */
-async function recomputeRestored(tx: Tx, projectId: string, intakeId: string): Promise<number> {
+async function recomputeRestored(tx: Tx, projectId: string, intakeId: string, progress?: (n: number) => Promise<void> | undefined): Promise<number> {
   const revs = (await tx.execute<{ revision: number }>(sql`select distinct r.revision from results r
     where r.galaxy_id in (select galaxy_id from galaxy_versions where intake_id = ${intakeId}::uuid) order by 1`)).rows
   const plans = await Promise.all(revs.map((r) => revisionSettings(tx, projectId, r.revision)))
@@ -476,6 +521,7 @@ async function recomputeRestored(tx: Tx, projectId: string, intakeId: string): P
       await upsertResults(tx, projectId, p.revision, resultRows, false)
     }
     lastId = rows[rows.length - 1].id
+    await progress?.(restored)
   }
 }
 

@@ -61,7 +61,7 @@ export interface Revision {
 
 export interface Job {
   id: string
-  kind: 'recompute' | 'intake'
+  kind: 'recompute' | 'intake' | 'undo'
   status: 'queued' | 'running' | 'done' | 'failed'
   total: number
   done: number

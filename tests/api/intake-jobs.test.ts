@@ -130,6 +130,38 @@ describe('a large CSV commit', () => {
   })
 })
 
+describe('undoing a large intake', () => {
+  it('runs as an undo job (202) with progress, restores the replaced records and removes the created ones', async () => {
+    const commitAll = async (csv: string, onExisting: string) => {
+      const staged = await upload(csv)
+      const res = await post(`/intakes/${staged.body.intake.id}/commit`, { mapping: staged.body.suggestedMapping, onExisting })
+      expect(res.status).toBe(202)
+      expect((await follow(res.body.job.id)).job.status).toBe('done')
+      return staged.body.intake.id as string
+    }
+    const first = await commitAll(csvOf('UJ-', 3500), 'skip')
+    const before = (await get('/galaxies/UJ-1234')).body
+    const second = await commitAll(csvOf('UJ-', 3500).replaceAll(',0.05,', ',0.07,'), 'replace')
+    expect((await get('/galaxies/UJ-1234')).body.redshift).toBe(0.07)
+
+    const undo = await post(`/intakes/${second}/undo`)
+    expect(undo.status, JSON.stringify(undo.body)).toBe(202)
+    expect(undo.body.job).toMatchObject({ kind: 'undo', total: 3500 })
+    expect((await post(`/intakes/${second}/undo`)).status).toBe(409) // one at a time
+    const { job, seen } = await follow(undo.body.job.id)
+    expect(job).toMatchObject({ status: 'done', error: null })
+    expect(seen.some((d) => d > 0 && d < 3500)).toBe(true)
+    const after = (await get('/galaxies/UJ-1234')).body
+    expect({ ...after, computedAt: null, revisions: null }).toEqual({ ...before, computedAt: null, revisions: null })
+    expect((await get(`/intakes/${second}`)).body).toMatchObject({ status: 'undone', report: { undone: { restored: 3500, removed: 0 } } })
+
+    const undoFirst = await post(`/intakes/${first}/undo`)
+    expect(undoFirst.status).toBe(202)
+    expect((await follow(undoFirst.body.job.id)).job.status).toBe('done')
+    expect(await count('UJ-')).toBe(0)
+  })
+})
+
 describe('jobs whose worker has gone', () => {
   it('a recompute left running (no lease, partial results) is resumed at once from its last committed chunk, with the same results', async () => {
     const n = 5000

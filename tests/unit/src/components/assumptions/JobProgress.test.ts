@@ -24,7 +24,7 @@ describe('JobProgress', () => {
   it('an intake job counts rows, and a resumed one says it began again', () => {
     const job: Job = { ...base, kind: 'intake', done: 4_000, total: 7_000 }
     expect(text(job)).toMatch(/Storing rows: 4,000 of 7,000 checked and written/)
-    expect(text({ ...job, resumedAt: '2026-12-01T10:05:00Z', resumeCount: 1, resumedFrom: 0 })).toMatch(/stored all at once, so it began again/)
+    expect(text({ ...job, resumedAt: '2026-12-01T10:05:00Z', resumeCount: 1, resumedFrom: 0 })).toMatch(/done all at once, so it began again/)
     expect(text({ ...job, status: 'done', done: 7_000, finishedAt: '2026-12-01T10:06:00Z' })).toMatch(/Done: 7,000 rows stored/)
   })
 
