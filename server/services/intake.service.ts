@@ -148,8 +148,8 @@ async function pass(tx: Tx, projectId: string, path: string, opts: IntakeOptions
 
   const flush = async () => {
     if (!gals.length) return
-    const bad = new Map<number, IntakeProblem[]>()
-    const note = (i: number, p: IntakeProblem) => { const l = bad.get(i) ?? []; l.push(p); bad.set(i, l) }
+    const invalid = new Map<number, IntakeProblem[]>()
+    const note = (i: number, p: IntakeProblem) => { const l = invalid.get(i) ?? []; l.push(p); invalid.set(i, l) }
     for (const e of negativeFluxErrors(gals, settings, '')) {
       const [, i, ...rest] = e.path.split('/')
       note(Number(i), { row: rows[Number(i)], column: columnOf(rest.join('/')), field: rest.join('/'), message: e.message })
@@ -164,13 +164,13 @@ async function pass(tx: Tx, projectId: string, path: string, opts: IntakeOptions
       const at = new Map(earlier.rows.map((r) => [r.key, r.row]))
       for (const [key, i] of repeated) note(i, { row: rows[i], column: headerIndex!.get(opts.mapping.id)! + 1, field: opts.mapping.id, message: `duplicate galaxy id "${key}" (also in row ${at.get(key)})` })
     }
-    for (const [i, ps] of [...bad.entries()].sort((a, b) => a[0] - b[0])) { out.invalidRows++; void i; ps.forEach(keep) }
-    const okGals = gals.filter((_, i) => !bad.has(i)), okRows = rows.filter((_, i) => !bad.has(i))
+    for (const [, ps] of [...invalid.entries()].sort((a, b) => a[0] - b[0])) { out.invalidRows++; ps.forEach(keep) }
+    const okGals = gals.filter((_, i) => !invalid.has(i)), okRows = rows.filter((_, i) => !invalid.has(i))
     if (!hooks.write) {
       const [{ n }] = (await tx.execute<{ n: number }>(sql`select count(*)::int as n from galaxies where project_id = ${projectId}::uuid
         and key = ${anyKey(okGals.map((g) => g.id))}`)).rows
       out.existing += n
-    } else if (out.problemCount === 0) {
+    } else if (out.problemCount === 0 && okGals.length) {
       await hooks.write(okGals, okRows)
     }
     gals = []; rows = []
