@@ -32,6 +32,10 @@ export interface Config {
   diagramWarmupMs: number
   /** staged CSV uploads older than this are closed and their files removed (0 = keep) */
   stagedIntakeHours: number
+  /** most data rows one CSV may have (refused at upload, 413) */
+  intakeMaxRows: number
+  /** CSV commits up to this many rows finish inside the request (200); larger ones run as a job (202) */
+  intakeInlineRows: number
   /** API requests per minute per key, user or address; anonymous diagnostics per address. */
   apiRateLimit: number
   anonymousDiagnosticsRateLimit: number
@@ -86,6 +90,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     largeIntakeRows: Number(env.LARGE_INTAKE_ROWS ?? 5000),
     diagramWarmupMs: Number(env.DIAGRAM_WARMUP_MS ?? 1500),
     stagedIntakeHours: Number(env.STAGED_INTAKE_HOURS ?? 24),
+    intakeMaxRows: Number(env.INTAKE_MAX_ROWS ?? 1_000_000),
+    intakeInlineRows: Number(env.INTAKE_INLINE_ROWS ?? 10_000),
     apiRateLimit: Number(env.API_RATE_LIMIT ?? 1200),
     anonymousDiagnosticsRateLimit: Number(env.DIAGNOSTICS_ANON_RATE_LIMIT ?? 600),
   }

@@ -130,7 +130,7 @@ export const intakes = pgTable('intakes', {
   id: uuid().primaryKey().defaultRandom(),
   projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
   kind: text().notNull(), // 'api' | 'csv'
-  status: text().notNull(), // 'staged' | 'committed' | 'rejected' | 'failed'
+  status: text().notNull(), // 'staged' | 'committing' | 'committed' | 'undone' | 'rejected' | 'failed'
   userId: uuid().references(() => users.id, { onDelete: 'set null' }),
   apiKeyId: uuid().references(() => apiKeys.id, { onDelete: 'set null' }),
   fileName: text(),
@@ -176,7 +176,30 @@ export const galaxies = pgTable('galaxies', {
 export const galaxyIntakes = pgTable('galaxy_intakes', {
   galaxyId: bigint({ mode: 'number' }).notNull().references(() => galaxies.id, { onDelete: 'cascade' }),
   intakeId: uuid().notNull().references(() => intakes.id, { onDelete: 'cascade' }),
-}, (t) => [primaryKey({ columns: [t.galaxyId, t.intakeId] })])
+  /** What the intake did to the galaxy: 'created' | 'replaced' | 'merged'; null before history was kept. */
+  change: text(),
+}, (t) => [primaryKey({ columns: [t.galaxyId, t.intakeId] }), index('galaxy_intakes_intake').on(t.intakeId, t.galaxyId)])
+
+/**
+ * A galaxy's record as it was before an intake replaced or merged into it: kept so that every
+ * earlier record stays retrievable and an intake can be undone.
+ */
+export const galaxyVersions = pgTable('galaxy_versions', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  galaxyId: bigint({ mode: 'number' }).notNull().references(() => galaxies.id, { onDelete: 'cascade' }),
+  /** The intake that superseded this record. */
+  intakeId: uuid().notNull().references(() => intakes.id, { onDelete: 'cascade' }),
+  /** The intake that had written it (null for records older than the history). */
+  previousIntakeId: uuid(),
+  redshift: doublePrecision(),
+  ra: doublePrecision(),
+  dec: doublePrecision(),
+  fluxUnit: doublePrecision().notNull(),
+  input: json().notNull(),
+  /** When the superseded record had been written (its `updated_at`). */
+  writtenAt: timestamp({ withTimezone: true }).notNull(),
+  replacedAt: createdAt(),
+}, (t) => [index('galaxy_versions_galaxy').on(t.galaxyId), index('galaxy_versions_intake').on(t.intakeId, t.galaxyId)])
 
 /**
  * Everything derived for a galaxy under one assumptions revision and one method version. The full
@@ -220,10 +243,20 @@ export const jobs = pgTable('jobs', {
   total: integer().notNull().default(0),
   done: integer().notNull().default(0),
   error: text(),
+  /** What the job works on (an intake job: `{ intakeId, options }`). */
+  params: jsonb(),
+  /** Keyset cursor of the last committed chunk (galaxy id): a resumed recompute continues after it. */
+  lastId: bigint({ mode: 'number' }).notNull().default(0),
+  /** Last progress of the worker holding the job's lease (the lease itself is an advisory lock). */
+  heartbeatAt: timestamp({ withTimezone: true }),
+  /** Set when a job whose worker was gone was taken up again, with how far it had come. */
+  resumedAt: timestamp({ withTimezone: true }),
+  resumeCount: integer().notNull().default(0),
+  resumedFrom: integer(),
   createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
   createdAt: createdAt(),
   finishedAt: timestamp({ withTimezone: true }),
-}, (t) => [index('jobs_project_time').on(t.projectId, t.createdAt)])
+}, (t) => [index('jobs_project_time').on(t.projectId, t.createdAt), index('jobs_unfinished').on(t.status).where(sql`status in ('queued', 'running')`)])
 
 /** Mail received by the local catcher (development and tests); site admins read it on the Outbox. */
 export const outboxMessages = pgTable('outbox_messages', {

@@ -11,9 +11,8 @@ import { HttpProblem } from '../http/problem.ts'
 import { parseRequest } from '../http/parse-request.ts'
 import { textLine } from '../../shared/schemas/text.ts'
 import { intakeService } from '../services/intake.service.ts'
-import { IntakePathSchema, IntakeSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
-import { ColumnMappingSchema, IntakeOptionsSchema } from '../../shared/schemas/intake.schema.ts'
-import { writingGalaxies } from '../services/galaxies.service.ts'
+import { GalaxyPathSchema, IntakePathSchema, IntakeSchema, JobSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
+import { ColumnMappingSchema, IntakeCountsSchema, IntakeOptionsSchema, IntakeReportSchema } from '../../shared/schemas/intake.schema.ts'
 import type { Guard } from './index.ts'
 
 /** The uploaded file's own name (multer decodes filename*= and %0A in it): stored and shown, so plain text. */
@@ -21,7 +20,8 @@ const FileNameSchema = textLine().min(1).max(255)
 const CSV_TYPES = new Set(['text/csv', 'text/plain', 'text/tab-separated-values', 'application/csv', 'application/vnd.ms-excel', 'application/octet-stream'])
 
 export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
-  const intake = intakeService(deps.db, deps.mailer, deps.config.dataDir, deps.config.appUrl, deps.config.largeIntakeRows)
+  const intake = intakeService(deps.db, deps.mailer, deps.config.dataDir, deps.config.appUrl, deps.config.largeIntakeRows,
+    { maxRows: deps.config.intakeMaxRows, inlineRows: deps.config.intakeInlineRows })
   const dir = join(deps.config.dataDir, 'uploads')
   mkdirSync(dir, { recursive: true })
   const upload = multer({
@@ -53,29 +53,60 @@ export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
   const tag = 'Intake'
   const StagedSchema = z.object({
     intake: IntakeSchema, delimiter: z.string(), headers: z.array(z.string()), previewRows: z.array(z.array(z.string())), rowCount: z.number().int(),
+    commentLines: z.number().int().meta({ description: '`#` comment lines skipped (before the header or between rows)' }),
     suggestedMapping: ColumnMappingSchema, savedMappings: z.array(z.object({ name: z.string(), mapping: z.unknown() })),
   })
   route(r, { method: 'post', path: '/projects/:projectId/intakes/csv', tag, access: 'analyst', write: true, params: ProjectPathSchema,
     summary: 'Upload a CSV (multipart field "file"): stages it and answers a preview and a suggested column mapping',
-    bodyContentType: 'multipart/form-data', responses: { 201: { description: 'staged', schema: StagedSchema }, 413: { description: 'too large' }, 415: { description: 'not a CSV' } } },
+    description: `Lines whose first non-blank character is \`#\` are comments and skipped. At most INTAKE_MAX_ROWS (default 1,000,000) data rows; a larger file answers 413.`,
+    bodyContentType: 'multipart/form-data', responses: { 201: { description: 'staged', schema: StagedSchema }, 413: { description: 'too large, or more rows than one intake takes' }, 415: { description: 'not a CSV' } } },
   (spec) => { const g = guard(spec); return (req, res, next) => g(req, res, (e?: unknown) => (e ? next(e) : receive(req, res, next))) },
   async (req, res, { params }) => {
     if (!req.file) throw new HttpProblem(422, 'Unprocessable Content', 'no file in the form', [{ path: '/file', message: 'required' }])
     res.status(201).json(await intake.stage(requireAuth(req), params.projectId, req.file))
   })
 
-  const ReportSchema = z.object({ rowsTotal: z.number().int(), rowsValid: z.number().int(), problemCount: z.number().int(),
-    problems: z.array(z.object({ row: z.number().int(), column: z.number().int().nullable(), field: z.string().nullable(), message: z.string() })) })
   route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/validate', tag, access: 'analyst', write: true, params: IntakePathSchema, body: IntakeOptionsSchema,
-    summary: 'Check every row of a staged file with a mapping (nothing is stored)', responses: { 200: { description: 'report with row and column numbers', schema: ReportSchema } } },
+    summary: 'Check every row of a staged file with a mapping, and count the IDs the project already has (nothing is stored)',
+    responses: { 200: { description: 'report with row and column numbers', schema: IntakeReportSchema } } },
   guard, async (_req, res, { params, body }) => { res.json(await intake.validate(params.projectId, params.intakeId, body)) })
 
+  const Committed = z.object({ intake: IntakeSchema, job: JobSchema }).extend(IntakeCountsSchema.shape)
   route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/commit', tag, access: 'analyst', write: true, params: IntakePathSchema, body: IntakeOptionsSchema,
-    summary: 'Store every row of a staged file in one transaction (all or nothing)',
-    responses: { 200: { description: 'committed', schema: z.object({ intake: IntakeSchema, inserted: z.number().int(), updated: z.number().int() }) }, 422: { description: 'problems; nothing stored' } } },
+    summary: 'Store every row of a staged file in one transaction (all or nothing), as an `intake` job',
+    description: 'IDs the project already has are left as they are unless `onExisting` says `replace` or `merge` (validate reports how many there are); replaced records stay retrievable and the intake can be undone. Files of up to INTAKE_INLINE_ROWS (default 10,000) rows are stored within the request (200); larger ones answer 202 with the job: poll `GET …/jobs/{jobId}`, then read the intake.',
+    responses: {
+      200: { description: 'committed', schema: Committed },
+      202: { description: 'storing in the background: follow the job', schema: z.object({ intake: IntakeSchema, job: JobSchema }) },
+      409: { description: 'not staged (already committing, committed or expired)' }, 422: { description: 'problems; nothing stored' },
+    } },
   guard, async (req, res, { params, body }) => {
-    res.json(await writingGalaxies(deps.db, params.projectId, () => intake.commit(requireAuth(req), params.projectId, params.intakeId, body)))
+    const out = await intake.commit(requireAuth(req), params.projectId, params.intakeId, body)
+    res.status(out.status).json(out.body)
   })
+
+  route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/undo', tag, access: 'analyst', write: true, params: IntakePathSchema,
+    summary: 'Undo a committed intake: restore the records it replaced, remove the galaxies it created, recompute their results',
+    description: 'One transaction: all of it or nothing. Refused with 409 when a later intake changed any of the same galaxies (undo that one first), or when the intake is not committed.',
+    responses: {
+      200: { description: 'undone', schema: z.object({ intake: IntakeSchema, restored: z.number().int(), removed: z.number().int() }) },
+      202: { description: 'an intake of more than INTAKE_INLINE_ROWS rows: undone by an `undo` job; follow it', schema: z.object({ intake: IntakeSchema, job: JobSchema }) },
+      409: { description: 'a later intake changed its galaxies, not committed, or an undo of it is running' },
+    } },
+  guard, async (req, res, { params }) => {
+    const out = await intake.undo(requireAuth(req), params.projectId, params.intakeId)
+    res.status(out.status).json(out.body)
+  })
+
+  const RecordSchema = z.object({ id: z.string(), redshift: z.number().nullable(), fluxUnit: z.number(), ra: z.number().nullable(), dec: z.number().nullable(),
+    lines: z.unknown(), ew: z.unknown().nullable(), fwhm: z.unknown().nullable() })
+  route(r, { method: 'get', path: '/projects/:projectId/galaxies/:galaxyId/versions', tag, access: 'viewer', params: GalaxyPathSchema,
+    summary: 'Earlier records of a galaxy that intakes replaced or merged into, newest first',
+    responses: { 200: { description: 'earlier records', schema: z.object({ items: z.array(z.object({
+      writtenBy: z.string().nullable().meta({ description: 'the intake that had written the record' }), writtenAt: z.string(), replacedAt: z.string(),
+      supersededBy: z.object({ intakeId: z.string(), kind: z.string(), fileName: z.string().nullable(), createdAt: z.string() }), record: RecordSchema,
+    })) }) } } },
+  guard, async (_req, res, { params }) => { res.json(await intake.versions(params.projectId, params.galaxyId)) })
 
   route(r, { method: 'get', path: '/projects/:projectId/intakes/:intakeId', tag, access: 'viewer', params: IntakePathSchema,
     summary: 'One intake with its report', responses: { 200: { description: 'intake', schema: IntakeSchema.extend({ report: z.unknown() }) } } },

@@ -1,6 +1,17 @@
 import { GalaxyInputSchema, LINE_ID_LIST, type GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 import type { ColumnMapping, IntakeOptions, IntakeProblem } from '../../shared/schemas/intake.schema.ts'
 
+/**
+ * csv-parse options for staged files. A line whose first non-blank character is `#` is a comment
+ * (survey tables open with them) wherever it stands, before the header or between rows; a `#`
+ * inside a quoted field or later in a line is data. `ltrim` lets the comment test skip leading
+ * blanks; every cell is trimmed when it is read anyway.
+ */
+export const CSV_PARSE_OPTIONS = {
+  bom: true, comment: '#', comment_no_infix: true, ltrim: true, relax_column_count: true, skip_empty_lines: true, info: true,
+  max_record_size: 1 << 20,
+} as const
+
 /** Cells that a spreadsheet would run as a formula (OWASP "CSV injection"). */
 export const FORMULA_START = /^[=+\-@\t\r]/
 
@@ -38,7 +49,8 @@ export function rowToGalaxy(record: string[], row: number, headerIndex: Map<stri
     if (!cols) continue
     const flux = number(cols.flux), error = number(cols.error), limit = opts.nonDetection === 'limit-column' ? number(cols.limit) : undefined
     if (limit !== undefined && flux === undefined) { lines[lineId] = { upperLimit: limit }; continue }
-    if (flux === undefined) { if (error !== undefined) problem(cols.flux, 'an error is given but no flux'); continue }
+    // (a flux cell that is not a number has its problem already)
+    if (flux === undefined) { if (error !== undefined && cell(cols.flux) === '') problem(cols.flux, 'an error is given but no flux'); continue }
     if (opts.nonDetection === 'negative-error' && error !== undefined && error < 0) { lines[lineId] = { upperLimit: flux }; continue }
     if (error === undefined) { problem(cols.error ?? cols.flux, `no error for ${lineId}`); continue }
     lines[lineId] = { flux, error }
@@ -49,6 +61,12 @@ export function rowToGalaxy(record: string[], row: number, headerIndex: Map<stri
     if (Object.keys(out).length) g[key] = out
   }
   if (problems.length > before) return null
+  // a row without a single line value would store a galaxy with no measurements (and, with replace,
+  // overwrite a measured one with it): a comment or a stray line read as data, never a galaxy
+  if (Object.keys(lines).length === 0) {
+    problems.push({ row, column: null, field: 'lines', message: 'no line measurement in this row (every mapped flux and limit cell is empty)' })
+    return null
+  }
   const parsed = GalaxyInputSchema.safeParse(g)
   if (parsed.success) return parsed.data
   for (const issue of parsed.error.issues) problem(columnFor(m, issue.path), issue.message)
@@ -56,7 +74,7 @@ export function rowToGalaxy(record: string[], row: number, headerIndex: Map<stri
 }
 
 /** The header that fed a schema path such as ['lines','hbeta','error']. */
-function columnFor(m: ColumnMapping, path: PropertyKey[]): string | null {
+export function columnFor(m: ColumnMapping, path: PropertyKey[]): string | null {
   const [a, b, c] = path.map(String)
   if (a === 'id') return m.id
   if (a === 'redshift' || a === 'ra' || a === 'dec') return (m[a] as string | undefined) ?? null

@@ -63,16 +63,22 @@ export const ProjectSchema = z.object({
   galaxyCount: z.number().int(), currentRevision: z.number().int(), resultsRevision: z.number().int(),
 }).meta({ id: 'Project' })
 export const IntakeSchema = z.object({
-  id: uuid, kind: z.enum(['api', 'csv']), status: z.enum(['staged', 'committed', 'rejected', 'failed']), fileName: z.string().nullable(),
+  id: uuid, kind: z.enum(['api', 'csv']), status: z.enum(['staged', 'committing', 'committed', 'undone', 'rejected', 'failed']), fileName: z.string().nullable(),
   createdAt: z.string(), finishedAt: z.string().nullable(), by: z.object({ id: uuid, name: z.string().nullable() }).nullable(),
   rowsTotal: z.number().int(), rowsAccepted: z.number().int(), rowsRejected: z.number().int(), revision: z.number().int().nullable(),
 }).meta({ id: 'Intake' })
 export const BatchResponseSchema = z.object({
   intake: IntakeSchema, inserted: z.number().int(), updated: z.number().int(), revision: z.number().int(), methodVersion: z.string(),
+  replaced: z.number().int(), merged: z.number().int(), skipped: z.number().int().meta({ description: 'IDs the project had, left as they were (onExisting=skip)' }),
 }).meta({ id: 'BatchResponse' })
 export const JobSchema = z.object({
   id: uuid, kind: z.string(), status: z.enum(['queued', 'running', 'done', 'failed']), revision: z.number().int().nullable(),
   total: z.number().int(), done: z.number().int(), error: z.string().nullable(), createdAt: z.string(), finishedAt: z.string().nullable(),
+  intakeId: uuid.nullable().meta({ description: 'the intake an `intake` job stores' }),
+  heartbeatAt: z.string().nullable().meta({ description: 'last progress of the worker' }),
+  resumedAt: z.string().nullable().meta({ description: 'when a job whose worker had gone (a crash, a restart) was taken up again' }),
+  resumeCount: z.number().int(),
+  resumedFrom: z.number().int().nullable().meta({ description: 'how far it had come when resumed (a recompute continues from there; an intake, stored all or nothing, starts again)' }),
 }).meta({ id: 'Job' })
 export const ProblemSchema = z.object({
   type: z.string(), title: z.string(), status: z.number().int(), detail: z.string().optional(),

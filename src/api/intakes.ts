@@ -1,8 +1,8 @@
 import { ApiProblem, apiUrl, csrfHeaders, http } from './http'
 import { projectPath } from './projects'
-import type { ColumnMapping, CsvUpload, Intake, ItemList, NonDetection, ValidationReport } from './types'
+import type { ColumnMapping, CommitAnswer, CsvUpload, GalaxyVersion, Intake, ItemList, Job, NonDetection, OnExisting, ValidationReport } from './types'
 
-export interface CommitOptions { mapping: ColumnMapping; fluxUnit: number; nonDetection: NonDetection; saveMappingAs?: string }
+export interface CommitOptions { mapping: ColumnMapping; fluxUnit: number; nonDetection: NonDetection; saveMappingAs?: string; onExisting?: OnExisting }
 
 /**
  * Upload a CSV with XMLHttpRequest rather than fetch: fetch gives no upload progress, and a large
@@ -36,6 +36,11 @@ export const intakesApi = {
   uploadCsv,
   validate: (projectId: string, intakeId: string, options: CommitOptions) =>
     http.post<ValidationReport>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/validate`, options),
+  /** Small files are stored within the request; larger ones answer with a running `intake` job to follow. */
   commit: (projectId: string, intakeId: string, options: CommitOptions) =>
-    http.post<{ intake: Intake }>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/commit`, options),
+    http.post<CommitAnswer>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/commit`, options),
+  undo: (projectId: string, intakeId: string) =>
+    http.post<{ intake: Intake; restored?: number; removed?: number; job?: Job }>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/undo`, {}),
+  versions: (projectId: string, galaxyId: string) =>
+    http.get<ItemList<GalaxyVersion>>(`${projectPath(projectId)}/galaxies/${encodeURIComponent(galaxyId)}/versions`),
 }

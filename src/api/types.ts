@@ -63,19 +63,27 @@ export interface Revision {
 
 export interface Job {
   id: string
-  kind: 'recompute' | 'intake'
+  kind: 'recompute' | 'intake' | 'undo'
   status: 'queued' | 'running' | 'done' | 'failed'
   total: number
   done: number
   error: string | null
   createdAt: string
   finishedAt: string | null
+  /** the intake an `intake` job stores */
+  intakeId?: string | null
+  heartbeatAt?: string | null
+  /** set when the job's worker had gone (a crash, a restart) and it was taken up again */
+  resumedAt?: string | null
+  resumeCount?: number
+  /** how far it had come: a recompute continues from there, an intake (all or nothing) starts again */
+  resumedFrom?: number | null
 }
 
 export interface Intake {
   id: string
   kind: 'api' | 'csv'
-  status: 'staged' | 'committed' | 'rejected' | 'failed'
+  status: 'staged' | 'committing' | 'committed' | 'undone' | 'rejected' | 'failed'
   fileName: string | null
   createdAt: string
   finishedAt: string | null
@@ -167,7 +175,7 @@ export interface GalaxyDetail {
   methodVersion: string
   computedAt: string
   results: GalaxyResult
-  history: { intakeId: string; kind: 'api' | 'csv'; fileName: string | null; createdAt: string; by: UserRef | null }[]
+  history: { intakeId: string; kind: 'api' | 'csv'; fileName: string | null; createdAt: string; by: UserRef | string | null; change?: 'created' | 'replaced' | 'merged' | null }[]
   revisions: { revision: number; methodVersion: string; computedAt: string }[]
 }
 
@@ -205,7 +213,32 @@ export interface CsvUpload {
 /** `field` is the file's column header, `column` its 1-based position (or a name on older servers). */
 export interface ValidationProblem { row: number; column: number | string | null; field: string | null; message: string }
 
-export interface ValidationReport { rowsTotal: number; rowsValid: number; problems: ValidationProblem[] }
+/** What an intake does with IDs the project already has. */
+export type OnExisting = 'skip' | 'replace' | 'merge'
+
+export interface ValidationReport {
+  rowsTotal: number
+  rowsValid: number
+  problems: ValidationProblem[]
+  problemCount?: number
+  /** valid rows whose galaxy ID the project already has */
+  existing?: number
+  onExisting?: OnExisting
+}
+
+export interface IntakeCounts { inserted: number; updated: number; replaced: number; merged: number; skipped: number }
+
+/** 200: stored within the request (counts); 202: a job to follow. */
+export interface CommitAnswer extends Partial<IntakeCounts> { intake: Intake; job: Job }
+
+/** A galaxy's record as it was before an intake replaced or merged into it. */
+export interface GalaxyVersion {
+  writtenBy: string | null
+  writtenAt: string
+  replacedAt: string
+  supersededBy: { intakeId: string; kind: 'api' | 'csv'; fileName: string | null; createdAt: string }
+  record: { id: string; redshift: number | null; fluxUnit: number; ra: number | null; dec: number | null; lines: Record<string, { flux?: number; error?: number; upperLimit?: number }>; ew: Record<string, number> | null; fwhm: Record<string, number> | null }
+}
 
 export interface Member { userId: string; email: string; name: string; role: Role; joinedAt: string }
 

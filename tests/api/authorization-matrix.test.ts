@@ -79,6 +79,8 @@ const TABLE: Row[] = [
   { method: 'post', path: `${P}/intakes/:intakeId/validate`, level: 'analyst', body: { mapping: { id: 'id' } } },
   { method: 'post', path: `${P}/intakes/:intakeId/commit`, level: 'analyst', body: { mapping: { id: 'nope' } } },
   { method: 'get', path: `${P}/intakes/:intakeId`, level: 'viewer' },
+  { method: 'post', path: `${P}/intakes/:intakeId/undo`, level: 'analyst', fresh: true },
+  { method: 'get', path: `${P}/galaxies/:galaxyId/versions`, level: 'viewer' },
   { method: 'get', path: `${P}/exports/galaxies.csv`, level: 'viewer' },
   { method: 'get', path: `${P}/exports/galaxies.vot`, level: 'viewer' },
   { method: 'get', path: '/admin/users', level: 'admin' },
