@@ -7,7 +7,9 @@ import type { Auth } from '../http/auth.ts'
 import { HttpProblem, conflict, notFound, type FieldError } from '../http/problem.ts'
 import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
 import { CLASS_NAMES, classCode, type ClassDiagram } from '../../shared/schemas/classes.ts'
-import { diagnoseMany, METHOD_VERSION, ScienceInputError, type GalaxyInput } from '../../shared/science.ts'
+import { METHOD_VERSION, type GalaxyResult } from '../../shared/science.ts'
+import { diagnose, diagnoseRows, inProcessCompute, type ComputeOptions, type ComputePool } from '../compute/pool.ts'
+import { overBudget, type Budgets } from '../compute/budget.ts'
 import { RESULT_COLUMN_SQL, resultRow, LIMIT_BITS } from './result-columns.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
@@ -33,15 +35,42 @@ export function checkBatchRules(gals: GalaxyInputDto[], settings: Settings, pref
   return errors
 }
 
-/** Runs the science chain, turning impossible inputs into a 422 that names the field. */
-export function computeAll(gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies') {
-  try {
-    return diagnoseMany(gals as GalaxyInput[], settings)
-  } catch (err) {
-    if (err instanceof ScienceInputError) throw new HttpProblem(422, 'Unprocessable Content', err.message, [{ path: prefix + err.path, message: err.message }])
-    if (err instanceof RangeError) throw new HttpProblem(422, 'Unprocessable Content', err.message, [{ path: '/settings', message: err.message }])
-    throw err
+// The compute threads and per-request budgets, installed by createApp (as the diagram warm-up is);
+// scripts without an app (seed, openapi) compute on their own thread.
+let computePool: ComputePool = inProcessCompute()
+let batchBudget = Number.POSITIVE_INFINITY
+const fallbackPool = computePool
+/** Installs the app's compute pool and the per-request budget of authenticated ingestion. */
+export function configureCompute(pool: ComputePool | undefined, budgets?: Budgets) {
+  computePool = pool ?? fallbackPool
+  batchBudget = budgets?.authenticated ?? Number.POSITIVE_INFINITY
+}
+const activePool = () => (computePool.closed ? fallbackPool : computePool)
+
+/**
+ * Runs the science chain on the compute threads (chunked, results in order), turning impossible
+ * inputs into a 422 that names the field. Without options it is background work: it waits its turn
+ * in the queue and never gets a 503 for a full queue.
+ */
+export async function computeAll(gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies', opts: ComputeOptions = {}): Promise<GalaxyResult[]> {
+  return diagnose(activePool(), gals, settings, { prefix, ...opts })
+}
+
+/** Result rows serialised by the compute threads (stored columns and result, without galaxy_id). */
+export class PreparedResults {
+  constructor(readonly rows: string[]) {}
+  get length() { return this.rows.length }
+  /** The recordset for `upsertResultsJson`: rows from `start`, one per id. */
+  json(ids: ReadonlyArray<number | undefined>, start: number): string {
+    const parts: string[] = new Array(ids.length)
+    for (let j = 0; j < ids.length; j++) parts[j] = `{"galaxy_id":${ids[j] ?? null},${this.rows[start + j].slice(1)}`
+    return '[' + parts.join(',') + ']'
   }
+}
+
+/** `computeAll` for storage: the threads also build and serialise the stored rows, so the event loop only joins strings. */
+export async function computeRows(gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies', opts: ComputeOptions = {}): Promise<PreparedResults> {
+  return new PreparedResults(await diagnoseRows(activePool(), gals, settings, { prefix, ...opts }))
 }
 
 const storedInput = (g: GalaxyInputDto) => ({ lines: g.lines, ...(g.ew ? { ew: g.ew } : {}), ...(g.fwhm ? { fwhm: g.fwhm } : {}) })
@@ -49,18 +78,22 @@ const storedInput = (g: GalaxyInputDto) => ({ lines: g.lines, ...(g.ew ? { ew: g
 /**
  * Results under the newest revision (new data are computed under it) and, while a recompute to it is
  * still running, also under the revision the project shows, so the new galaxies appear there too.
+ * With `budget`, a request whose galaxies × (draws + 10) under the newest assumptions exceed it gets a 422.
  */
-export async function computeForRevisions(db: Db, projectId: string, gals: GalaxyInputDto[], prefix = '/galaxies') {
+export async function computeForRevisions(db: Db, projectId: string, gals: GalaxyInputDto[], prefix = '/galaxies', opts: ComputeOptions & { budget?: number } = {}) {
   const { revision, settings } = await revisionSettings(db, projectId)
+  const { budget, ...computeOpts } = opts
+  const over = budget === undefined ? null : overBudget(gals.length, settings.monteCarlo.draws, budget, { anonymous: false, authenticatedBudget: budget, path: prefix })
+  if (over) throw new HttpProblem(422, 'Unprocessable Content', `this project's assumptions draw ${settings.monteCarlo.draws} Monte Carlo samples per galaxy: ${over.message}`, [over])
   const [p] = await db.select({ shown: projects.resultsRevision }).from(projects).where(eq(projects.id, projectId))
-  const computed = [{ revision, results: computeAll(gals, settings, prefix) }]
-  if (p.shown !== revision) computed.push({ revision: p.shown, results: computeAll(gals, (await revisionSettings(db, projectId, p.shown)).settings, prefix) })
+  const computed = [{ revision, results: await computeRows(gals, settings, prefix, computeOpts) }]
+  if (p.shown !== revision) computed.push({ revision: p.shown, results: await computeRows(gals, (await revisionSettings(db, projectId, p.shown)).settings, prefix, computeOpts) })
   return { revision, computed }
 }
 
 /** Writes galaxies and their results for the given revisions inside the caller's transaction. */
 export async function writeGalaxies(tx: Executor, projectId: string, intakeId: string, gals: GalaxyInputDto[],
-  computed: Array<{ revision: number; results: unknown[] }>) {
+  computed: Array<{ revision: number; results: unknown[] | PreparedResults }>) {
   let inserted = 0, updated = 0
   const CHUNK = 5000
   for (let start = 0; start < gals.length; start += CHUNK) {
@@ -78,8 +111,9 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
     await tx.execute(sql`insert into galaxy_intakes (galaxy_id, intake_id)
       select unnest(${'{' + [...idByKey.values()].join(',') + '}'}::bigint[]), ${intakeId}::uuid on conflict do nothing`)
     for (const c of computed) {
-      const resultRows = part.map((g, j) => resultRow(idByKey.get(g.id), g, c.results[start + j]))
-      await upsertResults(tx, projectId, c.revision, resultRows)
+      const res = c.results
+      if (res instanceof PreparedResults) await upsertResultsJson(tx, projectId, c.revision, res.json(part.map((g) => idByKey.get(g.id)), start))
+      else await upsertResults(tx, projectId, c.revision, part.map((g, j) => resultRow(idByKey.get(g.id), g, res[start + j])))
     }
   }
   return { inserted, updated }
@@ -92,10 +126,15 @@ const RESULT_T_LIST = sql.raw(RESULT_COLS.map((c) => `t.${c}`).join(', '))
 const RESULT_UPDATE = sql.raw(RESULT_COLS.map((c) => `${c} = excluded.${c}`).join(', '))
 
 export async function upsertResults(tx: Executor, projectId: string, revision: number, rows: Array<Record<string, unknown>>) {
+  await upsertResultsJson(tx, projectId, revision, JSON.stringify(rows))
+}
+
+/** `upsertResults` for rows already serialised as a JSON array (see `PreparedResults`). */
+export async function upsertResultsJson(tx: Executor, projectId: string, revision: number, rowsJson: string) {
   await tx.execute(sql`
     insert into results (galaxy_id, project_id, revision, method_version, computed_at, ${RESULT_LIST}, result)
     select t.galaxy_id, ${projectId}::uuid, ${revision}, ${METHOD_VERSION}, now(), ${RESULT_T_LIST}, t.result
-    from json_to_recordset(${JSON.stringify(rows)}::json) as t(galaxy_id bigint, ${RESULT_RECORD}, result json)
+    from json_to_recordset(${rowsJson}::json) as t(galaxy_id bigint, ${RESULT_RECORD}, result json)
     on conflict (galaxy_id, revision) do update set method_version = excluded.method_version, computed_at = now(),
       ${RESULT_UPDATE}, result = excluded.result`)
   await tx.execute(sql`update projects set data_version = data_version + 1 where id = ${projectId}::uuid`)
@@ -354,7 +393,7 @@ export async function ingestBatch(db: Db, auth: Auth, projectId: string, gals: G
   const { settings } = await revisionSettings(db, projectId)
   const errors = checkBatchRules(gals, settings)
   if (errors.length) throw new HttpProblem(422, 'Unprocessable Content', `${errors.length} problem(s) in the batch; nothing was stored`, errors)
-  const { revision, computed } = await computeForRevisions(db, projectId, gals)
+  const { revision, computed } = await computeForRevisions(db, projectId, gals, '/galaxies', { interactive: true, budget: batchBudget })
   try {
     return await db.transaction(async (tx) => {
       const [intake] = await tx.insert(intakes).values({

@@ -66,7 +66,7 @@ export async function runRecompute(db: Db, jobId: string) {
       const inputs: GalaxyInputDto[] = rows.map((r) => ({
         id: r.key, ...(r.redshift !== null ? { redshift: r.redshift } : {}), fluxUnit: r.fluxUnit, ...(r.input as Pick<GalaxyInputDto, 'lines' | 'ew' | 'fwhm'>),
       }))
-      const results = computeAll(inputs, settings)
+      const results = await computeAll(inputs, settings)
       await upsertResults(db, job.projectId, job.revision!, rows.map((r, i) => resultRow(r.id, inputs[i], results[i])))
       done += rows.length
       lastId = rows[rows.length - 1].id

@@ -8,11 +8,13 @@ import { smtpMailer } from '../../server/lib/mailer.ts'
 import { outboxMessages } from '../../server/db/schema.ts'
 import { freshDatabaseUrl } from './db.ts'
 import { startJobQueue, startRecomputeWorker } from '../../server/services/jobs.service.ts'
+import { createComputePool, type ComputePool } from '../../server/compute/pool.ts'
 
 export interface TestApp {
   app: ReturnType<typeof createApp>
   db: Db
   databaseUrl: string
+  compute: ComputePool
   mails: () => Promise<Array<typeof outboxMessages.$inferSelect>>
   close: () => Promise<void>
 }
@@ -26,11 +28,13 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { job
   const config = loadConfig({ ...process.env, JWT_SECRET: 'test-secret-not-for-production', APP_URL: 'http://127.0.0.1:8080', AUTH_RATE_LIMIT: '1000', DIAGRAM_WARMUP_MS: '0', ...env })
   const jobs = opts.jobs ? await startJobQueue(databaseUrl) : undefined
   if (jobs) await startRecomputeWorker(jobs.boss, db)
-  const app = createApp({ db, config, mailer, jobs: jobs?.queue })
+  // the runtime's worker threads, so the tests exercise the same path as the server
+  const compute = createComputePool(config)
+  const app = createApp({ db, config, mailer, jobs: jobs?.queue, compute })
   return {
-    app, db, databaseUrl,
+    app, db, databaseUrl, compute,
     mails: () => db.select().from(outboxMessages).orderBy(outboxMessages.id),
-    close: async () => { await jobs?.queue.stop(); mailer.close(); await catcher.close(); await db.$client.end() },
+    close: async () => { await jobs?.queue.stop(); await compute.close(); mailer.close(); await catcher.close(); await db.$client.end() },
   }
 }
 
