@@ -25,6 +25,8 @@ export interface ComputeOptions {
 export interface ComputePool {
   readonly threads: number
   readonly closed: boolean
+  /** chunks waiting for a thread */
+  readonly queued: number
   /** Runs the science chain over `galaxies` in chunks; one output per chunk, in order. */
   run(mode: OutputMode, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<TaskOutput[]>
   close(): Promise<void>
@@ -115,6 +117,7 @@ export function createComputePool(s: ComputeSettings): ComputePool {
   return {
     threads,
     get closed() { return closed },
+    get queued() { return piscina.queueSize },
     run: runner(threads, exec, () => piscina.queueSize, s),
     async close() { closed = true; await piscina.destroy() },
   }
@@ -123,7 +126,7 @@ export function createComputePool(s: ComputeSettings): ComputePool {
 /** The same work on the calling thread: for scripts (seed, openapi) and as the reference in tests. */
 export function inProcessCompute(s: ComputeSettings = { computeThreads: 1, computeQueue: Number.POSITIVE_INFINITY, computeTimeoutMs: 0 }): ComputePool {
   const exec: Exec = async (task) => diagnoseTask(task)
-  return { threads: 1, closed: false, run: runner(1, exec, () => 0, s), async close() {} }
+  return { threads: 1, closed: false, queued: 0, run: runner(1, exec, () => 0, s), async close() {} }
 }
 
 /** The results as objects, in order. */
