@@ -5,6 +5,7 @@ import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schem
 import type { GalaxyResult } from '../../shared/science.ts'
 import { diagnoseTask, isFailure, type DiagnoseTask, type OutputMode, type TaskFailure, type TaskOutput } from './diagnose.task.ts'
 import { GALAXY_COST } from './budget.ts'
+import { encodeDiagramTask, type DiagramTask } from './diagram.task.ts'
 
 /** The pool's part of the configuration (server/config.ts). */
 export type ComputeSettings = Pick<Config, 'computeThreads' | 'computeQueue' | 'computeTimeoutMs'>
@@ -29,6 +30,8 @@ export interface ComputePool {
   readonly queued: number
   /** Runs the science chain over `galaxies` in chunks; one output per chunk, in order. */
   run(mode: OutputMode, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<TaskOutput[]>
+  /** The binary columns of a diagram document (its JSON as UTF-8); background work. */
+  encodeDiagram(json: Uint8Array): Promise<Uint8Array>
   close(): Promise<void>
 }
 
@@ -39,7 +42,7 @@ export interface ComputePool {
  */
 export const CHUNK_UNITS = 50_000
 /** Copying a chunk's galaxies to a thread and its answer back runs on the event loop: ≈ 10 ms per 1,000 galaxies. */
-export const CHUNK_GALAXIES = 2000
+export const CHUNK_GALAXIES = 1000
 export function chunkSize(galaxies: number, draws: number, threads: number) {
   const byCost = Math.floor(CHUNK_UNITS / (Math.max(0, draws) + GALAXY_COST))
   return Math.max(1, Math.min(byCost, CHUNK_GALAXIES, Math.ceil(galaxies / threads)))
@@ -114,11 +117,13 @@ export function createComputePool(s: ComputeSettings): ComputePool {
   })
   let closed = false
   const exec: Exec = (task, signal) => piscina.run(task, { signal })
+  const timed = Number.isFinite(s.computeTimeoutMs) && s.computeTimeoutMs > 0
   return {
     threads,
     get closed() { return closed },
     get queued() { return piscina.queueSize },
     run: runner(threads, exec, () => piscina.queueSize, s),
+    encodeDiagram: (json) => piscina.run({ kind: 'diagram', json } satisfies DiagramTask, { signal: timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined }),
     async close() { closed = true; await piscina.destroy() },
   }
 }
@@ -126,7 +131,11 @@ export function createComputePool(s: ComputeSettings): ComputePool {
 /** The same work on the calling thread: for scripts (seed, openapi) and as the reference in tests. */
 export function inProcessCompute(s: ComputeSettings = { computeThreads: 1, computeQueue: Number.POSITIVE_INFINITY, computeTimeoutMs: 0 }): ComputePool {
   const exec: Exec = async (task) => diagnoseTask(task)
-  return { threads: 1, closed: false, queued: 0, run: runner(1, exec, () => 0, s), async close() {} }
+  return {
+    threads: 1, closed: false, queued: 0, run: runner(1, exec, () => 0, s),
+    encodeDiagram: async (json) => encodeDiagramTask({ kind: 'diagram', json }),
+    async close() {},
+  }
 }
 
 /** The results as objects, in order. */

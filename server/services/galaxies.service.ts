@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto'
-import { gzipSync } from 'node:zlib'
+import { gzip, gzipSync } from 'node:zlib'
+import { promisify } from 'node:util'
 import { and, eq, sql, type SQL } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { galaxies, galaxyIntakes, intakes, projects, results, users } from '../db/schema.ts'
@@ -14,6 +15,8 @@ import { RESULT_COLUMN_SQL, resultRow, LIMIT_BITS } from './result-columns.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
 import { encodeDiagramColumns, typedColumns, type DiagramColumnsJson } from '../../shared/diagram-columns.ts'
+
+const gzipAsync = promisify(gzip)
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 type Executor = Db | Tx
@@ -374,7 +377,12 @@ export function galaxiesService(db: Db) {
               from galaxies g join results r on r.galaxy_id = g.id where ${where} order by g.id) s`)
       const body = Buffer.from(res.rows[0].doc.slice(0, -1) + `,"classNames":${JSON.stringify(CLASS_NAMES)}}`)
       // encoded and hashed once: repeated requests then cost a memory copy, not a query and a hash
-      const doc = { body, etag: `"d${createHash('sha1').update(body).digest('base64url')}"` }
+      const doc: DiagramDocument = { body, etag: `"d${createHash('sha1').update(body).digest('base64url')}"` }
+      // every form made off the event loop: the binary columns on a compute thread, gzip on libuv's
+      const [binary, gzipped] = await Promise.all([activePool().encodeDiagram(body), gzipAsync(body, { level: 6 })])
+      doc.binary = Buffer.from(binary.buffer, binary.byteOffset, binary.byteLength)
+      doc.gzipped = gzipped
+      doc.binaryGzipped = await gzipAsync(doc.binary, { level: 6 })
       diagramCache.set(cacheKey, doc)
       while (diagramCache.size > DIAGRAM_CACHE_ENTRIES) diagramCache.delete(diagramCache.keys().next().value!)
       return doc
