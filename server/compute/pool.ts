@@ -110,6 +110,9 @@ export function createComputePool(s: ComputeSettings): ComputePool {
     minThreads: threads, maxThreads: threads,
     // admission is decided per request in `runner`; the pool itself never refuses a chunk
     maxQueue: Number.POSITIVE_INFINITY,
+    // first come, first served: by default a chunk that finds every thread busy goes back to the
+    // tail of the queue, and under steady load some requests then waited 10 s and more (bench:liveness)
+    stricterFIFO: true,
     // workers register tsx themselves; the parent's loader flags would load it twice
     execArgv: [],
     // on a busy machine the kernel serves the event loop (health, reads) before the compute threads
