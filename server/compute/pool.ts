@@ -116,23 +116,27 @@ export function createComputePool(s: ComputeSettings): ComputePool {
   // Our own first-come-first-served queue: piscina keeps abortable tasks in a queue that, under steady
   // load, serves them out of order (bench:liveness saw p50 5 ms beside p99 1–10 s), so a chunk goes to
   // piscina only when a thread is free.
-  const waiting: Array<{ task: object; signal?: AbortSignal; ok: (v: unknown) => void; fail: (e: unknown) => void }> = []
+  interface Job { task: object; signal?: AbortSignal; ok: (v: unknown) => void; fail: (e: unknown) => void; dequeued: () => void }
+  const waiting: Job[] = []
   let running = 0
   const pump = () => {
     while (running < threads && waiting.length > 0) {
       const job = waiting.shift()!
+      job.dequeued()
       if (job.signal?.aborted) { job.fail(job.signal.reason); continue }
       running++
       piscina.run(job.task, { signal: job.signal }).then(job.ok, job.fail).finally(() => { running--; pump() })
     }
   }
   const submit = <T>(task: object, signal?: AbortSignal) => new Promise<T>((ok, fail) => {
-    const job = { task, signal, ok: ok as (v: unknown) => void, fail }
-    waiting.push(job)
-    signal?.addEventListener('abort', () => {
+    // a request's deadline is shared by all its chunks: the listener goes when the chunk leaves the queue
+    const onAbort = () => {
       const i = waiting.indexOf(job)
-      if (i >= 0) { waiting.splice(i, 1); fail(signal.reason) }
-    }, { once: true })
+      if (i >= 0) { waiting.splice(i, 1); job.dequeued(); fail(signal!.reason) }
+    }
+    const job: Job = { task, signal, ok: ok as (v: unknown) => void, fail, dequeued: () => signal?.removeEventListener('abort', onAbort) }
+    signal?.addEventListener('abort', onAbort)
+    waiting.push(job)
     pump()
   })
   let closed = false
