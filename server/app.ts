@@ -11,7 +11,8 @@ import { logger } from './lib/logger.ts'
 import { buildRoutes } from './routes/index.ts'
 import type { Mailer } from './lib/mailer.ts'
 import type { JobQueue } from './services/jobs.service.ts'
-import { configureDiagramWarmup } from './services/galaxies.service.ts'
+import { configureCompute, configureDiagramWarmup } from './services/galaxies.service.ts'
+import type { ComputePool } from './compute/pool.ts'
 
 export interface AppDeps {
   db: Db
@@ -19,12 +20,15 @@ export interface AppDeps {
   mailer: Mailer
   /** Background queue (pg-boss); without it recomputes run in this process. */
   jobs?: JobQueue
+  /** Worker threads for the science (server/compute/); without it the science runs on the event loop. */
+  compute?: ComputePool
   /** Serve the built client from dist/ (off in API tests). */
   serveClient?: boolean
 }
 
 export function createApp(deps: AppDeps) {
   configureDiagramWarmup(deps.config.diagramWarmupMs)
+  configureCompute(deps.compute, { authenticated: deps.config.computeBudget, anonymous: deps.config.anonymousComputeBudget })
   const app = express()
   app.disable('x-powered-by')
   // only a configured proxy may say who the client is (X-Forwarded-For) and that it used TLS

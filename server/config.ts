@@ -1,7 +1,9 @@
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
 import { randomBytes } from 'node:crypto'
+import { availableParallelism } from 'node:os'
 import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
+import { DEFAULT_ANON_COMPUTE_BUDGET, DEFAULT_COMPUTE_BUDGET } from './compute/budget.ts'
 
 export const PROJECT_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '..')
 
@@ -39,6 +41,23 @@ export interface Config {
   /** API requests per minute per key, user or address; anonymous diagnostics per address. */
   apiRateLimit: number
   anonymousDiagnosticsRateLimit: number
+  /** compute worker threads (default: cores − 1, at least 1) */
+  computeThreads: number
+  /** chunks waiting for a thread before requests are refused with 503 */
+  computeQueue: number
+  /** a request's computation (or a background chunk) running longer than this is stopped */
+  computeTimeoutMs: number
+  /** per-request compute units, galaxies × (draws + 10): with credentials, and without */
+  computeBudget: number
+  anonymousComputeBudget: number
+}
+
+function positiveInteger(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
+  const raw = env[name]
+  if (raw === undefined || raw === '') return fallback
+  const v = Number(raw)
+  if (!Number.isInteger(v) || v < 1) throw new Error(`${name} must be a positive integer, got ${raw}`)
+  return v
 }
 
 function readOrCreateSecret(dataDir: string): string {
@@ -94,5 +113,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     intakeInlineRows: Number(env.INTAKE_INLINE_ROWS ?? 10_000),
     apiRateLimit: Number(env.API_RATE_LIMIT ?? 1200),
     anonymousDiagnosticsRateLimit: Number(env.DIAGNOSTICS_ANON_RATE_LIMIT ?? 600),
+    computeThreads: positiveInteger(env, 'COMPUTE_THREADS', Math.max(1, availableParallelism() - 1)),
+    computeQueue: positiveInteger(env, 'COMPUTE_QUEUE', 256),
+    computeTimeoutMs: positiveInteger(env, 'COMPUTE_TIMEOUT_S', 60) * 1000,
+    computeBudget: positiveInteger(env, 'COMPUTE_BUDGET', DEFAULT_COMPUTE_BUDGET),
+    anonymousComputeBudget: positiveInteger(env, 'COMPUTE_ANON_BUDGET', DEFAULT_ANON_COMPUTE_BUDGET),
   }
 }

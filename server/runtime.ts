@@ -8,6 +8,7 @@ import { startEmbeddedPostgres, portIsFree, type EmbeddedPostgres } from './db/e
 import { startMailCatcher } from './lib/mail-catcher.ts'
 import { smtpMailer, type Mailer } from './lib/mailer.ts'
 import { createApp } from './app.ts'
+import { createComputePool } from './compute/pool.ts'
 import { logger } from './lib/logger.ts'
 import { startJobQueue, startRecomputeWorker } from './services/jobs.service.ts'
 import { expireStagedIntakes } from './services/intake.service.ts'
@@ -98,7 +99,8 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
   const sweeper = setInterval(sweep, 60 * 60 * 1000)
   sweeper.unref()
 
-  const app = createApp({ db, config, mailer, jobs: jobs.queue, serveClient: opts.serveClient })
+  const compute = createComputePool(config)
+  const app = createApp({ db, config, mailer, jobs: jobs.queue, compute, serveClient: opts.serveClient })
   const server = await new Promise<Server>((ok, fail) => {
     const s = app.listen(config.port, config.host, () => ok(s))
     s.once('error', (err: NodeJS.ErrnoException) => fail(err.code === 'EADDRINUSE'
@@ -115,6 +117,7 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
     await jobs.queue.stop().catch(() => {})
     // let queued mail reach the relay (or the catcher, which closes next), but never hang the stop
     await Promise.race([mailer.idle?.(), new Promise((ok) => setTimeout(ok, 5000).unref())])
+    await compute.close()
     mailer.close()
     await catcher?.close()
     await db.$client.end().catch(() => {})

@@ -18,7 +18,7 @@ export async function seedDemo(db: Db, log: (m: string) => void = () => {}) {
   const hashes = await Promise.all(DEMO_ACCOUNTS.map((a) => bcrypt.hash(a.password, BCRYPT_COST)))
   const galaxies = generateLanternSurvey().map(({ population: _p, ...g }) => g)
   const settings = SettingsSchema.parse({})
-  const results = computeAll(galaxies, settings)
+  const results = await computeAll(galaxies, settings)
   await db.transaction(async (tx) => {
     await tx.execute(sql`lock table seed_runs in exclusive mode`)
     const [again] = await tx.select().from(seedRuns).where(eq(seedRuns.name, 'lantern-demo'))

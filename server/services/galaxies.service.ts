@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto'
-import { gzipSync } from 'node:zlib'
+import { gzip, gzipSync } from 'node:zlib'
+import { promisify } from 'node:util'
 import { and, eq, sql, type SQL } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { galaxies, galaxyIntakes, intakes, projects, results, users } from '../db/schema.ts'
@@ -9,13 +10,17 @@ import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schem
 import type { IntakeCounts, OnExisting } from '../../shared/schemas/intake.schema.ts'
 import { mergeGalaxy, type StoredGalaxy } from '../../shared/galaxy-merge.ts'
 import { CLASS_NAMES, classCode, type ClassDiagram } from '../../shared/schemas/classes.ts'
-import { diagnoseMany, METHOD_VERSION, ScienceInputError, type GalaxyInput } from '../../shared/science.ts'
+import { METHOD_VERSION, type GalaxyResult } from '../../shared/science.ts'
+import { diagnose, diagnoseRows, inProcessCompute, type ComputeOptions, type ComputePool } from '../compute/pool.ts'
+import { overBudget, type Budgets } from '../compute/budget.ts'
 import { RESULT_COLUMN_SQL, resultRow, LIMIT_BITS } from './result-columns.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
 import { encodeDiagramColumns, typedColumns, type DiagramColumnsJson } from '../../shared/diagram-columns.ts'
 import { isWellFormed } from '../../shared/schemas/text.ts'
 import { z } from 'zod'
+
+const gzipAsync = promisify(gzip)
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 type Executor = Db | Tx
@@ -50,15 +55,42 @@ export function checkBatchRules(gals: GalaxyInputDto[], settings: Settings, pref
     .sort((a, b) => Number(a.path.split('/')[prefix.split('/').length]) - Number(b.path.split('/')[prefix.split('/').length]))
 }
 
-/** Runs the science chain, turning impossible inputs into a 422 that names the field. */
-export function computeAll(gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies') {
-  try {
-    return diagnoseMany(gals as GalaxyInput[], settings)
-  } catch (err) {
-    if (err instanceof ScienceInputError) throw new HttpProblem(422, 'Unprocessable Content', err.message, [{ path: prefix + err.path, message: err.message }])
-    if (err instanceof RangeError) throw new HttpProblem(422, 'Unprocessable Content', err.message, [{ path: '/settings', message: err.message }])
-    throw err
+// The compute threads and per-request budgets, installed by createApp (as the diagram warm-up is);
+// scripts without an app (seed, openapi) compute on their own thread.
+let computePool: ComputePool = inProcessCompute()
+let batchBudget = Number.POSITIVE_INFINITY
+const fallbackPool = computePool
+/** Installs the app's compute pool and the per-request budget of authenticated ingestion. */
+export function configureCompute(pool: ComputePool | undefined, budgets?: Budgets) {
+  computePool = pool ?? fallbackPool
+  batchBudget = budgets?.authenticated ?? Number.POSITIVE_INFINITY
+}
+const activePool = () => (computePool.closed ? fallbackPool : computePool)
+
+/**
+ * Runs the science chain on the compute threads (chunked, results in order), turning impossible
+ * inputs into a 422 that names the field. Without options it is background work: it waits its turn
+ * in the queue and never gets a 503 for a full queue.
+ */
+export async function computeAll(gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies', opts: ComputeOptions = {}): Promise<GalaxyResult[]> {
+  return diagnose(activePool(), gals, settings, { prefix, ...opts })
+}
+
+/** Result rows serialised by the compute threads (stored columns and result, without galaxy_id). */
+export class PreparedResults {
+  constructor(readonly rows: string[]) {}
+  get length() { return this.rows.length }
+  /** The recordset for `upsertResultsJson`: rows from `start`, one per id. */
+  json(ids: ReadonlyArray<number | undefined>, start: number): string {
+    const parts: string[] = []
+    for (let j = 0; j < ids.length; j++) if (ids[j] !== undefined) parts.push(`{"galaxy_id":${ids[j]},${this.rows[start + j].slice(1)}`)
+    return '[' + parts.join(',') + ']'
   }
+}
+
+/** `computeAll` for storage: the threads also build and serialise the stored rows, so the event loop only joins strings. */
+export async function computeRows(gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies', opts: ComputeOptions = {}): Promise<PreparedResults> {
+  return new PreparedResults(await diagnoseRows(activePool(), gals, settings, { prefix, ...opts }))
 }
 
 const storedInput = (g: GalaxyInputDto) => ({ lines: g.lines, ...(g.ew ? { ew: g.ew } : {}), ...(g.fwhm ? { fwhm: g.fwhm } : {}) })
@@ -76,17 +108,6 @@ export async function revisionsToCompute(db: Pick<Db, 'select'>, projectId: stri
   const out = [current]
   if (p.shown !== current.revision) out.push(await revisionSettings(db, projectId, p.shown))
   return out
-}
-
-/**
- * Results under the newest revision and, while a recompute to it is still running, also under the
- * revision the project shows (see `revisionsToCompute`).
- */
-export async function computeForRevisions(db: Db, projectId: string, gals: GalaxyInputDto[], prefix = '/galaxies') {
-  const plans = await revisionsToCompute(db, projectId)
-  const computed: Array<{ revision: number; results: unknown[] }> = []
-  for (const p of plans) computed.push({ revision: p.revision, results: await computeAll(gals, p.settings, prefix) })
-  return { revision: plans[0].revision, computed }
 }
 
 /**
@@ -113,7 +134,7 @@ export interface WriteOptions {
  * request between the two statements answers 409 rather than being overwritten without a copy.
  */
 export async function writeGalaxies(tx: Executor, projectId: string, intakeId: string, gals: GalaxyInputDto[],
-  computed: Array<{ revision: number; results: unknown[] }>, opts: WriteOptions = {}) {
+  computed: Array<{ revision: number; results: unknown[] | PreparedResults }>, opts: WriteOptions = {}) {
   const onExisting = opts.onExisting ?? 'replace'
   let inserted = 0, updated = 0, skipped = 0
   const CHUNK = 5000
@@ -161,9 +182,16 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
       select t.id, ${intakeId}::uuid, t.change from json_to_recordset(${JSON.stringify(links)}::json) as t(id bigint, change text)
       on conflict do nothing`)
     for (const c of computed) {
-      const resultRows: Array<Record<string, unknown>> = []
-      part.forEach((g, j) => { const id = idByKey.get(g.id); if (id !== undefined) resultRows.push(resultRow(id, g, c.results[start + j])) })
-      if (resultRows.length) await upsertResults(tx, projectId, c.revision, resultRows, opts.bumpVersion ?? true)
+      const res = c.results
+      if (res instanceof PreparedResults) {
+        // skipped IDs have no row here: json() leaves them out
+        const json = res.json(part.map((g) => idByKey.get(g.id)), start)
+        if (json !== '[]') await upsertResultsJson(tx, projectId, c.revision, json, opts.bumpVersion ?? true)
+      } else {
+        const resultRows: Array<Record<string, unknown>> = []
+        part.forEach((g, j) => { const id = idByKey.get(g.id); if (id !== undefined) resultRows.push(resultRow(id, g, res[start + j])) })
+        if (resultRows.length) await upsertResults(tx, projectId, c.revision, resultRows, opts.bumpVersion ?? true)
+      }
     }
   }
   return { inserted, updated, skipped }
@@ -185,6 +213,8 @@ export interface IntakeChunkContext {
   /** JSON Pointer of the i-th galaxy of the chunk in the request (e.g. `/galaxies/3`, `/rows/17`). */
   where: (i: number) => string
   bumpVersion?: boolean
+  /** a request waiting for its answer: a full compute queue or the time budget answers 503 */
+  interactive?: boolean
 }
 
 /**
@@ -201,8 +231,8 @@ export async function writeIntakeChunk(tx: Executor, ctx: IntakeChunkContext, ga
     write.push(old && ctx.onExisting === 'merge' ? mergeGalaxy(old, g) : g)
     at.push(i)
   })
-  const computed: Array<{ revision: number; results: unknown[] }> = []
-  for (const r of ctx.revisions) computed.push({ revision: r.revision, results: await computeAt(write, r.settings, (i) => ctx.where(at[i])) })
+  const computed: Array<{ revision: number; results: PreparedResults }> = []
+  for (const r of ctx.revisions) computed.push({ revision: r.revision, results: await computeAt(write, r.settings, (i) => ctx.where(at[i]), ctx.interactive) })
   const counts = await writeGalaxies(tx, ctx.projectId, ctx.intakeId, write, computed, { onExisting: ctx.onExisting, bumpVersion: ctx.bumpVersion })
   return {
     inserted: counts.inserted, updated: counts.updated, skipped: skipped + counts.skipped,
@@ -210,10 +240,10 @@ export async function writeIntakeChunk(tx: Executor, ctx: IntakeChunkContext, ga
   }
 }
 
-/** `computeAll` whose 422 names the galaxy where the caller's request has it. */
-async function computeAt(gals: GalaxyInputDto[], settings: Settings, where: (i: number) => string) {
+/** `computeRows` whose 422 names the galaxy where the caller's request has it. */
+async function computeAt(gals: GalaxyInputDto[], settings: Settings, where: (i: number) => string, interactive = false) {
   try {
-    return await computeAll(gals, settings, '')
+    return await computeRows(gals, settings, '', { interactive })
   } catch (err) {
     if (err instanceof HttpProblem && err.errors) {
       err.errors = err.errors.map((e) => {
@@ -232,10 +262,15 @@ const RESULT_T_LIST = sql.raw(RESULT_COLS.map((c) => `t.${c}`).join(', '))
 const RESULT_UPDATE = sql.raw(RESULT_COLS.map((c) => `${c} = excluded.${c}`).join(', '))
 
 export async function upsertResults(tx: Executor, projectId: string, revision: number, rows: Array<Record<string, unknown>>, bumpVersion = true) {
+  await upsertResultsJson(tx, projectId, revision, JSON.stringify(rows), bumpVersion)
+}
+
+/** `upsertResults` for rows already serialised as a JSON array (see `PreparedResults`). */
+export async function upsertResultsJson(tx: Executor, projectId: string, revision: number, rowsJson: string, bumpVersion = true) {
   await tx.execute(sql`
     insert into results (galaxy_id, project_id, revision, method_version, computed_at, ${RESULT_LIST}, result)
     select t.galaxy_id, ${projectId}::uuid, ${revision}, ${METHOD_VERSION}, now(), ${RESULT_T_LIST}, t.result
-    from json_to_recordset(${JSON.stringify(rows)}::json) as t(galaxy_id bigint, ${RESULT_RECORD}, result json)
+    from json_to_recordset(${rowsJson}::json) as t(galaxy_id bigint, ${RESULT_RECORD}, result json)
     on conflict (galaxy_id, revision) do update set method_version = excluded.method_version, computed_at = now(),
       ${RESULT_UPDATE}, result = excluded.result`)
   if (bumpVersion) await bumpDataVersion(tx, projectId)
@@ -490,7 +525,12 @@ export function galaxiesService(db: Db) {
               from galaxies g join results r on r.galaxy_id = g.id where ${where} order by g.id) s`)
       const body = Buffer.from(res.rows[0].doc.slice(0, -1) + `,"classNames":${JSON.stringify(CLASS_NAMES)}}`)
       // encoded and hashed once: repeated requests then cost a memory copy, not a query and a hash
-      const doc = { body, etag: `"d${createHash('sha1').update(body).digest('base64url')}"` }
+      const doc: DiagramDocument = { body, etag: `"d${createHash('sha1').update(body).digest('base64url')}"` }
+      // every form made off the event loop: the binary columns on a compute thread, gzip on libuv's
+      const [binary, gzipped] = await Promise.all([activePool().encodeDiagram(body), gzipAsync(body, { level: 6 })])
+      doc.binary = Buffer.from(binary.buffer, binary.byteOffset, binary.byteLength)
+      doc.gzipped = gzipped
+      doc.binaryGzipped = await gzipAsync(doc.binary, { level: 6 })
       diagramCache.set(cacheKey, doc)
       while (diagramCache.size > DIAGRAM_CACHE_ENTRIES) diagramCache.delete(diagramCache.keys().next().value!)
       return doc
@@ -514,6 +554,9 @@ export async function ingestBatch(db: Db, auth: Auth, projectId: string, gals: G
   const { settings } = await revisionSettings(db, projectId)
   const errors = checkBatchRules(gals, settings)
   if (errors.length) throw new HttpProblem(422, 'Unprocessable Content', `${errors.length} problem(s) in the batch; nothing was stored`, errors)
+  const draws = settings.monteCarlo.draws
+  const over = overBudget(gals.length, draws, batchBudget, { anonymous: false, authenticatedBudget: batchBudget, path: '/galaxies' })
+  if (over) throw new HttpProblem(422, 'Unprocessable Content', `this project's assumptions draw ${draws} Monte Carlo samples per galaxy: ${over.message}`, [over])
   try {
     return await db.transaction(async (tx) => {
       const revisions = await revisionsToCompute(tx, projectId)
@@ -523,7 +566,7 @@ export async function ingestBatch(db: Db, auth: Auth, projectId: string, gals: G
         rowsTotal: gals.length, rowsAccepted: gals.length, rowsRejected: 0, revision,
         idempotencyKey: idempotencyKey ?? null, requestHash: hash, finishedAt: new Date(),
       }).returning()
-      const counts = await writeIntakeChunk(tx, { projectId, intakeId: intake.id, onExisting, revisions, where: (i) => `/galaxies/${i}` }, gals)
+      const counts = await writeIntakeChunk(tx, { projectId, intakeId: intake.id, onExisting, revisions, where: (i) => `/galaxies/${i}`, interactive: true }, gals)
       const body = { intake: intakeDto(intake, { id: auth.user.id, name: auth.user.name }), ...counts, revision, methodVersion: METHOD_VERSION }
       await tx.update(intakes).set({ response: body, report: { ...counts, onExisting } }).where(eq(intakes.id, intake.id))
       return { replay: false, body }

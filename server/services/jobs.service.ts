@@ -8,8 +8,7 @@ import { galaxies, jobs, projects } from '../db/schema.ts'
 import { notFound } from '../http/problem.ts'
 import { logger } from '../lib/logger.ts'
 import { revisionSettings } from './projects.service.ts'
-import { computeAll, upsertResults, warmDiagramSoon } from './galaxies.service.ts'
-import { resultRow } from './result-columns.ts'
+import { computeRows, upsertResultsJson, warmDiagramSoon } from './galaxies.service.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 
 export const RECOMPUTE_QUEUE = 'recompute'
@@ -254,11 +253,12 @@ async function recompute(lease: JobLease, job: JobRow, db: Db) {
     const inputs: GalaxyInputDto[] = rows.map((r) => ({
       id: r.key, ...(r.redshift !== null ? { redshift: r.redshift } : {}), fluxUnit: r.fluxUnit, ...(r.input as Pick<GalaxyInputDto, 'lines' | 'ew' | 'fwhm'>),
     }))
-    const results = await computeAll(inputs, settings)
+    // the compute threads also serialise the stored rows: the event loop only joins strings
+    const results = await computeRows(inputs, settings)
     done += rows.length
     lastId = rows[rows.length - 1].id
     await lease.db.transaction(async (tx) => {
-      await upsertResults(tx, job.projectId, job.revision!, rows.map((r, i) => resultRow(r.id, inputs[i], results[i])))
+      await upsertResultsJson(tx, job.projectId, job.revision!, results.json(rows.map((r) => r.id), 0))
       await tx.update(jobs).set({ done, lastId, heartbeatAt: sql`now()` }).where(eq(jobs.id, job.id))
     })
   }

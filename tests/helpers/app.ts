@@ -8,11 +8,13 @@ import { queuedMailer, smtpDelivery, type Deliver } from '../../server/lib/maile
 import { outboxMessages } from '../../server/db/schema.ts'
 import { freshDatabaseUrl } from './db.ts'
 import { startJobQueue, startRecomputeWorker } from '../../server/services/jobs.service.ts'
+import { createComputePool, type ComputePool } from '../../server/compute/pool.ts'
 
 export interface TestApp {
   app: ReturnType<typeof createApp>
   db: Db
   databaseUrl: string
+  compute: ComputePool
   /** every captured message, once the mail queue has delivered what it holds */
   mails: () => Promise<Array<typeof outboxMessages.$inferSelect>>
   close: () => Promise<void>
@@ -39,12 +41,14 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { job
   const config = loadConfig({ ...process.env, JWT_SECRET: 'test-secret-not-for-production', APP_URL: 'http://127.0.0.1:8080', AUTH_RATE_LIMIT: '1000', DIAGRAM_WARMUP_MS: '0', ...env })
   const jobs = opts.jobs ? await startJobQueue(databaseUrl) : undefined
   if (jobs) await startRecomputeWorker(jobs.boss, db)
-  const app = createApp({ db, config, mailer, jobs: jobs?.queue })
+  // the runtime's worker threads, so the tests exercise the same path as the server
+  const compute = createComputePool(config)
+  const app = createApp({ db, config, mailer, jobs: jobs?.queue, compute })
   const mails = async () => { await mailer.idle(); return db.select().from(outboxMessages).orderBy(outboxMessages.id) }
   mailboxes.set(app, mails)
   return {
-    app, db, databaseUrl, mails,
-    close: async () => { mailboxes.delete(app); await jobs?.queue.stop(); await mailer.idle(); mailer.close(); await catcher.close(); await db.$client.end() },
+    app, db, databaseUrl, compute, mails,
+    close: async () => { mailboxes.delete(app); await jobs?.queue.stop(); await compute.close(); await mailer.idle(); mailer.close(); await catcher.close(); await db.$client.end() },
   }
 }
 

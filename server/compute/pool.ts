@@ -1,0 +1,181 @@
+import { Piscina } from 'piscina'
+import type { Config } from '../config.ts'
+import { HttpProblem } from '../http/problem.ts'
+import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
+import type { GalaxyResult } from '../../shared/science.ts'
+import { diagnoseTask, isFailure, type DiagnoseTask, type OutputMode, type TaskFailure, type TaskOutput } from './diagnose.task.ts'
+import { GALAXY_COST } from './budget.ts'
+import { encodeDiagramTask, type DiagramTask } from './diagram.task.ts'
+
+/** The pool's part of the configuration (server/config.ts). */
+export type ComputeSettings = Pick<Config, 'computeThreads' | 'computeQueue' | 'computeTimeoutMs'>
+
+export interface ComputeOptions {
+  /** JSON Pointer of the galaxies array in the request, for error paths */
+  prefix?: string
+  /**
+   * Interactive work (an HTTP request waiting for the answer) is refused with 503 when the queue is
+   * full and has one deadline for the whole request. Background work (jobs) waits for its turn and
+   * the deadline applies to each chunk.
+   */
+  interactive?: boolean
+  /** aborted when the caller no longer wants the answer (the client went away) */
+  signal?: AbortSignal
+}
+
+export interface ComputePool {
+  readonly threads: number
+  readonly closed: boolean
+  /** chunks waiting for a thread */
+  readonly queued: number
+  /** Runs the science chain over `galaxies` in chunks; one output per chunk, in order. */
+  run(mode: OutputMode, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<TaskOutput[]>
+  /** The binary columns of a diagram document (its JSON as UTF-8); background work. */
+  encodeDiagram(json: Uint8Array): Promise<Uint8Array>
+  close(): Promise<void>
+}
+
+/**
+ * Galaxies per chunk: about CHUNK_UNITS of work (≈ 0.3 s on one core), so a long request yields a
+ * thread to others between chunks, and at most an equal share per thread, so a large batch uses
+ * every thread.
+ */
+export const CHUNK_UNITS = 50_000
+/** Copying a chunk's galaxies to a thread and its answer back runs on the event loop: ≈ 10 ms per 1,000 galaxies. */
+export const CHUNK_GALAXIES = 1000
+export function chunkSize(galaxies: number, draws: number, threads: number) {
+  const byCost = Math.floor(CHUNK_UNITS / (Math.max(0, draws) + GALAXY_COST))
+  return Math.max(1, Math.min(byCost, CHUNK_GALAXIES, Math.ceil(galaxies / threads)))
+}
+
+const busy = () => new HttpProblem(503, 'Service Unavailable', 'the compute queue is full; try again shortly', undefined, { 'Retry-After': '5' })
+const tooLong = (ms: number) => new HttpProblem(503, 'Service Unavailable',
+  `the computation ran longer than the ${ms / 1000} s time budget and was stopped; send fewer galaxies or Monte Carlo draws per request`, undefined, { 'Retry-After': '30' })
+
+const gone = () => new HttpProblem(400, 'Bad Request', 'the request was aborted')
+
+function failureProblem(f: TaskFailure, offset: number, prefix: string) {
+  if (f.failed === 'settings') return new HttpProblem(422, 'Unprocessable Content', f.message, [{ path: f.path, message: f.message }])
+  const chunkPath = f.index >= 0 ? `/${f.index}${f.rest}` : f.rest
+  const path = f.index >= 0 ? `/${offset + f.index}${f.rest}` : f.rest
+  const message = f.message.split(chunkPath).join(path)
+  return new HttpProblem(422, 'Unprocessable Content', message, [{ path: prefix + path, message }])
+}
+
+type Exec = (task: DiagnoseTask, signal: AbortSignal | undefined) => Promise<TaskOutput | TaskFailure>
+
+/** Chunking, ordering, deadlines and error paths, shared by the thread pool and the in-process runner. */
+function runner(threads: number, exec: Exec, queued: () => number, s: ComputeSettings) {
+  return async (mode: OutputMode, galaxies: GalaxyInputDto[], settings: Settings, opts: ComputeOptions = {}): Promise<TaskOutput[]> => {
+    const prefix = opts.prefix ?? '/galaxies'
+    if (opts.interactive && queued() >= s.computeQueue) throw busy()
+    const size = chunkSize(galaxies.length, settings.monteCarlo.draws, threads)
+    const starts: number[] = []
+    for (let i = 0; i < galaxies.length; i += size) starts.push(i)
+    const timed = Number.isFinite(s.computeTimeoutMs) && s.computeTimeoutMs > 0
+    const deadline = opts.interactive && timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined
+    const outputs: TaskOutput[] = new Array(starts.length)
+    let next = 0
+    let failure: unknown
+    // at most one chunk per thread in flight for each request, so concurrent requests take turns
+    const lane = async () => {
+      while (next < starts.length && failure === undefined) {
+        const k = next++
+        const start = starts[k]
+        const chunkDeadline = deadline ?? (timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined)
+        const signals = [chunkDeadline, opts.signal].filter((x): x is AbortSignal => x !== undefined)
+        try {
+          if (opts.signal?.aborted) throw gone()
+          const out = await exec({ mode, galaxies: galaxies.slice(start, start + size), settings }, signals.length > 1 ? AbortSignal.any(signals) : signals[0])
+          if (isFailure(out)) throw failureProblem(out, start, prefix)
+          outputs[k] = out
+        } catch (err) {
+          // the other lanes stop taking chunks; those already running finish (≤ one chunk each),
+          // since aborting a running chunk costs its thread
+          failure ??= chunkDeadline?.aborted ? tooLong(s.computeTimeoutMs) : opts.signal?.aborted ? gone() : err
+        }
+      }
+    }
+    await Promise.all(Array.from({ length: Math.min(threads, starts.length) }, lane))
+    if (failure !== undefined) throw failure
+    return outputs
+  }
+}
+
+/** The science in worker threads (piscina), created once by the runtime and injected through AppDeps. */
+export function createComputePool(s: ComputeSettings): ComputePool {
+  const threads = Math.max(1, Math.floor(s.computeThreads))
+  const piscina = new Piscina({
+    filename: new URL('./worker.mjs', import.meta.url).href,
+    minThreads: threads, maxThreads: threads,
+    // workers register tsx themselves; the parent's loader flags would load it twice
+    execArgv: [],
+    // on a busy machine the kernel serves the event loop (health, reads) before the compute threads
+    niceIncrement: 5,
+  })
+  // Our own first-come-first-served queue: piscina keeps abortable tasks in a queue that, under steady
+  // load, serves them out of order (bench:liveness saw p50 5 ms beside p99 1–10 s), so a chunk goes to
+  // piscina only when a thread is free.
+  interface Job { task: object; signal?: AbortSignal; ok: (v: unknown) => void; fail: (e: unknown) => void; dequeued: () => void }
+  const waiting: Job[] = []
+  let running = 0
+  const pump = () => {
+    while (running < threads && waiting.length > 0) {
+      const job = waiting.shift()!
+      job.dequeued()
+      if (job.signal?.aborted) { job.fail(job.signal.reason); continue }
+      running++
+      piscina.run(job.task, { signal: job.signal }).then(job.ok, job.fail).finally(() => { running--; pump() })
+    }
+  }
+  const submit = <T>(task: object, signal?: AbortSignal) => new Promise<T>((ok, fail) => {
+    // a request's deadline is shared by all its chunks: the listener goes when the chunk leaves the queue
+    const onAbort = () => {
+      const i = waiting.indexOf(job)
+      if (i >= 0) { waiting.splice(i, 1); job.dequeued(); fail(signal!.reason) }
+    }
+    const job: Job = { task, signal, ok: ok as (v: unknown) => void, fail, dequeued: () => signal?.removeEventListener('abort', onAbort) }
+    signal?.addEventListener('abort', onAbort)
+    waiting.push(job)
+    pump()
+  })
+  let closed = false
+  const timed = Number.isFinite(s.computeTimeoutMs) && s.computeTimeoutMs > 0
+  return {
+    threads,
+    get closed() { return closed },
+    get queued() { return waiting.length },
+    run: runner(threads, (task, signal) => submit(task, signal), () => waiting.length, s),
+    encodeDiagram: (json) => submit({ kind: 'diagram', json } satisfies DiagramTask, timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined),
+    async close() {
+      closed = true
+      for (const job of waiting.splice(0)) job.fail(new Error('the compute pool was closed'))
+      await piscina.destroy()
+    },
+  }
+}
+
+/** The same work on the calling thread: for scripts (seed, openapi) and as the reference in tests. */
+export function inProcessCompute(s: ComputeSettings = { computeThreads: 1, computeQueue: Number.POSITIVE_INFINITY, computeTimeoutMs: 0 }): ComputePool {
+  const exec: Exec = async (task) => diagnoseTask(task)
+  return {
+    threads: 1, closed: false, queued: 0, run: runner(1, exec, () => 0, s),
+    encodeDiagram: async (json) => encodeDiagramTask({ kind: 'diagram', json }),
+    async close() {},
+  }
+}
+
+/** The results as objects, in order. */
+export async function diagnose(pool: ComputePool, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<GalaxyResult[]> {
+  return (await pool.run('objects', galaxies, settings, opts) as GalaxyResult[][]).flat()
+}
+
+/** The results as UTF-8 JSON fragments: joined with commas inside brackets they are the results array. */
+export async function diagnoseJson(pool: ComputePool, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<Uint8Array[]> {
+  return await pool.run('json', galaxies, settings, opts) as Uint8Array[]
+}
+
+/** One JSON object per galaxy for `upsertResults`, without `galaxy_id`. */
+export async function diagnoseRows(pool: ComputePool, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<string[]> {
+  return (await pool.run('rows', galaxies, settings, opts) as string[][]).flat()
+}

@@ -1,0 +1,32 @@
+// A worker thread of `npm run bench:liveness` (plain JavaScript: worker threads start without tsx),
+// so that neither the probe nor the heavy client shares the server's event loop:
+// - role `health`: GET `url` every `everyMs` until told to stop, then posts every latency (ms);
+// - role `request`: sends one request, reads the whole answer, posts status, time and size.
+import { parentPort, workerData } from 'node:worker_threads'
+
+const data = workerData
+
+if (data.role === 'health') {
+  let stop = false
+  parentPort.once('message', () => { stop = true })
+  const latencies = []
+  let errors = 0
+  while (!stop && latencies.length < data.maxSamples) {
+    const t0 = performance.now()
+    try {
+      const res = await fetch(data.url)
+      await res.arrayBuffer()
+      if (res.status !== 200) errors++
+    } catch { errors++ }
+    latencies.push(performance.now() - t0)
+    await new Promise((ok) => setTimeout(ok, data.everyMs))
+  }
+  parentPort.postMessage({ latencies, errors })
+} else {
+  const t0 = performance.now()
+  const res = await fetch(data.url, { method: data.method, headers: data.headers, body: data.body })
+  const body = Buffer.from(await res.arrayBuffer())
+  const ms = performance.now() - t0
+  // small answers come back whole (ids of jobs, problem documents); large ones only by size
+  parentPort.postMessage({ status: res.status, ms, bytes: body.byteLength, json: body.byteLength < 100_000 ? body.toString('utf8') : null })
+}
