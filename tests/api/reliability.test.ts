@@ -30,7 +30,8 @@ describe('database restart with requests flowing', () => {
   it('answers 503 while PostgreSQL is down, recovers without a restart, and keeps every acknowledged write', async () => {
     const dir = mkdtempSync(join(PROJECT_ROOT, '.pg-restart-'))
     const cluster = await startEmbeddedPostgres({ dir, port: await freePort(), durable: false })
-    cleanups.push(() => { cluster.stop(); rmSync(dir, { recursive: true, force: true }) })
+    // the cluster itself may live elsewhere (a root run in a private folder): remove both
+    cleanups.push(() => { cluster.stop(); rmSync(cluster.dir, { recursive: true, force: true }); rmSync(dir, { recursive: true, force: true }) })
     const db = connect(cluster.url, 5)
     await runMigrations(db)
     const app = createApp({ db, config: loadConfig({ ...process.env, JWT_SECRET: 'x', AUTH_RATE_LIMIT: '1000' }), mailer: { send: async () => {}, close: () => {} } })

@@ -30,7 +30,7 @@ export async function benchServer(extraEnv: Record<string, string> = {}) {
   const key = (await (await fetch(`${rt.url}/api/v1/me/api-keys`, { method: 'POST', headers: session, body: JSON.stringify({ name: 'bench', access: 'write' }) })).json()).key as string
   return {
     rt, pg, projectId: project.id as string, key,
-    async close() { await rt.stop(); pg.stop(); rmSync(dir, { recursive: true, force: true }) },
+    async close() { await rt.stop(); pg.stop(); rmSync(pg.dir, { recursive: true, force: true }); rmSync(dir, { recursive: true, force: true }) },
   }
 }
 
