@@ -7,7 +7,7 @@ import { NII_TEMPERATURE_MODEL, OIII_TEMPERATURE_MODEL, temperatureFromRatio } f
 import { SANDERS16_OII, SANDERS16_SII, electronDensityFromDoubletRatio } from '../../../shared/diagnostics/density.ts'
 
 // Second, independent computations by Debian's python3-scipy: tests/fixtures/science/make_numerics_fixture.py
-// (shared/science/README.md §0, §3, §4, §9, §12 say which statement each block confirms).
+// (shared/science/README.md §0, §3, §4, §8, §9 say which statement each block confirms).
 interface SplineCase { name: string; x: number[]; y: number[]; t: number[]; value: number[] }
 interface TemperatureCase { model: 'oiii' | 'nii'; neCm3: number; ratio: number[]; temperatureK: number[] }
 interface DensityCase { fit: 'sii' | 'oii'; temperatureK: number; ratio: number[]; neCm3: number[] }
