@@ -1,7 +1,7 @@
 /**
  * Flag vocabulary of the science library, the typed input error and small input guards.
  *
- * Flags are lowercase kebab-case strings (API-CONTRACT.md, REFERENCE.md §10). A flag says that a value
+ * Flags are lowercase kebab-case strings (public API, openapi/openapi.json; shared/science/README.md §10). A flag says that a value
  * is legitimate but doubtful (a calibration outside its range, a decrement below Case B, a density at
  * its limit) or why a value is `null`. Impossible inputs throw a `ScienceInputError` instead.
  *
@@ -51,7 +51,7 @@ export function requirePositiveFinite(path: string, value: unknown): number {
 export type DiagramKey = 'nii' | 'sii' | 'oi'
 export type ClassDiagramKey = DiagramKey | 'whan'
 
-/** Metallicity calibration keys (REFERENCE.md §5). */
+/** Metallicity calibration keys (shared/science/README.md §5). */
 export const METALLICITY_KEYS = ['n2Pp04', 'n2Pp04Cubic', 'o3n2Pp04', 'n2M13', 'o3n2M13', 'n2s2haD16'] as const
 export type MetallicityKey = (typeof METALLICITY_KEYS)[number]
 
@@ -62,7 +62,7 @@ const DIAGRAMS: readonly ClassDiagramKey[] = ['nii', 'sii', 'oi', 'whan']
  * the meaning of stored kernel words (they are never stored: the kernel output is turned into strings).
  */
 export const ROW_FLAGS: readonly string[] = [
-  // dust (REFERENCE.md §1.2, §10)
+  // dust (shared/science/README.md §1.2, §10)
   'balmer-below-intrinsic',
   'balmer-from-hgamma',
   'no-balmer-decrement',
@@ -129,8 +129,8 @@ export function flagBit(name: string): number {
   return bit
 }
 
-/** Flag of a galaxy line that was turned into an upper limit (REFERENCE.md §9). */
+/** Flag of a galaxy line that was turned into an upper limit (shared/science/README.md §9). */
 export const belowMinSnrFlag = (line: string): string => `below-min-snr:${line}`
 
-/** Flag of a ratio that is a limit: `ratio-limit:<key>:upper|lower` (API-CONTRACT.md "ratios"). */
+/** Flag of a ratio that is a limit: `ratio-limit:<key>:upper|lower` (public API `ratios`; shared/science/README.md §9). */
 export const ratioLimitFlag = (key: string, kind: 'upper' | 'lower'): string => `ratio-limit:${key}:${kind}`

@@ -3,7 +3,7 @@ import type { Flagged } from '../flags.ts'
 /**
  * Intrinsic Hα/Hβ for Case B recombination at T_e = 10⁴ K, n_e = 10² cm⁻³.
  * Source: Osterbrock & Ferland 2006, Astrophysics of Gaseous Nebulae and AGN, 2nd ed., Table 4.4
- * (also Storey & Hummer 1995, MNRAS 272, 41), via REFERENCE.md §1.1 [I]. Dimensionless.
+ * (also Storey & Hummer 1995, MNRAS 272, 41), via shared/science/README.md §1.1. Dimensionless.
  */
 export const INTRINSIC_HALPHA_HBETA_CASE_B = 2.86
 
@@ -11,24 +11,24 @@ export const INTRINSIC_HALPHA_HBETA_CASE_B = 2.86
  * Customary intrinsic Hα/Hβ of AGN narrow-line regions ("Case B′"): 3.1. A documented choice for
  * `intrinsicBalmer`, never switched on automatically.
  * Source: Halpern & Steiner 1983, ApJL 269, L37; Gaskell & Ferland 1984, PASP 96, 393, via
- * REFERENCE.md §1.1 [P]. Dimensionless.
+ * shared/science/README.md §1.1. Dimensionless.
  */
 export const INTRINSIC_HALPHA_HBETA_AGN = 3.1
 
 /**
  * Intrinsic Hγ/Hβ for Case B at 10⁴ K, 10² cm⁻³: 0.468 (used by the Hγ fallback).
- * Source: Osterbrock & Ferland 2006, Table 4.4, via REFERENCE.md §1.1 [I]. Dimensionless.
+ * Source: Osterbrock & Ferland 2006, Table 4.4, via shared/science/README.md §1.1. Dimensionless.
  */
 export const INTRINSIC_HGAMMA_HBETA_CASE_B = 0.468
 
 /**
  * The factor 2.5/(k_blue − k_red) that turns log10 of (observed/intrinsic) decrement into E(B−V).
- * Source: foreground-screen dust, A_λ = k(λ)E(B−V) (REFERENCE.md §1.2, common practice).
+ * Source: foreground-screen dust, A_λ = k(λ)E(B−V) (shared/science/README.md §1.2, common practice).
  *
  * @param kBlue  k at the bluer line (Hβ for Hα/Hβ; Hγ for Hγ/Hβ), mag/mag
  * @param kRed   k at the redder line (Hα; Hβ), mag/mag
  * @returns the coefficient in mag per dex
- * @example balmerCoefficient(3.609, 2.535) // ≈ 2.328 (CCM89, R_V = 3.1; REFERENCE.md §1.2)
+ * @example balmerCoefficient(3.609, 2.535) // ≈ 2.328 (CCM89, R_V = 3.1; shared/science/README.md §1.2)
  */
 export function balmerCoefficient(kBlue: number, kRed: number): number {
   return 2.5 / (kBlue - kRed)
@@ -37,7 +37,7 @@ export function balmerCoefficient(kBlue: number, kRed: number): number {
 /**
  * Unclipped colour excess from the Hα/Hβ decrement, for one foreground screen of dust:
  *   E(B−V) = 2.5/(k(Hβ) − k(Hα)) · log10(D_obs/D_int)   (negative when D_obs < D_int).
- * Source: REFERENCE.md §1.2 (standard foreground screen; common practice, e.g. Osterbrock &
+ * Source: shared/science/README.md §1.2 (standard foreground screen; common practice, e.g. Osterbrock &
  * Ferland 2006, dust chapter).
  *
  * @param decrement  observed F(Hα)/F(Hβ), dimensionless, > 0
@@ -45,7 +45,7 @@ export function balmerCoefficient(kBlue: number, kRed: number): number {
  * @param kHbeta     k(Hβ), mag/mag
  * @param kHalpha    k(Hα), mag/mag
  * @returns E(B−V) in mag (may be negative)
- * @example colourExcessFromBalmerRaw(4, 2.86, 3.609, 2.535) // ≈ 0.339 (REFERENCE.md §1.2 check: 0.3392)
+ * @example colourExcessFromBalmerRaw(4, 2.86, 3.609, 2.535) // ≈ 0.339 (shared/science/README.md §1.2 check: 0.3392)
  */
 export function colourExcessFromBalmerRaw(decrement: number, intrinsic: number, kHbeta: number, kHalpha: number): number {
   return balmerCoefficient(kHbeta, kHalpha) * Math.log10(decrement / intrinsic)
@@ -53,7 +53,7 @@ export function colourExcessFromBalmerRaw(decrement: number, intrinsic: number, 
 
 /**
  * Colour excess from the Hα/Hβ decrement, clipped at 0: below the intrinsic ratio the result is 0
- * with the flag `balmer-below-intrinsic` (API-CONTRACT.md; REFERENCE.md §1.2, common practice).
+ * with the flag `balmer-below-intrinsic` (public API, openapi/openapi.json; shared/science/README.md §1.2, common practice).
  *
  * @param decrement  observed F(Hα)/F(Hβ), dimensionless, > 0
  * @param intrinsic  intrinsic F(Hα)/F(Hβ), dimensionless, > 0
@@ -70,7 +70,7 @@ export function colourExcessFromBalmer(decrement: number, intrinsic: number, kHb
 /**
  * Unclipped colour excess from Hγ/Hβ, the fallback when Hα is missing:
  *   E(B−V) = 2.5/(k(Hγ) − k(Hβ)) · log10[(Hγ/Hβ)_int / (Hγ/Hβ)_obs].
- * Source: REFERENCE.md §1.2 (project convention; same physics as the Hα/Hβ form).
+ * Source: shared/science/README.md §1.2 (project convention; same physics as the Hα/Hβ form).
  *
  * @param ratio      observed F(Hγ)/F(Hβ), dimensionless, > 0
  * @param intrinsic  intrinsic F(Hγ)/F(Hβ), dimensionless (0.468 Case B)
@@ -85,7 +85,7 @@ export function colourExcessFromHgammaRaw(ratio: number, intrinsic: number, kHga
 
 /**
  * Factor by which dereddening multiplies a flux: F_corr/F_obs = 10^(0.4·k(λ)·E(B−V)).
- * Source: REFERENCE.md §1.2 (foreground screen; common practice).
+ * Source: shared/science/README.md §1.2 (foreground screen; common practice).
  *
  * @param k    k(λ), mag/mag
  * @param ebv  E(B−V), mag

@@ -1,15 +1,15 @@
-/** Greene & Ho 2005, ApJ 630, 122, eq. 6: M = 2.0×10⁶ (L/10⁴² erg s⁻¹)^0.55 (FWHM/10³ km s⁻¹)^2.06 M☉ ([I]; eq. no. from memory — verify). */
+/** Greene & Ho 2005, ApJ 630, 122, eq. 6: M = 2.0×10⁶ (L/10⁴² erg s⁻¹)^0.55 (FWHM/10³ km s⁻¹)^2.06 M☉ (eq. no. from memory, shared/science/README.md §12). */
 export const GREENE_HO05 = { normalisationSolar: 2.0e6, luminosityExponent: 0.55, fwhmExponent: 2.06 } as const
 
 /**
  * Virial black-hole mass from the broad Hα luminosity and width.
- * Source: Greene & Ho 2005, ApJ 630, 122 (eq. 6, from memory — verify); REFERENCE.md §7.
+ * Source: Greene & Ho 2005, ApJ 630, 122 (eq. 6, from memory, shared/science/README.md §12); shared/science/README.md §7.
  * Systematic scatter of such masses ≈ 0.3–0.5 dex (common practice) is not included in errors.
  *
  * @param luminosityBroadHalpha  L(Hα broad), erg s⁻¹, > 0
  * @param fwhmKmPerS             FWHM of broad Hα, km s⁻¹, > 0
  * @returns M_BH in solar masses
- * @example blackHoleMassGreeneHo05(1e43, 3000) // ≈ 6.822e7 (REFERENCE.md §7 [C])
+ * @example blackHoleMassGreeneHo05(1e43, 3000) // ≈ 6.822e7 (shared/science/README.md §7)
  */
 export function blackHoleMassGreeneHo05(luminosityBroadHalpha: number, fwhmKmPerS: number): number {
   return GREENE_HO05.normalisationSolar *

@@ -13,7 +13,7 @@ const RATIO_UPPER = __limits.RATIO_UPPER
  * Class on the [N II] diagram (Baldwin, Phillips & Terlevich 1981, PASP 93, 5 type): star-forming
  * below Kauffmann et al. 2003 (MNRAS 346, 1055, eq. 1), composite between Ka03 and Kewley et al. 2001
  * (ApJ 556, 121, eq. 5), AGN above Ke01; strict inequalities, and a point at or right of an
- * asymptote is on the AGN side of that curve (REFERENCE.md §2.3, §2.2).
+ * asymptote is on the AGN side of that curve (shared/science/README.md §2.3, §2.2).
  *
  * @param x  log([N II]6584/Hα), dex
  * @param y  log([O III]5007/Hβ), dex
@@ -34,7 +34,7 @@ function classifySeyfertLiner(ke01: HyperbolaCurve, ke06: StraightLine, x: numbe
 /**
  * Class on the [S II] diagram: star-forming below Kewley et al. 2001 eq. 6 (left of x = 0.32);
  * otherwise Seyfert above, LINER on or below, the Kewley et al. 2006 (MNRAS 372, 961) line
- * y = 1.89 x + 0.76 (REFERENCE.md §2.3).
+ * y = 1.89 x + 0.76 (shared/science/README.md §2.3).
  *
  * @param x  log(([S II]6717+6731)/Hα), dex
  * @param y  log([O III]5007/Hβ), dex
@@ -47,7 +47,7 @@ export function classifySiiPoint(x: number, y: number): number {
 
 /**
  * Class on the [O I] diagram: star-forming below Kewley et al. 2001 eq. 7 (left of x = −0.59);
- * otherwise Seyfert above, LINER on or below, Kewley et al. 2006 y = 1.18 x + 1.30 (REFERENCE.md §2.3).
+ * otherwise Seyfert above, LINER on or below, Kewley et al. 2006 y = 1.18 x + 1.30 (shared/science/README.md §2.3).
  *
  * @param x  log([O I]6300/Hα), dex
  * @param y  log([O III]5007/Hβ), dex
@@ -79,7 +79,7 @@ function lowerOk(status: number): boolean {
 }
 
 /**
- * Whether the class of a point built from limits is proven (REFERENCE.md §9, project convention).
+ * Whether the class of a point built from limits is proven (shared/science/README.md §9, project convention).
  * All SF/AGN curves fall with x, so the star-forming region is a lower set and the AGN region an
  * upper set; the Seyfert side of a rising line is upper-left. Hence the limit point proves:
  * star-forming if every limit is an upper limit; AGN if every limit is a lower limit; Seyfert if the
@@ -109,7 +109,7 @@ export function classProvenByLimits(cls: number, xStatus: number, yStatus: numbe
 
 /**
  * Combined class from the three diagrams, after Kewley et al. 2006, MNRAS 372, 961, §4 (rule wording
- * from memory — verify), with the project's conventions for missing diagrams (REFERENCE.md §2.4):
+ * from memory, shared/science/README.md §12), with the project's conventions for missing diagrams (shared/science/README.md §2.4):
  *   star-forming: SF on [N II], [S II] and [O I]; composite: composite on [N II], SF on [S II] and [O I];
  *   Seyfert: AGN on [N II], Seyfert on [S II] and [O I]; LINER: AGN on [N II], LINER on both;
  *   otherwise ambiguous. An unclassified [S II] or [O I] is left out (flag `overall-without-sii`/`-oi`);

@@ -1,6 +1,6 @@
 /**
  * Class codes shared by the classifiers and the columnar kernel (Int8 columns), and their API names
- * (API-CONTRACT.md "classes").
+ * (public API `classes`, openapi/openapi.json).
  */
 export const CLASS_UNCLASSIFIED = 0
 export const CLASS_STAR_FORMING = 1

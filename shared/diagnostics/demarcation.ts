@@ -1,6 +1,6 @@
 /**
  * Demarcation curves of the line-ratio diagrams and signed perpendicular distances to them
- * (REFERENCE.md §2.2, §2.6). x and y are log10 ratios (dex): x = log([N II]/Hα), log([S II]/Hα) or
+ * (shared/science/README.md §2.2, §2.6). x and y are log10 ratios (dex): x = log([N II]/Hα), log([S II]/Hα) or
  * log([O I]/Hα); y = log([O III]5007/Hβ).
  */
 
@@ -17,33 +17,33 @@ export interface StraightLine {
   q: number
 }
 
-/** Kauffmann et al. 2003, MNRAS 346, 1055, eq. 1: y = 0.61/(x_N − 0.05) + 1.30 ([I]; eq. no. from memory). */
+/** Kauffmann et al. 2003, MNRAS 346, 1055, eq. 1: y = 0.61/(x_N − 0.05) + 1.30 (eq. no. from memory, shared/science/README.md §12). */
 export const KA03: HyperbolaCurve = { a: 0.61, x0: 0.05, c: 1.3 }
-/** Kewley et al. 2001, ApJ 556, 121, eq. 5: y = 0.61/(x_N − 0.47) + 1.19 ([I]). */
+/** Kewley et al. 2001, ApJ 556, 121, eq. 5: y = 0.61/(x_N − 0.47) + 1.19. */
 export const KE01_NII: HyperbolaCurve = { a: 0.61, x0: 0.47, c: 1.19 }
-/** Kewley et al. 2001, eq. 6: y = 0.72/(x_S − 0.32) + 1.30 ([I]). */
+/** Kewley et al. 2001, eq. 6: y = 0.72/(x_S − 0.32) + 1.30. */
 export const KE01_SII: HyperbolaCurve = { a: 0.72, x0: 0.32, c: 1.3 }
-/** Kewley et al. 2001, eq. 7: y = 0.73/(x_O + 0.59) + 1.33 ([I]). */
+/** Kewley et al. 2001, eq. 7: y = 0.73/(x_O + 0.59) + 1.33. */
 export const KE01_OI: HyperbolaCurve = { a: 0.73, x0: -0.59, c: 1.33 }
-/** Kewley et al. 2006, MNRAS 372, 961: Seyfert/LINER line on [S II], y = 1.89 x_S + 0.76 ([I]). */
+/** Kewley et al. 2006, MNRAS 372, 961: Seyfert/LINER line on [S II], y = 1.89 x_S + 0.76. */
 export const KE06_SII: StraightLine = { m: 1.89, q: 0.76 }
-/** Kewley et al. 2006: Seyfert/LINER line on [O I], y = 1.18 x_O + 1.30 ([I]). */
+/** Kewley et al. 2006: Seyfert/LINER line on [O I], y = 1.18 x_O + 1.30. */
 export const KE06_OI: StraightLine = { m: 1.18, q: 1.3 }
-/** Schawinski et al. 2007, MNRAS 382, 1415: Seyfert/LINER line on [N II], y = 1.05 x_N + 0.45 ([I]). */
+/** Schawinski et al. 2007, MNRAS 382, 1415: Seyfert/LINER line on [N II], y = 1.05 x_N + 0.45. */
 export const S07_NII: StraightLine = { m: 1.05, q: 0.45 }
 
-/** x_N where Ka03 and Ke01 [N II] cross; left of it Ka03 lies above Ke01 (REFERENCE.md §2.2 [C]). */
+/** x_N where Ka03 and Ke01 [N II] cross; left of it Ka03 lies above Ke01 (shared/science/README.md §2.2). */
 export const KA03_KE01_CROSSING_X = -1.2805
 
 /**
  * y of a hyperbolic demarcation curve on its left branch; null at or right of the asymptote, where
  * the formula's value belongs to the other branch (e.g. Ka03 at x = 0.10 would give +13.5).
- * Source: the curve's paper (see KA03, KE01_*); REFERENCE.md §2.2.
+ * Source: the curve's paper (see KA03, KE01_*); shared/science/README.md §2.2.
  *
  * @param curve  the curve
  * @param x      log ratio, dex
  * @returns y in dex, or null for x ≥ x0
- * @example hyperbolaY(KA03, -0.4) // ≈ -0.0556 (REFERENCE.md §2.2 [C])
+ * @example hyperbolaY(KA03, -0.4) // ≈ -0.0556 (shared/science/README.md §2.2)
  */
 export function hyperbolaY(curve: HyperbolaCurve, x: number): number | null {
   return x < curve.x0 ? curve.a / (x - curve.x0) + curve.c : null
@@ -94,7 +94,7 @@ export function straightLineY(line: StraightLine, x: number): number {
 
 /**
  * Whether a point is on the star-forming side of a hyperbolic curve: strictly left of the asymptote
- * and strictly below the curve (REFERENCE.md §2.3; at/right of the asymptote is the AGN side).
+ * and strictly below the curve (shared/science/README.md §2.3; at/right of the asymptote is the AGN side).
  *
  * @param curve  the curve
  * @param x      dex
@@ -108,13 +108,13 @@ export function isBelowHyperbola(curve: HyperbolaCurve, x: number, y: number): b
 
 /**
  * Signed perpendicular distance from (x, y) to a straight line, positive above (the Seyfert side):
- * (y − m x − q)/√(1 + m²). Source: REFERENCE.md §2.6 (project convention).
+ * (y − m x − q)/√(1 + m²). Source: shared/science/README.md §2.6 (project convention).
  *
  * @param line  the line
  * @param x     dex
  * @param y     dex
  * @returns distance in dex
- * @example signedDistanceToLine(S07_NII, 0.6, 0) // ≈ -0.7448 (REFERENCE.md §2.6 [C])
+ * @example signedDistanceToLine(S07_NII, 0.6, 0) // ≈ -0.7448 (shared/science/README.md §2.6)
  */
 export function signedDistanceToLine(line: StraightLine, x: number, y: number): number {
   return (y - line.m * x - line.q) / Math.sqrt(1 + line.m * line.m)
@@ -184,14 +184,14 @@ function keepIfCloser(t: number, u: number, v: number, a: number): void {
  * so it has at most three positive roots: the largest (a local minimum of the distance) is found by
  * Newton steps from an upper bound in the convex part, and a smaller one in the concave part (the
  * other local minimum) only when p's local maximum there is positive, by bracketed Newton steps. The
- * closer of the two wins, so the global minimum is found even where two local minima exist. Source: REFERENCE.md §2.6 (project convention); derivation, common practice.
+ * closer of the two wins, so the global minimum is found even where two local minima exist. Source: shared/science/README.md §2.6 (project convention); derivation, common practice.
  *
  * @param curve  hyperbola (a > 0)
  * @param x      dex
  * @param y      dex
  * @param out    optional [distance, n_x, n_y] receiver (avoids an allocation in the kernel)
  * @returns the signed distance in dex
- * @example signedDistanceToHyperbola(KE01_NII, -0.3, 0.49885) // ≈ +0.0070 (REFERENCE.md §2.6 [C])
+ * @example signedDistanceToHyperbola(KE01_NII, -0.3, 0.49885) // ≈ +0.0070 (shared/science/README.md §2.6)
  */
 export function signedDistanceToHyperbola(curve: HyperbolaCurve, x: number, y: number, out?: Float64Array | number[]): number {
   const a = curve.a

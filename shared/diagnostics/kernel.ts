@@ -60,9 +60,9 @@ const RATIO_NONE = __limits.RATIO_NONE
 export const HA = 0, HB = 1, HG = 2, HD = 3, O3_5007 = 4, O3_4959 = 5, O3_4363 = 6, N2_6584 = 7, N2_6548 = 8,
   N2_5755 = 9, S2_6717 = 10, S2_6731 = 11, O1_6300 = 12, O2_3726 = 13, O2_3729 = 14, HA_BROAD = 15
 
-/** Fixed [O III] 5007/4959 used when 4959 is missing (Storey & Zeippen 2000, MNRAS 312, 813 — from memory, verify; REFERENCE.md §4). */
+/** Fixed [O III] 5007/4959 used when 4959 is missing (Storey & Zeippen 2000, MNRAS 312, 813 — from memory, shared/science/README.md §12; shared/science/README.md §4). */
 export const OIII_5007_TO_4959 = 2.98
-/** Fixed [N II] 6584/6548 used when 6548 is missing (≈ 3.05, REFERENCE.md §4 — from memory, verify). */
+/** Fixed [N II] 6584/6548 used when 6548 is missing (≈ 3.05, shared/science/README.md §4 — from memory, shared/science/README.md §12). */
 export const NII_6584_TO_6548 = 3.05
 /** Weight of log([N II]/Hα) in the D16 index y (Dopita et al. 2016, Ap&SS 361, 61, eq. 1). */
 const D16_NII_HA_WEIGHT = 0.264
@@ -276,7 +276,7 @@ const teSolution: TemperatureSolution = { temperatureK: null, neCm3: 0, densityA
 
 /**
  * Run the deterministic chain on input rows [start, end) into output rows [0, end − start) (see the
- * file comment and REFERENCE.md for every step). `out.n` must be ≥ end − start.
+ * file comment and shared/science/README.md for every step). `out.n` must be ≥ end − start.
  */
 export function runKernel(
   input: KernelInput, out: KernelOutput, prep: PreparedSettings, options: KernelOptions, start = 0, end = input.n,
@@ -314,7 +314,7 @@ function kernelRow(input: KernelInput, out: KernelOutput, prep: PreparedSettings
   const k = prep.k
   const withErrors = options.errors
 
-  // 1. line states (REFERENCE.md §9)
+  // 1. line states (shared/science/README.md §9)
   let belowSnr = 0
   const minSnr = s.minSnr
   for (let l = 0; l < LINE_COUNT; l++) {
@@ -350,7 +350,7 @@ function kernelRow(input: KernelInput, out: KernelOutput, prep: PreparedSettings
   }
   FL[bo + FLAG_WORDS] = belowSnr
 
-  // 2. dust (REFERENCE.md §1.2)
+  // 2. dust (shared/science/README.md §1.2)
   let ebv = 0
   let dustC = 0 // non-zero only when E(B−V) > 0 depends on the fluxes
   let d1 = -1
@@ -401,7 +401,7 @@ function kernelRow(input: KernelInput, out: KernelOutput, prep: PreparedSettings
   const relD1 = d1 >= 0 ? rel[d1] : 0
   const relD2 = d2 >= 0 ? rel[d2] : 0
 
-  // 3. dereddened fluxes (REFERENCE.md §1.2, §9)
+  // 3. dereddened fluxes (shared/science/README.md §1.2, §9)
   for (let l = 0; l < LINE_COUNT; l++) {
     const state = st[l]
     if (state === LINE_DETECTED || state === LINE_UPPER_LIMIT) {
@@ -415,7 +415,7 @@ function kernelRow(input: KernelInput, out: KernelOutput, prep: PreparedSettings
     } else dfl[l] = NaN
   }
 
-  // 4. observed ratios (API-CONTRACT.md "ratios"; REFERENCE.md §2.1)
+  // 4. observed ratios (public API `ratios`; shared/science/README.md §2.1)
   ratio(R_NII, st[N2_6584], fl[N2_6584], rel[N2_6584], st[HA], fl[HA], rel[HA], true)
   ratio(R_OIII, st[O3_5007], fl[O3_5007], rel[O3_5007], st[HB], fl[HB], rel[HB], true)
   {
@@ -435,7 +435,7 @@ function kernelRow(input: KernelInput, out: KernelOutput, prep: PreparedSettings
     }
   }
 
-  // 5. classes (REFERENCE.md §2.3–2.5, §9)
+  // 5. classes (shared/science/README.md §2.3–2.5, §9)
   const yS = rs[R_OIII]
   const y = rx[R_OIII]
   const nii = diagramClass(0, rs[R_NII], rx[R_NII], yS, y, FL, bo, N2_6584, HA, O3_5007, HB)
@@ -479,7 +479,7 @@ function kernelRow(input: KernelInput, out: KernelOutput, prep: PreparedSettings
   I[io + I_OVERALL] = overall
   I[io + I_SUB] = subtype
 
-  // distances (REFERENCE.md §2.6): only for measured (not limit) points
+  // distances (shared/science/README.md §2.6): only for measured (not limit) points
   if (yS === RATIO_EXACT) {
     const sy = rerr[R_OIII]
     if (rs[R_NII] === RATIO_EXACT) {
@@ -502,20 +502,20 @@ function kernelRow(input: KernelInput, out: KernelOutput, prep: PreparedSettings
     }
   }
 
-  // 6. density from observed doublets (REFERENCE.md §3)
+  // 6. density from observed doublets (shared/science/README.md §3)
   const siiRatioForTe = density(0, SANDERS16_SII, S2_6717, S2_6731, R_SIID, s.electronTemperature, F, fo + F_NE_SII, I, io + I_DSII, FL, bo, withErrors)
   density(1, SANDERS16_OII, O2_3729, O2_3726, R_OIID, s.electronTemperature, F, fo + F_NE_OII, I, io + I_DOII, FL, bo, withErrors)
 
-  // 7. temperatures from dereddened fluxes (REFERENCE.md §4)
+  // 7. temperatures from dereddened fluxes (shared/science/README.md §4)
   temperature(0, OIII_TEMPERATURE_MODEL, O3_5007, O3_4959, O3_4363, OIII_5007_TO_4959, siiRatioForTe, k, F, fo + F_TE_OIII, FL, bo, withErrors, dustC, d1, d2, relD1, relD2)
   temperature(1, NII_TEMPERATURE_MODEL, N2_6584, N2_6548, N2_5755, NII_6584_TO_6548, siiRatioForTe, k, F, fo + F_TE_NII, FL, bo, withErrors, dustC, d1, d2, relD1, relD2)
 
-  // 8. metallicity, star-forming only (REFERENCE.md §5)
+  // 8. metallicity, star-forming only (shared/science/README.md §5)
   if (overall === CLASS_STAR_FORMING) {
     metallicity(k, F, fo + F_Z0, FL, bo, withErrors, dustC, d1, d2, relD1, relD2)
   } else setFlag(FL, bo, FB.metNotSf)
 
-  // 9. luminosity and SFR (REFERENCE.md §6)
+  // 9. luminosity and SFR (shared/science/README.md §6)
   const z = input.redshift[i]
   let dl = NaN
   if (z > 0) {
@@ -537,7 +537,7 @@ function kernelRow(input: KernelInput, out: KernelOutput, prep: PreparedSettings
     } else setFlag(FL, bo, FB.sfrNeedsHa)
   } else setFlag(FL, bo, FB.needsZ)
 
-  // 10. black-hole mass from observed broad Hα (REFERENCE.md §7)
+  // 10. black-hole mass from observed broad Hα (shared/science/README.md §7)
   const sb = st[HA_BROAD]
   if (sb === LINE_UPPER_LIMIT) setFlag(FL, bo, FB.bhLimit)
   else if (sb === LINE_DETECTED) {

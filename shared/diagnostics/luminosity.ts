@@ -2,7 +2,7 @@ import { adaptiveGaussLegendre, gaussLegendre10 } from '../stats/integration.ts'
 
 /** Speed of light, km s⁻¹ (exact; SI definition). */
 export const SPEED_OF_LIGHT_KM_PER_S = 299792.458
-/** Centimetres per megaparsec (IAU 2012 au and 2015 pc definitions, via REFERENCE.md §6). */
+/** Centimetres per megaparsec (IAU 2012 au and 2015 pc definitions, via shared/science/README.md §6). */
 export const CM_PER_MPC = 3.0856775814913673e24
 
 /**
@@ -32,7 +32,7 @@ function inverseHubbleRate(z: number, omegaM: number): number {
  * @param h0      H₀, km s⁻¹ Mpc⁻¹
  * @param omegaM  Ω_m (Ω_Λ = 1 − Ω_m), dimensionless
  * @returns D_L in Mpc
- * @example luminosityDistanceMpc(0.1, 70, 0.3) // ≈ 460.2999 (astropy 5.2.1, via REFERENCE.md §6)
+ * @example luminosityDistanceMpc(0.1, 70, 0.3) // ≈ 460.2999 (astropy 5.2.1, via shared/science/README.md §6)
  */
 export function luminosityDistanceMpc(z: number, h0: number, omegaM: number): number {
   const integral = adaptiveGaussLegendre(inverseHubbleRate, 0, z, 1e-10, omegaM)
@@ -94,23 +94,23 @@ export function createLuminosityDistanceCache(h0: number, omegaM: number): (z: n
  * @param fluxCgs     flux, erg s⁻¹ cm⁻²
  * @param distanceMpc D_L, Mpc
  * @returns L in erg s⁻¹
- * @example lineLuminosity(1e-14, 222.2891) // ≈ 5.912e40 (REFERENCE.md §6 [C])
+ * @example lineLuminosity(1e-14, 222.2891) // ≈ 5.912e40 (shared/science/README.md §6)
  */
 export function lineLuminosity(fluxCgs: number, distanceMpc: number): number {
   const d = distanceMpc * CM_PER_MPC
   return 4 * Math.PI * d * d * fluxCgs
 }
 
-/** Kennicutt 1998, ARA&A 36, 189, eq. 2: SFR = 7.9×10⁻⁴² L(Hα) (M☉ yr⁻¹ per erg s⁻¹; Salpeter IMF 0.1–100 M☉ [I]). */
+/** Kennicutt 1998, ARA&A 36, 189, eq. 2: SFR = 7.9×10⁻⁴² L(Hα) (M☉ yr⁻¹ per erg s⁻¹; Salpeter IMF 0.1–100 M☉). */
 export const KENNICUTT98_HALPHA = 7.9e-42
-/** Kennicutt & Evans 2012, ARA&A 50, 531, eq. 12 and Table 1: log SFR = log L(Hα) − 41.27 (Kroupa IMF [I]; eq. no. from memory). */
+/** Kennicutt & Evans 2012, ARA&A 50, 531, eq. 12 and Table 1: log SFR = log L(Hα) − 41.27 (Kroupa IMF eq. no. from memory, shared/science/README.md §12). */
 export const KENNICUTT_EVANS12_LOG_HALPHA = 41.27
 
 /**
  * Star-formation rate from dereddened Hα, Kennicutt 1998 (ARA&A 36, 189, eq. 2; Salpeter IMF).
  * @param luminosityHalpha  L(Hα), erg s⁻¹
  * @returns SFR in M☉ yr⁻¹
- * @example sfrKennicutt98(5.912e40) // ≈ 0.467 (REFERENCE.md §6 [C])
+ * @example sfrKennicutt98(5.912e40) // ≈ 0.467 (shared/science/README.md §6)
  */
 export function sfrKennicutt98(luminosityHalpha: number): number {
   return KENNICUTT98_HALPHA * luminosityHalpha
@@ -121,7 +121,7 @@ export function sfrKennicutt98(luminosityHalpha: number): number {
  * SFR = L(Hα)·10^−41.27.
  * @param luminosityHalpha  L(Hα), erg s⁻¹
  * @returns SFR in M☉ yr⁻¹
- * @example sfrKennicuttEvans12(5.912e40) // ≈ 0.318 (REFERENCE.md §6 [C])
+ * @example sfrKennicuttEvans12(5.912e40) // ≈ 0.318 (shared/science/README.md §6)
  */
 export function sfrKennicuttEvans12(luminosityHalpha: number): number {
   return luminosityHalpha * KENNICUTT_EVANS12_FACTOR

@@ -1,6 +1,6 @@
 import type { MetallicityKey } from '../flags.ts'
 
-/** Which strong-line index a calibration uses (REFERENCE.md §5). */
+/** Which strong-line index a calibration uses (shared/science/README.md §5). */
 export type MetallicityIndex = 'n2' | 'o3n2' | 'n2s2ha'
 
 /** One strong-line calibration of 12 + log(O/H). */
@@ -20,29 +20,29 @@ const PP04 = 'Pettini & Pagel 2004, MNRAS 348, L59'
 const M13 = 'Marino et al. 2013, A&A 559, A114'
 const D16 = 'Dopita et al. 2016, Ap&SS 361, 61'
 
-/** N2 linear: 12 + log(O/H) = 8.90 + 0.57 N2, −2.5 < N2 < −0.3 (Pettini & Pagel 2004, MNRAS 348, L59, eq. 1 [I]; eq. no. from memory). */
+/** N2 linear: 12 + log(O/H) = 8.90 + 0.57 N2, −2.5 < N2 < −0.3 (Pettini & Pagel 2004, MNRAS 348, L59, eq. 1 eq. no. from memory, shared/science/README.md §12). */
 export function n2Pp04(n2: number): number {
   return 8.9 + 0.57 * n2
 }
-/** N2 cubic: 9.37 + 2.03 N2 + 1.26 N2² + 0.32 N2³, −2.5 < N2 < −0.3 (Pettini & Pagel 2004, eq. 2 [I]; eq. no. from memory). */
+/** N2 cubic: 9.37 + 2.03 N2 + 1.26 N2² + 0.32 N2³, −2.5 < N2 < −0.3 (Pettini & Pagel 2004, eq. 2 eq. no. from memory, shared/science/README.md §12). */
 export function n2Pp04Cubic(n2: number): number {
   return 9.37 + n2 * (2.03 + n2 * (1.26 + 0.32 * n2))
 }
-/** O3N2: 8.73 − 0.32 O3N2, −1 < O3N2 < 1.9 (Pettini & Pagel 2004, eq. 3 [I]; lower bound from implementations — verify). */
+/** O3N2: 8.73 − 0.32 O3N2, −1 < O3N2 < 1.9 (Pettini & Pagel 2004, eq. 3; lower bound from memory, shared/science/README.md §5, §12). */
 export function o3n2Pp04(o3n2: number): number {
   return 8.73 - 0.32 * o3n2
 }
-/** N2: 8.743 + 0.462 N2, −1.6 < N2 < −0.2 (Marino et al. 2013, A&A 559, A114, eq. 4 [I]; range verify). */
+/** N2: 8.743 + 0.462 N2, −1.6 < N2 < −0.2 (Marino et al. 2013, A&A 559, A114, eq. 4; range from memory, shared/science/README.md §12). */
 export function n2M13(n2: number): number {
   return 8.743 + 0.462 * n2
 }
-/** O3N2: 8.533 − 0.214 O3N2, −1.1 < O3N2 < 1.7 (Marino et al. 2013, eq. 2 [I]; range verify). */
+/** O3N2: 8.533 − 0.214 O3N2, −1.1 < O3N2 < 1.7 (Marino et al. 2013, eq. 2; range from memory, shared/science/README.md §12). */
 export function o3n2M13(o3n2: number): number {
   return 8.533 - 0.214 * o3n2
 }
 /**
  * 8.77 + y + 0.45(y + 0.3)⁵ with y = log([N II]/[S II]) + 0.264 log([N II]/Hα); near-linear up to
- * 12 + log(O/H) = 9.05 (Dopita et al. 2016, Ap&SS 361, 61, eqs. 1–2 [I]; eq. nos., volume/page from memory).
+ * 12 + log(O/H) = 9.05 (Dopita et al. 2016, Ap&SS 361, 61, eqs. 1–2 eq. nos., volume/page from memory, shared/science/README.md §12).
  */
 export function n2s2haD16(y: number): number {
   const s = y + 0.3
@@ -52,7 +52,7 @@ export function n2s2haD16(y: number): number {
 /**
  * The N2 index log([N II]6584/Hα) → 12 + log(O/H) calibrations, all with their valid index ranges.
  * Values in dex (12 + log(O/H)); the indices are decimal logs of (dereddened) flux ratios.
- * @example METALLICITY_CALIBRATIONS[0].value(-1) // 8.33 (PP04 N2; REFERENCE.md §5 [C])
+ * @example METALLICITY_CALIBRATIONS[0].value(-1) // 8.33 (PP04 N2; shared/science/README.md §5)
  */
 export const METALLICITY_CALIBRATIONS: readonly MetallicityCalibration[] = [
   { key: 'n2Pp04', index: 'n2', value: n2Pp04, slope: () => 0.57, inRange: (n) => n > -2.5 && n < -0.3, source: `${PP04}, N2 linear` },

@@ -37,7 +37,7 @@ let columnBuffer = new Float64Array(0)
 const triple = new Float64Array(3)
 
 /**
- * Monte Carlo of one galaxy (REFERENCE.md §9): every flux detected in the nominal run is drawn from
+ * Monte Carlo of one galaxy (shared/science/README.md §9): every flux detected in the nominal run is drawn from
  * N(F, σ) independently (xoshiro128** + Box–Muller, seeded per galaxy), limits stay limits, and the
  * whole deterministic chain runs once per draw through the columnar kernel (E(B−V) clipped at 0 per
  * draw; a draw ≤ 0 leaves its ratios undefined and its diagrams unclassified).

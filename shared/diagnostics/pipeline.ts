@@ -318,7 +318,7 @@ function run(galaxies: GalaxyInput[], settings: DiagnosticSettings, prefix: (i: 
 
 /**
  * All diagnostics of one galaxy under one set of assumptions (see `GalaxyResult` for the shape and
- * REFERENCE.md for every formula and convention).
+ * shared/science/README.md for every formula and convention).
  *
  * @param galaxy    the measurements
  * @param settings  complete assumptions (start from `DEFAULT_SETTINGS`)

@@ -45,7 +45,7 @@ function sampleLine(line: StraightLine, xFrom: number): { x: number[]; y: number
  * Demarcation curves for the three diagrams: Ka03 (Kauffmann et al. 2003, MNRAS 346, 1055, eq. 1),
  * Ke01 (Kewley et al. 2001, ApJ 556, 121, eqs. 5–7), Ke06 (Kewley et al. 2006, MNRAS 372, 961) and
  * S07 (Schawinski et al. 2007, MNRAS 382, 1415). Hyperbolas are sampled on their left branch down to
- * y = −1.5; the straight Seyfert/LINER lines start where they meet Ke01 (REFERENCE.md §2.2 [C]).
+ * y = −1.5; the straight Seyfert/LINER lines start where they meet Ke01 (shared/science/README.md §2.2).
  *
  * @param diagram  optional: only that diagram's curves
  * @returns the curves (x = log(line/Hα), y = log([O III]/Hβ), dex)
@@ -103,7 +103,7 @@ function ratioCurve(fit: DoubletFit, temperatureK: number): { ne: number[]; rati
 
 /**
  * [S II] 6717/6731 against n_e (1–10⁵ cm⁻³, 101 log-spaced points) at T_e, from the Sanders et al.
- * 2016 (ApJ 816, 23) fit with the n_e/√T scaling (REFERENCE.md §3).
+ * 2016 (ApJ 816, 23) fit with the n_e/√T scaling (shared/science/README.md §3).
  *
  * @param temperatureK  T_e in K
  * @returns n_e in cm⁻³ and the ratio
@@ -132,14 +132,14 @@ export interface ReddeningVectors {
 
 /**
  * How E(B−V) of foreground dust moves an observed point on each diagram: a log ratio F₁/F₂ changes by
- * −0.4 (k₁ − k₂) E(B−V) (REFERENCE.md §1.2, §2.1). For [S II] 6717+6731 the mean k of the two lines
+ * −0.4 (k₁ − k₂) E(B−V) (shared/science/README.md §1.2, §2.1). For [S II] 6717+6731 the mean k of the two lines
  * is used (k(6717) − k(6731) = 0.007, so the error is < 5×10⁻⁴ dex per magnitude of E(B−V) for any doublet ratio).
  *
  * @param law  extinction law
  * @param rv   R_V, dimensionless
  * @param ebv  E(B−V), mag
  * @returns dx, dy in dex per diagram
- * @example reddeningVector('ccm89', 3.1, 1).nii.dy // ≈ +0.054 (REFERENCE.md §2.1 [C], sign: reddening)
+ * @example reddeningVector('ccm89', 3.1, 1).nii.dy // ≈ +0.054 (shared/science/README.md §2.1, sign: reddening)
  */
 export function reddeningVector(law: ExtinctionLaw, rv: number, ebv: number): ReddeningVectors {
   const k = (id: keyof typeof AIR_WAVELENGTH_ANGSTROM) => extinctionK(law, AIR_WAVELENGTH_ANGSTROM[id], rv)

@@ -9,7 +9,7 @@ import type { DiagnosticSettings } from './types.ts'
 export const METHOD_VERSION = '2026.12.0'
 
 /**
- * Default assumptions (API-CONTRACT.md `settings`): CCM89 with R_V = 3.1 (Cardelli et al. 1989),
+ * Default assumptions (public API `settings`, openapi/openapi.json; shared/science/README.md §10): CCM89 with R_V = 3.1 (Cardelli et al. 1989),
  * Case B Hα/Hβ = 2.86 (Osterbrock & Ferland 2006, Table 4.4), T_e = 10⁴ K, S/N ≥ 3, negative fluxes
  * refused, Kennicutt 1998 SFR, H₀ = 70 km s⁻¹ Mpc⁻¹, Ω_m = 0.3, no Monte Carlo, seed 1.
  */

@@ -4,7 +4,7 @@ import { DENSITY_OK, densityRangeStatus, electronDensityFromDoubletRatio, SANDER
 /**
  * Low-density temperature-sensitive ratio model R(T) = A exp(B/T) / (1 + C n_e/T^½).
  * Source: Osterbrock & Ferland 2006, Astrophysics of Gaseous Nebulae and AGN, 2nd ed., eqs. 5.4, 5.5
- * (coefficients [I], REFERENCE.md §4).
+ * (coefficients, shared/science/README.md §4).
  */
 export interface TemperatureRatioModel {
   /** A, dimensionless */
@@ -20,12 +20,12 @@ export const OIII_TEMPERATURE_MODEL: TemperatureRatioModel = { coefficient: 7.9,
 /** Osterbrock & Ferland 2006, eq. 5.5: (j6548 + j6584)/j5755 = 8.23 exp(2.50×10⁴/T)/(1 + 4.4×10⁻³ n_e/T^½). */
 export const NII_TEMPERATURE_MODEL: TemperatureRatioModel = { coefficient: 8.23, exponentK: 2.5e4, densityCoefficient: 4.4e-3 }
 
-/** Search range for T_e, K (REFERENCE.md §4, project convention). */
+/** Search range for T_e, K (shared/science/README.md §4, project convention). */
 export const TEMPERATURE_MIN_K = 5000
 export const TEMPERATURE_MAX_K = 30000
-/** n_e assumed when [S II] gives no density (REFERENCE.md §4, project convention), cm⁻³. */
+/** n_e assumed when [S II] gives no density (shared/science/README.md §4, project convention), cm⁻³. */
 export const ASSUMED_DENSITY_CM3 = 100
-/** Convergence of the T_e / n_e iteration, K (REFERENCE.md §4). */
+/** Convergence of the T_e / n_e iteration, K (shared/science/README.md §4). */
 export const TEMPERATURE_ITERATION_TOL_K = 0.1
 
 /**
@@ -36,7 +36,7 @@ export const TEMPERATURE_ITERATION_TOL_K = 0.1
  * @param temperatureK  T_e, K
  * @param neCm3         n_e, cm⁻³
  * @returns the line ratio, dimensionless
- * @example temperatureRatio(OIII_TEMPERATURE_MODEL, 1e4, 100) // ≈ 211.96 (REFERENCE.md §4 [C])
+ * @example temperatureRatio(OIII_TEMPERATURE_MODEL, 1e4, 100) // ≈ 211.96 (shared/science/README.md §4)
  */
 export function temperatureRatio(model: TemperatureRatioModel, temperatureK: number, neCm3: number): number {
   return (model.coefficient * Math.exp(model.exponentK / temperatureK)) /
@@ -64,14 +64,14 @@ export function temperatureRatioLogSlope(model: TemperatureRatioModel, temperatu
  * 5000–30 000 K (the model decreases monotonically with T, so the root is unique). The root is sought
  * in u = 1/T, where ln R is almost linear: Newton steps from the exact zero-density root, with the
  * safeguarded bracketing solver `newtonBisect` on [1/30 000, 1/5000] K⁻¹ as the fallback.
- * Source: inverse of Osterbrock & Ferland 2006, eqs. 5.4/5.5; search range REFERENCE.md §4.
+ * Source: inverse of Osterbrock & Ferland 2006, eqs. 5.4/5.5; search range shared/science/README.md §4.
  *
  * @param model   OIII_TEMPERATURE_MODEL or NII_TEMPERATURE_MODEL
  * @param ratio   observed (dereddened) ratio, dimensionless, > 0
  * @param neCm3   n_e, cm⁻³
  * @param guessK  optional first guess of T (K) for the Newton steps (e.g. the previous iteration's T)
  * @returns T_e in K, or null when no root lies in 5000–30 000 K (`te-out-of-range`)
- * @example temperatureFromRatio(OIII_TEMPERATURE_MODEL, 200, 100) // ≈ 10180 (REFERENCE.md §4 [C])
+ * @example temperatureFromRatio(OIII_TEMPERATURE_MODEL, 200, 100) // ≈ 10180 (shared/science/README.md §4)
  */
 export function temperatureFromRatio(model: TemperatureRatioModel, ratio: number, neCm3: number, guessK = Number.NaN): number | null {
   if (!(ratio > 0)) return null
@@ -128,9 +128,9 @@ export interface TemperatureSolution {
 }
 
 /**
- * T_e iterated with the [S II] density (REFERENCE.md §4, project convention): n_e from the [S II] ratio
+ * T_e iterated with the [S II] density (shared/science/README.md §4, project convention): n_e from the [S II] ratio
  * at T (Sanders et al. 2016 with the (T/10⁴)^½ scaling); solve T at that n_e; repeat until
- * |ΔT| < 0.1 K. REFERENCE.md starts at 10⁴ K; this starts at the iteration's analytic fixed point
+ * |ΔT| < 0.1 K. The plain iteration starts at 10⁴ K; this starts at the iteration's analytic fixed point
  * (see the comment in the body), which gives the same T_e within the 0.1 K tolerance in one step
  * (tested against the plain iteration). Without a usable [S II] ratio (missing, or at a density
  * limit) n_e = 100 cm⁻³ and a single solve suffices.

@@ -12,7 +12,7 @@ export type { NiiClass, OverallClass, SiiOiClass, WhanClass } from './classes.ts
 /** One line measurement: a flux with its 1σ error (same unit), or an upper limit on the flux. */
 export type LineValue = { flux: number; error: number } | { upperLimit: number }
 
-/** One galaxy nucleus as submitted (API-CONTRACT.md "POST /api/v1/diagnostics", `galaxies[]`). */
+/** One galaxy nucleus as submitted (public API `POST /api/v1/diagnostics`, `galaxies[]`; openapi/openapi.json). */
 export interface GalaxyInput {
   id: string
   /** redshift; missing or ≤ 0 → no luminosities (flag), not an error */
@@ -26,7 +26,7 @@ export interface GalaxyInput {
   fwhm?: Partial<Record<LineId, number>>
 }
 
-/** The analysis assumptions (API-CONTRACT.md `settings`). */
+/** The analysis assumptions (public API `settings`; shared/science/README.md §10). */
 export interface DiagnosticSettings {
   extinctionLaw: ExtinctionLaw
   /** R_V = A_V/E(B−V), dimensionless */
@@ -46,7 +46,7 @@ export interface DiagnosticSettings {
   monteCarlo: { draws: number; seed: number }
 }
 
-/** Keys of `ratios` (API-CONTRACT.md): log10 of observed ratios, except the two linear doublets. */
+/** Keys of `ratios` (public API; shared/science/README.md §2.1): log10 of observed ratios, except the two linear doublets. */
 export type RatioKey = 'niiHa' | 'oiiiHb' | 'siiHa' | 'oiHa' | 'siiDoublet' | 'oiiDoublet'
 
 /** Adds an optional `<key>Percentiles` sibling to every numeric field of T (Monte Carlo runs). */
@@ -74,7 +74,7 @@ export type DereddenedLine =
   | WithPercentiles<{ flux: number; error: number; aLambda: number | null }>
   | WithPercentiles<{ upperLimit: number }>
 
-/** Classes per diagram (REFERENCE.md §2.3–2.5) and overall (§2.4); Monte Carlo class fractions when requested. */
+/** Classes per diagram (shared/science/README.md §2.3–2.5) and overall (§2.4); Monte Carlo class fractions when requested. */
 export interface ClassesResult {
   nii: NiiClass
   sii: SiiOiClass
@@ -91,7 +91,7 @@ export interface ClassesResult {
   }
 }
 
-/** Signed perpendicular distances (dex) on the [N II] diagram, positive on the AGN/Seyfert side (REFERENCE.md §2.6). */
+/** Signed perpendicular distances (dex) on the [N II] diagram, positive on the AGN/Seyfert side (shared/science/README.md §2.6). */
 export type NiiDistances = WithPercentiles<{
   ka03: number; ka03Error: number
   ke01: number; ke01Error: number
@@ -100,7 +100,7 @@ export type NiiDistances = WithPercentiles<{
   nearestDistance: number
 }>
 
-/** Signed perpendicular distances (dex) on the [S II] or [O I] diagram (REFERENCE.md §2.6). */
+/** Signed perpendicular distances (dex) on the [S II] or [O I] diagram (shared/science/README.md §2.6). */
 export type SeyfertLinerDistances = WithPercentiles<{
   ke01: number; ke01Error: number
   ke06: number; ke06Error: number
@@ -129,7 +129,7 @@ export type TemperatureResult = WithPercentiles<{
   flags: string[]
 }>
 
-/** 12 + log(O/H) of the six calibrations (REFERENCE.md §5), dex. */
+/** 12 + log(O/H) of the six calibrations (shared/science/README.md §5), dex. */
 export type MetallicityResult = WithPercentiles<{
   n2Pp04: number | null; n2Pp04Error: number | null
   n2Pp04Cubic: number | null; n2Pp04CubicError: number | null
@@ -140,7 +140,7 @@ export type MetallicityResult = WithPercentiles<{
   flags: string[]
 }>
 
-/** D_L (Mpc), L(Hα) (erg s⁻¹) and Hα SFRs (M☉ yr⁻¹) (REFERENCE.md §6). */
+/** D_L (Mpc), L(Hα) (erg s⁻¹) and Hα SFRs (M☉ yr⁻¹) (shared/science/README.md §6). */
 export type SfrResult = WithPercentiles<{
   luminosityDistanceMpc: number | null
   /** L(Hα), erg s⁻¹, dereddened when E(B−V) exists */
@@ -158,7 +158,7 @@ export type SfrResult = WithPercentiles<{
   flags: string[]
 }>
 
-/** Greene & Ho 2005 virial black-hole mass (M☉) from broad Hα (REFERENCE.md §7). */
+/** Greene & Ho 2005 virial black-hole mass (M☉) from broad Hα (shared/science/README.md §7). */
 export type BlackHoleResult = WithPercentiles<{
   massSolar: number
   log10Mass: number
@@ -183,7 +183,7 @@ export type BlackHoleResult = WithPercentiles<{
  *   not computable. A ratio with an upper limit in the numerator is an upper limit, in the denominator
  *   a lower limit: `ratioLimits[key]` says 'upper' or 'lower' and `flags` holds
  *   `ratio-limit:<key>:upper|lower`; `ratioErrors[key]` is null for limits.
- * - `classes`: per diagram and overall (Kewley et al. 2006 with REFERENCE.md §2.4 conventions), WHAN,
+ * - `classes`: per diagram and overall (Kewley et al. 2006 with shared/science/README.md §2.4 conventions), WHAN,
  *   S07 subtype of an [N II] AGN; every `unclassified` comes with a flag saying why
  *   (`missing-line:<diagram>`, `limit-not-decisive:<diagram>`, `whan-needs-ew-halpha`, `overall-needs-nii`…).
  * - `distances`: signed perpendicular distances (dex) to each curve, positive on the AGN (or Seyfert)

@@ -8,7 +8,7 @@ const RATIO_NONE = __limits.RATIO_NONE
 const RATIO_UPPER = __limits.RATIO_UPPER
 
 /**
- * WHAN diagram boundaries: Cid Fernandes et al. 2011, MNRAS 413, 1687 ([P, abstract]; REFERENCE.md §2.5).
+ * WHAN diagram boundaries: Cid Fernandes et al. 2011, MNRAS 413, 1687 (shared/science/README.md §2.5).
  * x = log([N II]/Hα) = −0.4 splits star-forming from AGN; W = EW(Hα) in Å, emission positive.
  */
 export const WHAN = {
@@ -24,9 +24,9 @@ export const WHAN = {
 
 /**
  * WHAN class (Cid Fernandes et al. 2011, MNRAS 413, 1687), with the project's tie-breaking
- * (REFERENCE.md §2.5, §10: x ≥ −0.4 is AGN, W ≥ 3 Å is not retired, W > 6 Å is strong):
+ * (shared/science/README.md §2.5, §10: x ≥ −0.4 is AGN, W ≥ 3 Å is not retired, W > 6 Å is strong):
  * passive if W < 0.5 and W([N II]) < 0.5; retired if W < 3; star-forming if x < −0.4; strong AGN if
- * W > 6; else weak AGN. Limits on x follow REFERENCE.md §9 (an upper limit proves star-forming if
+ * W > 6; else weak AGN. Limits on x follow shared/science/README.md §9 (an upper limit proves star-forming if
  * below −0.4; a lower limit proves AGN if ≥ −0.4).
  *
  * @param x        log([N II]6584/Hα), dex (ignored when xStatus is RATIO_NONE)
@@ -34,7 +34,7 @@ export const WHAN = {
  * @param ewHalpha EW(Hα), Å, emission positive
  * @param ewNii    EW([N II]6584), Å, or NaN when not given
  * @returns class code; CLASS_UNCLASSIFIED when x is needed and missing or not decisive
- * @example whanClass(-0.395, 0, 6.05, NaN) // CLASS_STRONG_AGN (REFERENCE.md §2.5 check)
+ * @example whanClass(-0.395, 0, 6.05, NaN) // CLASS_STRONG_AGN (shared/science/README.md §2.5 check)
  */
 export function whanClass(x: number, xStatus: number, ewHalpha: number, ewNii: number): number {
   if (ewHalpha < WHAN.retiredMaxEw) {

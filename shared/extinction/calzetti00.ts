@@ -9,7 +9,7 @@ const CALZETTI00_BLUE = [-2.156, 1.509, -0.198, 0.011] as const
 const CALZETTI00_RED = [-1.857, 1.04] as const
 /** Calzetti et al. 2000, eq. (4): overall factor 2.659. */
 const CALZETTI00_SCALE = 2.659
-/** Branch point 0.63 µm; λ ≥ 0.63 µm uses the red branch (REFERENCE.md §1.3, project convention). */
+/** Branch point 0.63 µm; λ ≥ 0.63 µm uses the red branch (shared/science/README.md §1.3, project convention). */
 const CALZETTI00_BRANCH_ANGSTROM = 6300
 
 /**
@@ -23,7 +23,7 @@ const CALZETTI00_BRANCH_ANGSTROM = 6300
  * @param rv  R′_V, dimensionless (the published value is 4.05; `defaultRvFor('calzetti00')`)
  * @returns k′(λ) in mag/mag
  * @throws {RangeError} outside 1200–22 000 Å (the formula goes negative beyond ~3.2 µm)
- * @example calzetti00K(6562.8, 4.05) // ≈ 3.326 (Hα; python3-extinction 0.4.6, via REFERENCE.md §1.4)
+ * @example calzetti00K(6562.8, 4.05) // ≈ 3.326 (Hα; python3-extinction 0.4.6, via shared/science/README.md §1.4)
  */
 export function calzetti00K(wavelengthAngstrom: number, rv: number): number {
   if (!(wavelengthAngstrom >= CALZETTI00_RANGE_ANGSTROM.min && wavelengthAngstrom <= CALZETTI00_RANGE_ANGSTROM.max)) {

@@ -15,7 +15,7 @@ export const CCM89_OPTICAL_B = [0, 1.41338, 2.28305, 1.07233, -5.38434, -0.62251
  *   eqs. (3a, 3b)  optical/NIR, 1.1 ≤ x < 3.3, y = x − 1.82: polynomials (`opticalA`, `opticalB`)
  *   eqs. (4a, 4b)  UV, 3.3 ≤ x < 8, with F_a, F_b for x ≥ 5.9
  *   eqs. (5a, 5b)  far-UV, 8 ≤ x ≤ 10
- * (coefficients as in REFERENCE.md §1.3 [I]; equation numbers from memory — verify).
+ * (coefficients: shared/science/README.md §1.3, confirmed by the python3-extinction fixture; equation numbers from memory, shared/science/README.md §12).
  *
  * @param x  1/λ in µm⁻¹, 0.3 ≤ x ≤ 10 (not checked here)
  */
@@ -55,11 +55,11 @@ const ab: [number, number] = [0, 0]
  * Source: Cardelli, Clayton & Mathis 1989, ApJ 345, 245, eq. (1) A(λ)/A(V) = a(x) + b(x)/R_V with
  * eqs. (2)–(5) for a(x), b(x) (see `ccm89ABranches`).
  *
- * @param wavelengthAngstrom  λ in Å (air, REFERENCE.md §0), 1000–33 333 Å
+ * @param wavelengthAngstrom  λ in Å (air, shared/science/README.md §0), 1000–33 333 Å
  * @param rv  R_V = A(V)/E(B−V), dimensionless
  * @returns k(λ) in magnitudes of extinction per magnitude of E(B−V)
- * @throws {RangeError} outside 1000–33 333 Å (never extrapolated, REFERENCE.md §1.3)
- * @example ccm89K(6562.8, 3.1) // ≈ 2.535 (Hα; python3-extinction 0.4.6, via REFERENCE.md §1.4)
+ * @throws {RangeError} outside 1000–33 333 Å (never extrapolated, shared/science/README.md §1.3)
+ * @example ccm89K(6562.8, 3.1) // ≈ 2.535 (Hα; python3-extinction 0.4.6, via shared/science/README.md §1.4)
  */
 export function ccm89K(wavelengthAngstrom: number, rv: number): number {
   const x = 1e4 / wavelengthAngstrom // Å → µm⁻¹

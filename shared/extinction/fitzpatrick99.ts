@@ -3,7 +3,7 @@ import { evaluateSpline, naturalCubicSpline, type NaturalCubicSpline } from '../
 /** Service range of Fitzpatrick 1999: 1150 Å – 6 µm (F99 claims validity down to 1150 Å; project convention). */
 export const FITZPATRICK99_RANGE_ANGSTROM = { min: 1150, max: 60000 } as const
 
-/** Fitzpatrick & Massa 1990 UV parameters as fixed by Fitzpatrick 1999, §3 / Table 3 ([I], REFERENCE.md §1.3). */
+/** Fitzpatrick & Massa 1990 UV parameters as fixed by Fitzpatrick 1999, §3 / Table 3 (shared/science/README.md §1.3). */
 const F99_X0 = 4.596 // µm⁻¹, bump centre
 const F99_GAMMA = 0.99 // µm⁻¹, bump width
 const F99_C3 = 3.23
@@ -23,12 +23,12 @@ const F99_KNOT_X = [0, 1e4 / 26500, 1e4 / 12200, 1e4 / 6000, 1e4 / 5470, 1e4 / 4
  *   k = R_V + c₁ + c₂x + c₃ D(x) + c₄ F(x), D = x²/((x² − x₀²)² + x²γ²),
  *   c₂ = −0.824 + 4.717/R_V, c₁ = 2.030 − 3.007 c₂.
  * Source: Fitzpatrick 1999, PASP 111, 63, §3 and Table 3 (x₀ = 4.596, γ = 0.99, c₃ = 3.23, c₄ = 0.41);
- * Fitzpatrick & Massa 1990, ApJS 72, 163, eqs. (2)–(4) (equation numbers from memory — verify).
+ * Fitzpatrick & Massa 1990, ApJS 72, 163, eqs. (2)–(4) (equation numbers from memory, shared/science/README.md §12).
  *
  * @param x   1/λ in µm⁻¹ (meant for x ≥ 1/0.27)
  * @param rv  R_V, dimensionless
  * @returns k in mag/mag
- * @example fitzpatrick99UvK(1e4 / 2175, 3.1) // ≈ 9.535 (python3-extinction 0.4.6, via REFERENCE.md §1.4)
+ * @example fitzpatrick99UvK(1e4 / 2175, 3.1) // ≈ 9.535 (python3-extinction 0.4.6, via shared/science/README.md §1.4)
  */
 export function fitzpatrick99UvK(x: number, rv: number): number {
   const c2 = -0.824 + 4.717 / rv
@@ -48,7 +48,7 @@ export function fitzpatrick99UvK(x: number, rv: number): number {
  * The nine spline anchors k(x_i) of Fitzpatrick 1999 in the form used by python3-extinction 0.4.6 and
  * the Goddard IDL routine FM_UNRED it mirrors: k = 0 at x = 0; IR anchors 0.26469·R_V/3.1 and
  * 0.82925·R_V/3.1; optical anchors as polynomials in R_V (the *updated* values from E. Fitzpatrick,
- * not F99 Table 4 — python3-extinction documentation, via REFERENCE.md §1.3); the two UV anchors from
+ * not F99 Table 4 — python3-extinction documentation, via shared/science/README.md §1.3); the two UV anchors from
  * `fitzpatrick99UvK` at 2700 and 2600 Å.
  * Source: Fitzpatrick 1999, PASP 111, 63, §4 (spline construction); anchor values as in the library
  * (coefficients from memory, confirmed against python3-extinction 0.4.6 to 1e-14 by the fixture test).
@@ -95,7 +95,7 @@ function splineFor(rv: number): NaturalCubicSpline {
  * @param rv  R_V, dimensionless
  * @returns k(λ) in mag/mag
  * @throws {RangeError} outside 1150–60 000 Å
- * @example fitzpatrick99K(6562.8, 3.1) // ≈ 2.358 (Hα; python3-extinction 0.4.6, via REFERENCE.md §1.4)
+ * @example fitzpatrick99K(6562.8, 3.1) // ≈ 2.358 (Hα; python3-extinction 0.4.6, via shared/science/README.md §1.4)
  */
 export function fitzpatrick99K(wavelengthAngstrom: number, rv: number): number {
   if (!(wavelengthAngstrom >= FITZPATRICK99_RANGE_ANGSTROM.min && wavelengthAngstrom <= FITZPATRICK99_RANGE_ANGSTROM.max)) {

@@ -3,12 +3,12 @@ import { ccm89K, CCM89_RANGE_ANGSTROM } from './ccm89.ts'
 import { fitzpatrick99K, FITZPATRICK99_RANGE_ANGSTROM } from './fitzpatrick99.ts'
 import { odonnell94K, ODONNELL94_RANGE_ANGSTROM } from './odonnell94.ts'
 
-/** The extinction laws the service offers (API-CONTRACT.md `extinctionLaw`). */
+/** The extinction laws the service offers (public API `extinctionLaw`; shared/science/README.md §1.3). */
 export type ExtinctionLaw = 'ccm89' | 'odonnell94' | 'calzetti00' | 'fitzpatrick99'
 
 export const EXTINCTION_LAWS: readonly ExtinctionLaw[] = ['ccm89', 'odonnell94', 'calzetti00', 'fitzpatrick99']
 
-/** Valid wavelength range of each law in Å (REFERENCE.md §1.3). */
+/** Valid wavelength range of each law in Å (shared/science/README.md §1.3). */
 export const EXTINCTION_RANGE_ANGSTROM: Readonly<Record<ExtinctionLaw, { min: number; max: number }>> = {
   ccm89: CCM89_RANGE_ANGSTROM,
   odonnell94: ODONNELL94_RANGE_ANGSTROM,

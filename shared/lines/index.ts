@@ -1,13 +1,13 @@
 /**
- * Emission-line identifiers of the API contract and their rest wavelengths in air.
+ * Emission-line identifiers of the public API and their rest wavelengths in air.
  *
  * Source of the wavelengths: NIST Atomic Spectra Database values as commonly tabulated, quoted in
- * the team's science reference (REFERENCE.md §0; last digit from memory — verify against NIST).
- * Air wavelengths are used for every k(λ) evaluation (project convention, REFERENCE.md §0): the
+ * the team's science reference (shared/science/README.md §0; last digit from memory, shared/science/README.md §12 against NIST).
+ * Air wavelengths are used for every k(λ) evaluation (project convention, shared/science/README.md §0): the
  * extinction laws are parameterised in 1/λ and the air/vacuum difference changes k by ≤ 0.0014.
  */
 
-/** The 16 line identifiers of API-CONTRACT.md ("Line identifiers"). */
+/** The 16 line identifiers of the public API (openapi/openapi.json). */
 export type LineId =
   | 'halpha' | 'hbeta' | 'hgamma' | 'hdelta'
   | 'oiii_5007' | 'oiii_4959' | 'oiii_4363'
@@ -25,7 +25,7 @@ export interface LineInfo {
   source: string
 }
 
-const NIST = 'NIST ASD, via REFERENCE.md §0 (air)'
+const NIST = 'NIST ASD (air); shared/science/README.md §0'
 
 /**
  * Every contract line in a fixed order; the index of a line in this array is its column in the
@@ -41,7 +41,7 @@ export const LINES: readonly LineInfo[] = [
   { id: 'oiii_4363', label: '[O III] 4363', airAngstrom: 4363.21, source: NIST },
   { id: 'nii_6584', label: '[N II] 6584', airAngstrom: 6583.45, source: NIST },
   { id: 'nii_6548', label: '[N II] 6548', airAngstrom: 6548.05, source: NIST },
-  // compilations differ by ~0.05 Å for this auroral line (REFERENCE.md §0)
+  // compilations differ by ~0.05 Å for this auroral line (shared/science/README.md §0)
   { id: 'nii_5755', label: '[N II] 5755', airAngstrom: 5754.64, source: NIST },
   { id: 'sii_6717', label: '[S II] 6717', airAngstrom: 6716.44, source: NIST },
   { id: 'sii_6731', label: '[S II] 6731', airAngstrom: 6730.82, source: NIST },

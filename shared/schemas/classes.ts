@@ -1,5 +1,5 @@
 /**
- * Class vocabularies of API-CONTRACT.md, in a fixed order: the index is the integer code used by the
+ * Class vocabularies of the public API (openapi/openapi.json), in a fixed order: the index is the integer code used by the
  * columnar diagram endpoint and the database columns. Append only; never reorder.
  */
 export const CLASS_NAMES = {

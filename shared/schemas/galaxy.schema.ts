@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { textLine } from './text.ts'
 import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
 
-/** The contract's line identifiers (API-CONTRACT.md "Line identifiers"). */
+/** The line identifiers of the public API (shared/lines/index.ts; shared/science/README.md §0). */
 export const LINE_ID_LIST = [
   'halpha', 'hbeta', 'hgamma', 'hdelta', 'oiii_5007', 'oiii_4959', 'oiii_4363', 'nii_6584', 'nii_6548',
   'nii_5755', 'sii_6717', 'sii_6731', 'oi_6300', 'oii_3726', 'oii_3729', 'halpha_broad',
@@ -63,7 +63,7 @@ export type GalaxyInputDto = z.infer<typeof GalaxyInputSchema>
 
 export const EXTINCTION_LAWS = ['ccm89', 'odonnell94', 'calzetti00', 'fitzpatrick99'] as const
 
-/** Analysis settings (assumptions). Every field optional; defaults as in API-CONTRACT.md. */
+/** Analysis settings (assumptions). Every field optional; defaults in shared/diagnostics/settings.ts (shared/science/README.md §10). */
 export const SettingsInputSchema = z.object({
   extinctionLaw: z.enum(EXTINCTION_LAWS).default('ccm89'),
   rv: z.number().min(1).max(8).optional().meta({ description: 'R_V; default 3.1, or 4.05 (R′_V) for calzetti00' }),

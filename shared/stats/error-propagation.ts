@@ -1,7 +1,7 @@
 /**
- * First-order (linear) propagation of independent Gaussian flux errors (REFERENCE.md §9).
+ * First-order (linear) propagation of independent Gaussian flux errors (shared/science/README.md §9).
  * Source: first-order Taylor expansion of the output in the inputs, e.g. Bevington & Robinson 2003,
- * Data Reduction and Error Analysis, 3rd ed., eq. 3.14 (equation number from memory — verify).
+ * Data Reduction and Error Analysis, 3rd ed., eq. 3.14 (equation number from memory, shared/science/README.md §12).
  */
 
 export const LN10 = Math.LN10
@@ -54,7 +54,7 @@ export const ROLE_DUST_DENOMINATOR = 2
  * Hβ, Hγ for the fallback) and ln F_corr,i = ln F_i + 0.4 ln10 · k_i · E(B−V), the partial derivative
  * of Q is aᵢ with respect to ln F_i and ±η = ±Σᵢ aᵢ · 0.4 · kᵢ · C with respect to ln F_D1 / ln F_D2
  * (merged with aᵢ when term i is itself D1 or D2). Var(Q) = Σ (∂Q/∂ln F)² (σ/F)².
- * Source: REFERENCE.md §9 ("linearise the whole chain"; the Hα/Hβ covariance formula there is the
+ * Source: shared/science/README.md §9 ("linearise the whole chain"; the Hα/Hβ covariance formula there is the
  * one-term case); derivation, common practice.
  *
  * @param n            number of terms used (≤ the array lengths)

@@ -33,8 +33,8 @@ function walk(value: unknown, path: string): string | null {
 }
 
 /**
- * Throw if any number in the tree is NaN or ±Infinity (API-CONTRACT.md: "Every number in a response
- * is finite or null"). The server calls this on every response body of the science routes.
+ * Throw if any number in the tree is NaN or ±Infinity (public API rule: every number in a response
+ * is finite or null; shared/science/README.md §10). The server calls this on every response body of the science routes.
  *
  * @param value  any JSON-like tree
  * @param label  prefix for the error message

@@ -1,5 +1,5 @@
 /**
- * Detections, upper limits and limit ratios (REFERENCE.md §9, project convention).
+ * Detections, upper limits and limit ratios (shared/science/README.md §9, project convention).
  */
 
 /** State of one line of one galaxy in the kernel. */
@@ -8,7 +8,7 @@ export const LINE_ABSENT = 0
 export const LINE_DETECTED = 1
 /** an upper limit U on the flux */
 export const LINE_UPPER_LIMIT = 2
-/** a Monte Carlo draw that came out ≤ 0: no ratio can be formed from it (REFERENCE.md §9) */
+/** a Monte Carlo draw that came out ≤ 0: no ratio can be formed from it (shared/science/README.md §9) */
 export const LINE_NONPOSITIVE = 3
 
 /** Limit status of a ratio or of a log ratio. */
@@ -19,7 +19,7 @@ export const RATIO_LOWER = 2
 export const RATIO_NONE = 3
 
 /**
- * Whether a measured line counts as detected: F/σ ≥ minSnr (REFERENCE.md §9, project convention).
+ * Whether a measured line counts as detected: F/σ ≥ minSnr (shared/science/README.md §9, project convention).
  *
  * @param flux    F (any flux unit)
  * @param error   σ > 0 (same unit)
@@ -32,7 +32,7 @@ export function isDetection(flux: number, error: number, minSnr: number): boolea
 }
 
 /**
- * Upper limit given to an undetected line: U = minSnr·σ (REFERENCE.md §9, project convention).
+ * Upper limit given to an undetected line: U = minSnr·σ (shared/science/README.md §9, project convention).
  *
  * @param error   σ > 0 (flux unit)
  * @param minSnr  threshold > 0, dimensionless
@@ -46,7 +46,7 @@ export function upperLimitFromError(error: number, minSnr: number): number {
 /**
  * Limit status of F_num/F_den from the states of the two lines: a limit in the numerator gives an
  * upper limit, in the denominator a lower limit, in both (or a line absent/non-positive) no ratio.
- * Source: REFERENCE.md §9 (project convention).
+ * Source: shared/science/README.md §9 (project convention).
  *
  * @param numerator    line state (LINE_*)
  * @param denominator  line state (LINE_*)
@@ -65,7 +65,7 @@ export function ratioLimitStatus(numerator: number, denominator: number): number
 /**
  * State of the sum of two lines (e.g. [S II] 6717 + 6731): detected if both are detected, an upper
  * limit if both are known and at least one is a limit (the sum of the values bounds the sum from
- * above), otherwise unusable. Source: project convention following REFERENCE.md §9.
+ * above), otherwise unusable. Source: project convention following shared/science/README.md §9.
  *
  * @param a  line state
  * @param b  line state

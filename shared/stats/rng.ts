@@ -1,7 +1,7 @@
 /**
  * A seeded pseudo-random generator: xoshiro128** (32-bit state words), seeded with splitmix32.
  * Source: Blackman & Vigna 2021, "Scrambled linear pseudorandom number generators",
- * ACM Trans. Math. Softw. 47, 36 (xoshiro128**, §4; from memory — verify section); splitmix32 is the
+ * ACM Trans. Math. Softw. 47, 36 (xoshiro128**, §4; section from memory, shared/science/README.md §8); splitmix32 is the
  * 32-bit variant of Steele, Lea & Flood 2014 (OOPSLA) SplitMix (common practice).
  * Normal deviates use the Box–Muller transform (Box & Muller 1958, Ann. Math. Stat. 29, 610).
  *
@@ -18,7 +18,7 @@ export interface Rng {
 
 /**
  * splitmix32 step: a well-mixed 32-bit hash of `state`; used to expand one seed into four words.
- * Source: 32-bit SplitMix variant (common practice; constants from memory — verify).
+ * Source: 32-bit SplitMix variant (common practice; constants from memory, shared/science/README.md §8).
  *
  * @param state  any 32-bit integer
  * @returns a 32-bit unsigned integer

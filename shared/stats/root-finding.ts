@@ -6,7 +6,7 @@ const NO_PARAMS = new Float64Array(0)
 /**
  * Root of a continuous function on a bracket [lo, hi] with f(lo)·f(hi) ≤ 0, by Newton steps that
  * fall back to bisection whenever a step would leave the current bracket (a "safeguarded" Newton
- * method; Press et al. 2007, Numerical Recipes 3rd ed., §9.4, routine rtsafe — from memory, verify).
+ * method; Press et al. 2007, Numerical Recipes 3rd ed., §9.4, routine rtsafe — from memory, shared/science/README.md §12).
  * The bracket shrinks every iteration, so the method cannot diverge.
  *
  * @param f        the function (any units)

@@ -10,7 +10,7 @@ export interface NaturalCubicSpline {
  * Natural cubic spline through (x_i, y_i), i.e. the interpolating cubic spline with zero second
  * derivative at both end knots.
  * Source: Press et al. 2007, Numerical Recipes 3rd ed., §3.3, eqs. (3.3.7)–(3.3.9) (tridiagonal
- * system for the second derivatives; from memory — verify equation numbers).
+ * system for the second derivatives; from memory, shared/science/README.md §12 equation numbers).
  *
  * @param x  strictly increasing knot abscissae (any unit)
  * @param y  ordinates at the knots (any unit)
@@ -40,7 +40,7 @@ export function naturalCubicSpline(x: readonly number[], y: readonly number[]): 
 
 /**
  * Value of a natural cubic spline at `t` (the end cubics are used beyond the end knots).
- * Source: Press et al. 2007, Numerical Recipes 3rd ed., §3.3, eq. (3.3.3) (from memory — verify).
+ * Source: Press et al. 2007, Numerical Recipes 3rd ed., §3.3, eq. (3.3.3) (from memory, shared/science/README.md §12).
  *
  * @param s  spline from `naturalCubicSpline`
  * @param t  abscissa (unit of the knots)

@@ -99,7 +99,7 @@ export interface BuiltInput {
   invalid: Record<string, string>
 }
 
-/** The galaxy in the API's input shape (API-CONTRACT.md), or the fields that still need fixing. */
+/** The galaxy in the API's input shape (openapi/openapi.json), or the fields that still need fixing. */
 export function buildInput(s: CalculatorState): BuiltInput {
   const invalid: Record<string, string> = {}
   const num = (v: string, field: string, positive = false): number | undefined => {

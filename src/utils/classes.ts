@@ -53,7 +53,7 @@ export function classLabel(name: string | null | undefined): string {
   return CLASS_LABELS[name] ?? name
 }
 
-/** The classes each diagram can give (API contract), for filters and legends. */
+/** The classes each diagram can give (public API, openapi/openapi.json), for filters and legends. */
 export const CLASSES_BY_DIAGRAM = {
   overall: ['star-forming', 'composite', 'seyfert', 'liner', 'ambiguous', 'unclassified'],
   nii: ['star-forming', 'composite', 'agn', 'unclassified'],

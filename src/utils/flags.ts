@@ -2,7 +2,7 @@ import { lineLabel, RATIO_LABELS } from './lines'
 import { DIAGRAM_LABELS } from './classes'
 
 /**
- * Flags are terse machine words (API contract, science/REFERENCE.md §10). People reading a galaxy
+ * Flags are terse machine words (public API, openapi/openapi.json; shared/science/README.md §10). People reading a galaxy
  * page need to know what a flag means for the number beside it, so each gets a plain caution.
  * Unknown flags are still shown, in words, so a newer server never hides a warning from an older page.
  */

@@ -1,7 +1,7 @@
 #!/usr/bin/env python3
 """The deterministic science chain of shared/diagnostics/kernel.ts written as vectorised numpy, for the
 benchmark in science.bench.ts (which writes the synthetic galaxies to a binary file and runs this script
-as a child process). Same formulas, same conventions (REFERENCE.md), same outputs in spirit: thresholds,
+as a child process). Same formulas, same conventions (shared/science/README.md), same outputs in spirit: thresholds,
 E(B-V) with the Hgamma fallback and clipping, dereddened fluxes and errors, ratios and their errors and
 limit states, classes with the limit rules, WHAN, overall class, perpendicular distances, densities,
 temperatures iterated with the [S II] density, metallicities, D_L, SFR and black-hole masses.
@@ -131,7 +131,7 @@ def run(cols, n):
     ebv_err = cdust / LN10 * np.sqrt(r1 ** 2 + r2 ** 2)
     ebv = np.where(np.isnan(raw), 0.0, np.maximum(raw, 0.0))
     dust_on = np.where(raw > 0, cdust, 0.0)
-    # dereddened fluxes and errors (covariance with the dust lines, REFERENCE.md section 9)
+    # dereddened fluxes and errors (covariance with the dust lines, shared/science/README.md section 9)
     factor = np.exp(0.4 * LN10 * K[:, None] * ebv[None, :])
     dfl = np.where(det | lim, fl * factor, np.nan)
     eta = 0.4 * K[:, None] * dust_on[None, :]
@@ -201,7 +201,7 @@ def run(cols, n):
     whan = np.where(sxn == 3, 0, whan)
     whan = np.where(ew_ha < 3, np.where((ew_ha < 0.5) & (ew_nii < 0.5), 10, 9), whan)
     whan = np.where(np.isnan(ew_ha), 0, whan)
-    # overall (Kewley et al. 2006 with the REFERENCE.md section 2.4 conventions)
+    # overall (Kewley et al. 2006 with the shared/science/README.md section 2.4 conventions)
     have_s, have_o = sii != 0, oi != 0
     side = np.where(have_s, sii, oi)
     agree = ~(have_s & have_o) | (sii == oi)
@@ -255,7 +255,7 @@ def run(cols, n):
             var = var + np.where((is1 | is2) & (dust_on > 0), 0.0, (a * r) ** 2)
         return var + (cd1 * r1) ** 2 + (cd2 * r2) ** 2
 
-    # temperatures iterated with the [S II] density (REFERENCE.md section 4)
+    # temperatures iterated with the [S II] density (shared/science/README.md section 4)
     def te(coef, ex, dc, strong, weak, aur, fixed):
         usable = det[strong] & det[aur]
         have_w = det[weak]

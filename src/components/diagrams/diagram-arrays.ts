@@ -35,7 +35,7 @@ export interface DiagramArrays {
   palettes: Record<ClassDiagram, [number, number, number][]>
 }
 
-/** Upper limit in x points left, in y points down; lower limits the other way (REFERENCE.md §9). */
+/** Upper limit in x points left, in y points down; lower limits the other way (shared/science/README.md §9). */
 export function limitSymbol(xLimit: number, yLimit: number): string {
   if (xLimit === 0 && yLimit === 0) return 'circle'
   if (xLimit !== 0 && yLimit !== 0) return 'diamond'

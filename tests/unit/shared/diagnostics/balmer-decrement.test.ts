@@ -10,14 +10,14 @@ const ebvFor = (law: ExtinctionLaw, rv: number, dec: number, intrinsic: number) 
 
 describe('colour excess from the Balmer decrement', () => {
   it('uses the Case B and AGN intrinsic ratios of the literature', () => {
-    // Osterbrock & Ferland 2006, Table 4.4 (via REFERENCE.md §1.1 [I]): 2.86 and Hγ/Hβ 0.468
+    // Osterbrock & Ferland 2006, Table 4.4 (via shared/science/README.md §1.1): 2.86 and Hγ/Hβ 0.468
     expect(INTRINSIC_HALPHA_HBETA_CASE_B).toBe(2.86)
     expect(INTRINSIC_HGAMMA_HBETA_CASE_B).toBe(0.468)
-    // Halpern & Steiner 1983, ApJL 269, L37; Gaskell & Ferland 1984, PASP 96, 393 (REFERENCE.md §1.1 [P])
+    // Halpern & Steiner 1983, ApJL 269, L37; Gaskell & Ferland 1984, PASP 96, 393 (shared/science/README.md §1.1)
     expect(INTRINSIC_HALPHA_HBETA_AGN).toBe(3.1)
   })
-  it('reproduces the REFERENCE.md §1.2 check table for all four laws', () => {
-    // python3-extinction 0.4.6, via REFERENCE.md §1.2 [C]; 4 d.p. → ±0.00006
+  it('reproduces the shared/science/README.md §1.2 check table for all four laws', () => {
+    // python3-extinction 0.4.6, via shared/science/README.md §1.2; 4 d.p. → ±0.00006
     const table: Array<[ExtinctionLaw, number, number, number, number]> = [
       ['ccm89', 3.1, 0.3392, 0.5648, 0.2577],
       ['odonnell94', 3.1, 0.3183, 0.5301, 0.2419],
@@ -29,22 +29,22 @@ describe('colour excess from the Balmer decrement', () => {
       expect(Math.abs(ebvFor(law, rv, 5, 2.86) - e5), law).toBeLessThan(6e-5)
       expect(Math.abs(ebvFor(law, rv, 4, 3.1) - e4agn), law).toBeLessThan(6e-5)
     }
-    // A_V = R_V E(B−V): CCM89 1.0515 and Calzetti 1.1598 (REFERENCE.md §1.2 [C])
+    // A_V = R_V E(B−V): CCM89 1.0515 and Calzetti 1.1598 (shared/science/README.md §1.2)
     expect(Math.abs(3.1 * ebvFor('ccm89', 3.1, 4, 2.86) - 1.0515)).toBeLessThan(1e-4)
     expect(Math.abs(4.05 * ebvFor('calzetti00', 4.05, 4, 2.86) - 1.1598)).toBeLessThan(1e-4)
   })
   it('clips a decrement below intrinsic at 0 with balmer-below-intrinsic', () => {
-    // API-CONTRACT.md; REFERENCE.md §1.2 (common practice)
+    // public API (openapi/openapi.json); shared/science/README.md §1.2 (common practice)
     expect(colourExcessFromBalmer(2.5, 2.86, 3.609, 2.535)).toEqual({ value: 0, flags: ['balmer-below-intrinsic'] })
     expect(colourExcessFromBalmer(2.86, 2.86, 3.609, 2.535)).toEqual({ value: 0, flags: [] })
   })
   it('gives zero from the Hγ fallback at the intrinsic Hγ/Hβ and positive E for a redder ratio', () => {
-    // REFERENCE.md §1.2 fallback formula (project convention): identity at the intrinsic ratio
+    // shared/science/README.md §1.2 fallback formula (project convention): identity at the intrinsic ratio
     expect(colourExcessFromHgammaRaw(0.468, 0.468, 4.174, 3.609)).toBe(0)
     expect(colourExcessFromHgammaRaw(0.4, 0.468, 4.174, 3.609)).toBeGreaterThan(0)
   })
   it('dereddening inverts reddening exactly', () => {
-    // F_corr = F_obs 10^(0.4 k E) (REFERENCE.md §1.2): identity
+    // F_corr = F_obs 10^(0.4 k E) (shared/science/README.md §1.2): identity
     expect(dereddeningFactor(3.609, 0.3) * Math.pow(10, -0.4 * 3.609 * 0.3)).toBeCloseTo(1, 14)
   })
 })

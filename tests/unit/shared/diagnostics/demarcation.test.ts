@@ -5,8 +5,8 @@ import {
 } from '../../../../shared/diagnostics/demarcation.ts'
 
 describe('demarcation curves', () => {
-  it('take the published values (REFERENCE.md §2.2 [C])', () => {
-    // Kauffmann et al. 2003, MNRAS 346, 1055, eq. 1; curve values via REFERENCE.md §2.2 [C]; 4 d.p.
+  it('take the published values (shared/science/README.md §2.2)', () => {
+    // Kauffmann et al. 2003, MNRAS 346, 1055, eq. 1; curve values via shared/science/README.md §2.2; 4 d.p.
     const ka = [[-1, 0.719], [-0.5, 0.1909], [-0.4, -0.0556], [-0.2, -1.14], [0, -10.9]]
     for (const [x, y] of ka) expect(kauffmann2003Line(x)).toBeCloseTo(y, 4)
     // Kewley et al. 2001, ApJ 556, 121, eqs. 5–7
@@ -16,7 +16,7 @@ describe('demarcation curves', () => {
     for (const [x, y] of [[-2, 0.8123], [-1.5, 0.5278], [-1, -0.4505]]) expect(kewley2001OiLine(x)).toBeCloseTo(y, 4)
   })
   it('returns null at and right of the asymptote: the Ka03 trap at x = 0.10', () => {
-    // REFERENCE.md §2.2: evaluating the formula at x = 0.10 gives +13.5 and would call the point star-forming
+    // shared/science/README.md §2.2: evaluating the formula at x = 0.10 gives +13.5 and would call the point star-forming
     expect(KA03.a / (0.1 - KA03.x0) + KA03.c).toBeCloseTo(13.5, 10)
     expect(kauffmann2003Line(0.1)).toBeNull()
     expect(kauffmann2003Line(0.05)).toBeNull()
@@ -24,8 +24,8 @@ describe('demarcation curves', () => {
     expect(isBelowHyperbola(KA03, 0.1, -50)).toBe(false)
     expect(hyperbolaY(KE01_OI, -0.59)).toBeNull()
   })
-  it('meet at the intersections REFERENCE.md §2.2 lists', () => {
-    // REFERENCE.md §2.2 [C]; 4 d.p. of x → curves agree to ~1e-3 there
+  it('meet at the intersections shared/science/README.md §2.2 lists', () => {
+    // shared/science/README.md §2.2; 4 d.p. of x → curves agree to ~1e-3 there
     expect(Math.abs((kauffmann2003Line(-1.2805) as number) - (kewley2001NiiLine(-1.2805) as number))).toBeLessThan(2e-4)
     expect(kauffmann2003Line(-1.2805)).toBeCloseTo(0.8415, 3)
     expect(Math.abs(straightLineY(KE06_SII, -0.3146) - (kewley2001SiiLine(-0.3146) as number))).toBeLessThan(1e-3)
@@ -34,9 +34,9 @@ describe('demarcation curves', () => {
   })
 })
 
-describe('signed perpendicular distances (REFERENCE.md §2.6)', () => {
+describe('signed perpendicular distances (shared/science/README.md §2.6)', () => {
   it('reproduce the check values', () => {
-    // REFERENCE.md §2.6 [C]; 4 d.p. → ±6e-5
+    // shared/science/README.md §2.6; 4 d.p. → ±6e-5
     expect(Math.abs(signedDistanceToHyperbola(KE01_NII, 0.6, 0) - 0.6027)).toBeLessThan(6e-5)
     expect(Math.abs(signedDistanceToHyperbola(KA03, 0.6, 0) - 0.9761)).toBeLessThan(6e-5)
     expect(Math.abs(signedDistanceToLine(S07_NII, 0.6, 0) + 0.7448)).toBeLessThan(6e-5)
@@ -44,7 +44,7 @@ describe('signed perpendicular distances (REFERENCE.md §2.6)', () => {
     expect(Math.abs(signedDistanceToHyperbola(KE01_NII, -0.5515, -0.0267) + 0.4636)).toBeLessThan(6e-5)
   })
   it('gives +0.0070 dex for a point 0.01 dex above Ke01 at x = −0.30', () => {
-    // REFERENCE.md §2.6 [C] quotes (−0.30, 0.49885) → vertical +0.0100, perpendicular +0.0070; but
+    // shared/science/README.md §2.6 quotes (−0.30, 0.49885) → vertical +0.0100, perpendicular +0.0070; but
     // 0.49885 is Ke01(−0.40) + 0.01 (Ke01(−0.30) = 0.39779). The perpendicular 0.0070 matches x = −0.30
     // (slope −1.029 there: 0.01/√(1 + 1.029²) = 0.00697), so the test uses y = Ke01(−0.30) + 0.01.
     const y = (kewley2001NiiLine(-0.3) as number) + 0.01

@@ -29,7 +29,7 @@ describe('columnar kernel', () => {
   })
   it('precomputes k for every line and reports a law range error naming line and law', () => {
     const p = prepareSettings(settingsWith({ extinctionLaw: 'calzetti00', rv: 4.05 }))
-    expect(p.k[LINE_INDEX.halpha]).toBeCloseTo(3.326, 3) // python3-extinction 0.4.6, via REFERENCE.md §1.4
+    expect(p.k[LINE_INDEX.halpha]).toBeCloseTo(3.326, 3) // python3-extinction 0.4.6, via shared/science/README.md §1.4
     const e = new ExtinctionRangeError('oii_3726', 'calzetti00', new RangeError('x'))
     expect(e).toBeInstanceOf(RangeError)
     expect(e.message).toMatch(/oii_3726.*calzetti00/)

@@ -9,8 +9,8 @@ const fixture = JSON.parse(readFileSync(new URL('../../../fixtures/science/cosmo
 }
 
 describe('luminosity distance (Hogg 1999, astro-ph/9905116, eqs. 15, 16, 21)', () => {
-  it('matches the REFERENCE.md §6 check values', () => {
-    // astropy 5.2.1 FlatLambdaCDM, via REFERENCE.md §6 [C]; 4 d.p. → ±6e-5 Mpc
+  it('matches the shared/science/README.md §6 check values', () => {
+    // astropy 5.2.1 FlatLambdaCDM, via shared/science/README.md §6; 4 d.p. → ±6e-5 Mpc
     const table: Array<[number, number]> = [[0.01, 43.1582], [0.05, 222.2891], [0.1, 460.2999], [0.5, 2832.9381], [1.0, 6607.6576]]
     for (const [z, d] of table) expect(Math.abs(luminosityDistanceMpc(z, 70, 0.3) - d), `z=${z}`).toBeLessThan(6e-5)
   })
@@ -34,8 +34,8 @@ describe('luminosity distance (Hogg 1999, astro-ph/9905116, eqs. 15, 16, 21)', (
 })
 
 describe('Hα luminosity and SFR', () => {
-  it('reproduces the REFERENCE.md §6 checks', () => {
-    // REFERENCE.md §6 [C]: F = 1e-14 at z = 0.05 → L = 5.912e40, SFR_K98 0.467, SFR_KE12 0.318; z = 0.1 → 2.535e41, 2.003, 1.361
+  it('reproduces the shared/science/README.md §6 checks', () => {
+    // shared/science/README.md §6: F = 1e-14 at z = 0.05 → L = 5.912e40, SFR_K98 0.467, SFR_KE12 0.318; z = 0.1 → 2.535e41, 2.003, 1.361
     const l05 = lineLuminosity(1e-14, luminosityDistanceMpc(0.05, 70, 0.3))
     expect(l05 / 5.912e40).toBeCloseTo(1, 3)
     expect(sfrKennicutt98(l05)).toBeCloseTo(0.467, 3) // Kennicutt 1998, ARA&A 36, 189
@@ -46,11 +46,11 @@ describe('Hα luminosity and SFR', () => {
     expect(sfrKennicuttEvans12(l1)).toBeCloseTo(1.361, 3)
   })
   it('KE12/K98 = 0.680', () => {
-    // REFERENCE.md §6 [C]: 10^−41.27 / 7.9e-42 = 0.680
+    // shared/science/README.md §6: 10^−41.27 / 7.9e-42 = 0.680
     expect(sfrKennicuttEvans12(1e41) / sfrKennicutt98(1e41)).toBeCloseTo(0.68, 3)
   })
   it('uses 1 Mpc = 3.0856775814913673e24 cm', () => {
-    // IAU 2015 parsec definition (REFERENCE.md §6)
+    // IAU 2015 parsec definition (shared/science/README.md §6)
     expect(CM_PER_MPC).toBe(3.0856775814913673e24)
   })
 })

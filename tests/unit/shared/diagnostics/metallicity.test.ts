@@ -3,7 +3,7 @@ import { METALLICITY_CALIBRATIONS, n2M13, n2Pp04, n2Pp04Cubic, n2s2haD16, o3n2M1
 
 const cal = (key: string) => METALLICITY_CALIBRATIONS.find((c) => c.key === key)!
 
-describe('strong-line metallicities (REFERENCE.md §5 check values [C], 3 d.p. → ±0.0006)', () => {
+describe('strong-line metallicities (shared/science/README.md §5 check values, 3 d.p. → ±0.0006)', () => {
   it('N2: Pettini & Pagel 2004 linear and cubic, Marino et al. 2013', () => {
     // Pettini & Pagel 2004, MNRAS 348, L59; Marino et al. 2013, A&A 559, A114, eq. 4
     const n2 = [-1.5, -1.0, -0.5, -0.35]
@@ -27,7 +27,7 @@ describe('strong-line metallicities (REFERENCE.md §5 check values [C], 3 d.p. �
     })
   })
   it('N2S2Hα: Dopita et al. 2016, flagged beyond 9.05', () => {
-    // Dopita et al. 2016, Ap&SS 361, 61; near-linear up to 9.05 [P, abstract]
+    // Dopita et al. 2016, Ap&SS 361, 61; near-linear up to 9.05 
     const y = [-1.0, -0.5, 0.0, 0.3]
     const z = [7.694, 8.27, 8.771, 9.105]
     y.forEach((v, j) => expect(Math.abs(n2s2haD16(v) - z[j])).toBeLessThan(6e-4))
@@ -35,7 +35,7 @@ describe('strong-line metallicities (REFERENCE.md §5 check values [C], 3 d.p. �
     expect(cal('n2s2haD16').inRange(0.3)).toBe(false)
   })
   it('have the published index ranges (open intervals)', () => {
-    // REFERENCE.md §5 table
+    // shared/science/README.md §5 table
     expect(cal('n2Pp04').inRange(-0.3)).toBe(false)
     expect(cal('n2Pp04').inRange(-0.31)).toBe(true)
     expect(cal('n2Pp04Cubic').inRange(-2.5)).toBe(false)

@@ -28,7 +28,7 @@ const throwsAt = (fn: () => unknown, path: string) => {
 
 describe('public entry point basics', () => {
   it('has the documented defaults and a method version', () => {
-    // API-CONTRACT.md settings defaults
+    // settings defaults of the public API (shared/science/README.md §10)
     expect(S).toMatchObject({ extinctionLaw: 'ccm89', rv: 3.1, intrinsicBalmer: 2.86, electronTemperature: 10000, minSnr: 3,
       allowNegative: false, sfrCalibration: 'kennicutt98', cosmology: { h0: 70, omegaM: 0.3 }, monteCarlo: { draws: 0, seed: 1 } })
     expect(METHOD_VERSION).toMatch(/^\d{4}\.\d+\.\d+$/)
@@ -40,8 +40,8 @@ describe('public entry point basics', () => {
 })
 
 describe('dust', () => {
-  it('gives the REFERENCE.md §1.2 E(B−V) and A_V through the pipeline', () => {
-    // python3-extinction 0.4.6, via REFERENCE.md §1.2 [C]: ccm89 Hα/Hβ = 4 → 0.3392, 1.0515; calzetti00 → 0.2864, 1.1598
+  it('gives the shared/science/README.md §1.2 E(B−V) and A_V through the pipeline', () => {
+    // python3-extinction 0.4.6, via shared/science/README.md §1.2: ccm89 Hα/Hβ = 4 → 0.3392, 1.0515; calzetti00 → 0.2864, 1.1598
     const g = galaxy('d', { halpha: 400, hbeta: 100 })
     const r = run(g)
     expect(r.extinction.ebv as number).toBeCloseTo(0.3392, 4)
@@ -51,8 +51,8 @@ describe('dust', () => {
     expect(c.extinction.ebv as number).toBeCloseTo(0.2864, 4)
     expect(c.extinction.av as number).toBeCloseTo(1.1598, 4)
   })
-  it('gives E(B−V) errors by REFERENCE.md §9 and A_λ = k E(B−V)', () => {
-    // σ_E = 2.5/(k_Hβ − k_Hα)/ln10 · √((σα/Fα)² + (σβ/Fβ)²) (REFERENCE.md §9)
+  it('gives E(B−V) errors by shared/science/README.md §9 and A_λ = k E(B−V)', () => {
+    // σ_E = 2.5/(k_Hβ − k_Hα)/ln10 · √((σα/Fα)² + (σβ/Fβ)²) (shared/science/README.md §9)
     const r = run(galaxy('d', { halpha: 400, hbeta: 100 }, 20))
     const kHa = extinctionK('ccm89', 6562.8, 3.1)
     const kHb = extinctionK('ccm89', 4861.33, 3.1)
@@ -61,12 +61,12 @@ describe('dust', () => {
     expect(r.extinction.avError as number).toBeCloseTo(3.1 * sigma, 12)
     const ha = r.dereddened.halpha as { flux: number; error: number; aLambda: number }
     expect(ha.aLambda).toBeCloseTo(kHa * (r.extinction.ebv as number), 12)
-    // Hα with its covariance: (σ/F)² = (k_Hβ/Δk)²(σα/Fα)² + (k_Hα/Δk)²(σβ/Fβ)² (REFERENCE.md §9)
+    // Hα with its covariance: (σ/F)² = (k_Hβ/Δk)²(σα/Fα)² + (k_Hα/Δk)²(σβ/Fβ)² (shared/science/README.md §9)
     const dk = kHb - kHa
     expect(ha.error / ha.flux).toBeCloseTo(Math.sqrt((kHb / dk) ** 2 * 0.0025 + (kHa / dk) ** 2 * 0.0025), 12)
   })
   it('clips a decrement below intrinsic: ebv 0, balmer-below-intrinsic, ebvError of the raw estimate, no correction', () => {
-    // API-CONTRACT.md; REFERENCE.md §1.2
+    // public API (openapi/openapi.json); shared/science/README.md §1.2
     const r = run(galaxy('b', { halpha: 250, hbeta: 100, oiii_5007: 50 }, 20))
     expect(r.extinction).toMatchObject({ ebv: 0, av: 0, source: 'halpha-hbeta' })
     expect(r.extinction.flags).toContain('balmer-below-intrinsic')
@@ -75,7 +75,7 @@ describe('dust', () => {
     expect(r.flags).toContain('balmer-below-intrinsic')
   })
   it('falls back to Hγ/Hβ when Hα is missing (balmer-from-hgamma)', () => {
-    // REFERENCE.md §1.2 fallback (project convention), intrinsic Hγ/Hβ = 0.468
+    // shared/science/README.md §1.2 fallback (project convention), intrinsic Hγ/Hβ = 0.468
     const kHg = extinctionK('ccm89', 4340.47, 3.1)
     const kHb = extinctionK('ccm89', 4861.33, 3.1)
     const hg = 100 * 0.468 * Math.pow(10, -0.4 * (kHg - kHb) * 0.3)
@@ -85,7 +85,7 @@ describe('dust', () => {
     expect(r.flags).toContain('balmer-from-hgamma')
   })
   it('without a decrement: ebv null, no-balmer-decrement, observed fluxes with aLambda null, sfr-not-dereddened', () => {
-    // REFERENCE.md §1.2, §6
+    // shared/science/README.md §1.2, §6
     const r = run(galaxy('n', { halpha: 400, nii_6584: 100 }, 20, { redshift: 0.05 }))
     expect(r.extinction.ebv).toBeNull()
     expect(r.extinction.source).toBeNull()
@@ -95,7 +95,7 @@ describe('dust', () => {
   })
 })
 
-describe('detections and limits (REFERENCE.md §9)', () => {
+describe('detections and limits (shared/science/README.md §9)', () => {
   it('turns a line below minSnr into an upper limit U = minSnr·σ with below-min-snr:<line>', () => {
     const g = galaxy('l', fluxesAt(-0.5, -0.3, -0.5, -1.6))
     g.lines.oiii_5007 = { flux: 10, error: 5 }
@@ -108,7 +108,7 @@ describe('detections and limits (REFERENCE.md §9)', () => {
     expect(r.ratioErrors.oiiiHb).toBeNull()
   })
   it('[N II] undetected, point below Ka03 → star-forming', () => {
-    // REFERENCE.md §9 example 1
+    // shared/science/README.md §9 example 1
     const g = galaxy('e1', fluxesAt(-0.8, -0.2, -0.5, -1.6))
     g.lines.nii_6584 = { upperLimit: 286 * Math.pow(10, -0.8) }
     const r = run(g)
@@ -117,7 +117,7 @@ describe('detections and limits (REFERENCE.md §9)', () => {
     expect(r.distances.nii).toBeNull() // no exact point
   })
   it('Hβ undetected, limit point above Ke01 → agn', () => {
-    // REFERENCE.md §9 example 2
+    // shared/science/README.md §9 example 2
     const g = galaxy('e2', fluxesAt(0.0, 0.6, 0.0, -0.5))
     g.lines.hbeta = { upperLimit: 100 }
     const r = run(g)
@@ -126,7 +126,7 @@ describe('detections and limits (REFERENCE.md §9)', () => {
     expect(r.extinction.ebv).toBeNull()
   })
   it('[O III] upper limit with the point between Ka03 and Ke01 → unclassified, limit-not-decisive:nii', () => {
-    // REFERENCE.md §9 example 3
+    // shared/science/README.md §9 example 3
     const g = galaxy('e3', fluxesAt(-0.3, 0.0, -0.5, -1.6))
     g.lines.oiii_5007 = { upperLimit: 100 }
     const r = run(g)
@@ -164,20 +164,20 @@ describe('classes and their flags', () => {
     expect(run(galaxy('am', fluxesAt(-0.6, -0.3, 0.0, -1.8))).classes.overall).toBe('ambiguous')
   })
   it('handles the Ka03 asymptote trap at x = 0.10 in the pipeline', () => {
-    // REFERENCE.md §2.2: never star-forming right of x = 0.05
+    // shared/science/README.md §2.2: never star-forming right of x = 0.05
     const r = run(galaxy('as', fluxesAt(0.1, -1.0, -0.6, -1.8)))
     expect(r.classes.nii).toBe('composite')
     expect(r.flags).toContain('beyond-asymptote:nii-ka03')
     expect(r.distances.nii?.ka03 as number).toBeGreaterThan(0)
   })
   it('flags the curve-crossing region (Ka03 above Ke01 for x < −1.2805) and keeps it star-forming', () => {
-    // REFERENCE.md §2.2: at x = −1.5, Ke01 = 0.8804 < y = 0.89 < Ka03 = 0.9065
+    // shared/science/README.md §2.2: at x = −1.5, Ke01 = 0.8804 < y = 0.89 < Ka03 = 0.9065
     const r = run(galaxy('cc', fluxesAt(-1.5, 0.89, -0.6, -1.8)))
     expect(r.classes.nii).toBe('star-forming')
     expect(r.flags).toContain('curve-crossing-region')
   })
   it('names why a diagram is unclassified and applies the missing-diagram conventions', () => {
-    // REFERENCE.md §2.4 (project convention)
+    // shared/science/README.md §2.4 (project convention)
     const f = fluxesAt(-0.6, -0.3, -0.6, -1.8)
     delete f.oi_6300
     const noOi = run(galaxy('x1', f))
@@ -195,7 +195,7 @@ describe('classes and their flags', () => {
     expect(noNii.flags).toEqual(expect.arrayContaining(['missing-line:nii', 'overall-needs-nii', 'whan-needs-ew-halpha']))
   })
   it('gives WHAN classes when EW(Hα) is given', () => {
-    // Cid Fernandes et al. 2011; REFERENCE.md §2.5 checks
+    // Cid Fernandes et al. 2011; shared/science/README.md §2.5 checks
     const f = fluxesAt(-0.395, 0.2, -0.5, -1.5)
     expect(run(galaxy('w1', f, 50, { ew: { halpha: 6.05 } })).classes.whan).toBe('strong-agn')
     expect(run(galaxy('w2', fluxesAt(-0.55, 0, -0.5, -1.5), 50, { ew: { halpha: 42 } })).classes.whan).toBe('star-forming')
@@ -205,7 +205,7 @@ describe('classes and their flags', () => {
     expect(r.flags).toContain('whan-passive-needs-ew-nii')
   })
   it('gives distances with first-order errors and the nearest curve', () => {
-    // REFERENCE.md §2.6: (0.60, 0.00) → Ke01 +0.6027, Ka03 +0.9761, S07 −0.7448
+    // shared/science/README.md §2.6: (0.60, 0.00) → Ke01 +0.6027, Ka03 +0.9761, S07 −0.7448
     const r = run(galaxy('dd', fluxesAt(0.6, 0.0, 0.0, -0.5)))
     const d = r.distances.nii!
     expect(d.ke01).toBeCloseTo(0.6027, 4)
@@ -219,10 +219,10 @@ describe('classes and their flags', () => {
 })
 
 describe('density, temperature, metallicity, SFR, black hole through the pipeline', () => {
-  it('density with limit flags and ne null (REFERENCE.md §3)', () => {
+  it('density with limit flags and ne null (shared/science/README.md §3)', () => {
     const g = galaxy('dn', { sii_6717: 120, sii_6731: 100, oii_3729: 146, oii_3726: 100 })
     const r = run(g)
-    expect(r.density.sii?.ne as number).toBeCloseTo(203.8, 1) // Sanders et al. 2016 via REFERENCE.md §3 [C]
+    expect(r.density.sii?.ne as number).toBeCloseTo(203.8, 1) // Sanders et al. 2016 via shared/science/README.md §3
     expect(r.density.oii?.flag).toBe('low-density-limit') // 1.46 ≥ R(1) = 1.4561
     expect(r.density.oii?.ne).toBeNull()
     expect(r.flags).toContain('low-density-limit:oii')
@@ -230,7 +230,7 @@ describe('density, temperature, metallicity, SFR, black hole through the pipelin
     expect(hi.density.sii).toMatchObject({ ne: null, flag: 'high-density-limit' })
   })
   it('[O III] temperature from dereddened fluxes, n_e assumed without [S II]', () => {
-    // REFERENCE.md §4 [C]: ratio 211.96 at n_e = 100 → 10 000 K
+    // shared/science/README.md §4: ratio 211.96 at n_e = 100 → 10 000 K
     const g = galaxy('t1', { halpha: 286, hbeta: 100, oiii_5007: 300, oiii_4959: 100.67, oiii_4363: 400.67 / 211.96 })
     const r = run(g)
     expect(r.temperature.oiii?.te as number).toBeCloseTo(10000, -1)
@@ -248,10 +248,10 @@ describe('density, temperature, metallicity, SFR, black hole through the pipelin
     expect(run(lim).flags).toContain('te-upper-limit:oiii')
     const fixed = run(galaxy('t4', { nii_6584: 300, nii_5755: 400 / 99.82 }))
     expect(fixed.temperature.nii?.flags).toContain('te-from-fixed-doublet-ratio')
-    expect(fixed.temperature.nii?.te as number).toBeCloseTo(10000, -2) // REFERENCE.md §4: 6584/6548 ≈ 3.05 → ratio ≈ 99.8
+    expect(fixed.temperature.nii?.te as number).toBeCloseTo(10000, -2) // shared/science/README.md §4: 6584/6548 ≈ 3.05 → ratio ≈ 99.8
   })
   it('metallicity for star-forming nuclei only, with range flags', () => {
-    // REFERENCE.md §5 [C]: N2 = −1.0 → PP04 8.330, cubic 8.280, M13 8.281
+    // shared/science/README.md §5: N2 = −1.0 → PP04 8.330, cubic 8.280, M13 8.281
     const sf = run(galaxy('m1', fluxesAt(-1.0, -0.2, -0.6, -1.8, 2.8))) // below Case B: E(B−V) clipped to 0, no dust term
     expect(sf.metallicity.n2Pp04 as number).toBeCloseTo(8.33, 3)
     expect(sf.metallicity.n2Pp04Cubic as number).toBeCloseTo(8.28, 3)
@@ -268,8 +268,8 @@ describe('density, temperature, metallicity, SFR, black hole through the pipelin
     expect(agn.metallicity.n2Pp04).toBeNull()
     expect(agn.metallicity.flags).toEqual(['metallicity-not-star-forming'])
   })
-  it('SFR from dereddened Hα (REFERENCE.md §6 checks) and its flags', () => {
-    // F_corr(Hα) = 1e-14 at z = 0.05 → L = 5.912e40, SFR_K98 = 0.467, SFR_KE12 = 0.318 (REFERENCE.md §6 [C])
+  it('SFR from dereddened Hα (shared/science/README.md §6 checks) and its flags', () => {
+    // F_corr(Hα) = 1e-14 at z = 0.05 → L = 5.912e40, SFR_K98 = 0.467, SFR_KE12 = 0.318 (shared/science/README.md §6)
     const f = fluxesAt(-0.6, -0.3, -0.6, -1.8)
     const scale = 1000 / (f.halpha as number)
     for (const k of Object.keys(f) as Array<keyof typeof f>) f[k] = (f[k] as number) * scale

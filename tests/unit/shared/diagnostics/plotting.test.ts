@@ -24,7 +24,7 @@ describe('plotting helpers', () => {
     expect(c.ne[0]).toBe(1)
     expect(c.ne[100]).toBeCloseTo(1e5, 6)
     expect(electronDensityFromSiiRatio(c.ratio[40], 12000) as number).toBeCloseTo(c.ne[40], 6)
-    expect(oiiRatioCurve(1e4).ratio[0]).toBeCloseTo(1.4561, 4) // REFERENCE.md §3 [C]
+    expect(oiiRatioCurve(1e4).ratio[0]).toBeCloseTo(1.4561, 4) // shared/science/README.md §3
     expect(() => siiRatioCurve(0)).toThrow(RangeError)
   })
   it('give a reddening vector that scales with E(B−V)', () => {

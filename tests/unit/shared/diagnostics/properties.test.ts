@@ -28,7 +28,7 @@ function redden(fluxes: Record<string, number>, law: ExtinctionLaw, rv: number, 
 describe('property: reddening then dereddening returns the input', () => {
   for (const [law, rv] of LAWS) {
     it(`${law}: every dereddened flux equals the intrinsic one and E(B−V) is recovered`, () => {
-      // exact identity of the foreground screen (REFERENCE.md §1.2)
+      // exact identity of the foreground screen (shared/science/README.md §1.2)
       const base = intrinsic()
       for (const ebv of [0.05, 0.4, 1.2]) {
         const s = settingsWith({ extinctionLaw: law, rv })
@@ -46,7 +46,7 @@ describe('property: reddening then dereddening returns the input', () => {
 describe('property: adding dust moves a galaxy along the reddening vector only', () => {
   for (const [law, rv] of LAWS) {
     it(`${law}: Δ(observed ratios) = reddeningVector, dereddened quantities stay put`, () => {
-      // log ratio shift −0.4 (k₁ − k₂) E(B−V) (REFERENCE.md §2.1); exact for [N II], [O I], [O III]/Hβ;
+      // log ratio shift −0.4 (k₁ − k₂) E(B−V) (shared/science/README.md §2.1); exact for [N II], [O I], [O III]/Hβ;
       // for the [S II] sum the mean-k vector is exact to < 5e-4 dex per magnitude (the two k differ by 0.007)
       const base = intrinsic()
       const s = settingsWith({ extinctionLaw: law, rv })
@@ -60,14 +60,14 @@ describe('property: adding dust moves a galaxy along the reddening vector only',
         expect(Math.abs((r.ratios.siiHa as number) - (r0.ratios.siiHa as number) - v.sii.dx)).toBeLessThan(5e-4 * ebv)
         // dereddening-based quantities do not move at all
         expect(r.metallicity.n2Pp04).toEqual(r0.metallicity.n2Pp04 === null ? null : expect.closeTo(r0.metallicity.n2Pp04 as number, 10))
-        // T_e: the [S II] density in its iteration uses the observed doublet (REFERENCE.md §3: 0.6% per mag) and
+        // T_e: the [S II] density in its iteration uses the observed doublet (shared/science/README.md §3: 0.6% per mag) and
         // the iteration stops at |ΔT| < 0.1 K (§4), so T_e moves by well under 0.5 K
         expect(Math.abs((r.temperature.oiii?.te as number) - (r0.temperature.oiii?.te as number))).toBeLessThan(0.5)
       }
     })
   }
-  it('matches the CCM89 shifts quoted in REFERENCE.md §2.1', () => {
-    // REFERENCE.md §2.1 [C] (corrected − observed): y −0.054 E, x_N −0.004 E, x_S −0.031 E, x_O +0.050 E
+  it('matches the CCM89 shifts quoted in shared/science/README.md §2.1', () => {
+    // shared/science/README.md §2.1 (corrected − observed): y −0.054 E, x_N −0.004 E, x_S −0.031 E, x_O +0.050 E
     const v = reddeningVector('ccm89', 3.1, 1)
     expect(-v.nii.dy).toBeCloseTo(-0.054, 3)
     expect(-v.nii.dx).toBeCloseTo(-0.004, 3)

@@ -7,7 +7,7 @@ import { electronDensityFromSiiRatio } from '../../../../shared/diagnostics/dens
 
 describe('electron temperature (Osterbrock & Ferland 2006, eqs. 5.4 and 5.5)', () => {
   it('reproduces the forward [O III] and [N II] check values at n_e = 100', () => {
-    // REFERENCE.md §4 [C]; 2 d.p. → ±0.006
+    // shared/science/README.md §4; 2 d.p. → ±0.006
     const t = [8000, 10000, 12500, 15000, 20000]
     const o3 = [482.44, 211.96, 109.78, 70.8, 40.92]
     const n2 = [186.4, 99.82, 60.57, 43.42, 28.64]
@@ -18,20 +18,20 @@ describe('electron temperature (Osterbrock & Ferland 2006, eqs. 5.4 and 5.5)', (
     expect(temperatureRatio(OIII_TEMPERATURE_MODEL, 30000, 100)).toBeCloseTo(23.65, 2)
   })
   it('inverts them by bracketing root-finding', () => {
-    // REFERENCE.md §4 [C]; quoted to 1 K → ±0.6 K
+    // shared/science/README.md §4; quoted to 1 K → ±0.6 K
     const o3: Array<[number, number]> = [[100, 12959], [200, 10180], [300, 9045]]
     for (const [r, t] of o3) expect(Math.abs((temperatureFromRatio(OIII_TEMPERATURE_MODEL, r, 100) as number) - t)).toBeLessThan(0.6)
     const n2: Array<[number, number]> = [[50, 13828], [100, 9993], [150, 8598]]
     for (const [r, t] of n2) expect(Math.abs((temperatureFromRatio(NII_TEMPERATURE_MODEL, r, 100) as number) - t)).toBeLessThan(0.6)
   })
   it('returns null outside 5000–30 000 K (te-out-of-range)', () => {
-    // REFERENCE.md §4: the [O III] ratio at 30 000 K is 23.65; anything lower is out of range
+    // shared/science/README.md §4: the [O III] ratio at 30 000 K is 23.65; anything lower is out of range
     expect(temperatureFromRatio(OIII_TEMPERATURE_MODEL, 20, 100)).toBeNull()
     expect(temperatureFromRatio(OIII_TEMPERATURE_MODEL, 10000, 100)).toBeNull() // ratio at 5000 K is ≈ 5690
     expect(temperatureFromRatio(OIII_TEMPERATURE_MODEL, 0, 100)).toBeNull()
   })
   it('iterates with the [S II] density until |ΔT| < 0.1 K', () => {
-    // REFERENCE.md §4 (project convention): the solution is self-consistent in T and n_e(T)
+    // shared/science/README.md §4 (project convention): the solution is self-consistent in T and n_e(T)
     const sol = temperatureWithDensityIteration(OIII_TEMPERATURE_MODEL, 150, 0.8)
     const t = sol.temperatureK as number
     expect(sol.densityAssumed).toBe(false)
@@ -49,7 +49,7 @@ describe('electron temperature (Osterbrock & Ferland 2006, eqs. 5.4 and 5.5)', (
 })
 
 describe('T_e iteration start', () => {
-  it('gives the same T_e as the plain REFERENCE.md §4 iteration started at 10⁴ K (within its 0.1 K tolerance)', () => {
+  it('gives the same T_e as the plain shared/science/README.md §4 iteration started at 10⁴ K (within its 0.1 K tolerance)', () => {
     // plain iteration written out here: n_e from [S II] at T, solve T, until |ΔT| < 0.1 K
     const plain = (ratio: number, sii: number) => {
       let t = 1e4

@@ -3,7 +3,7 @@ import { fitzpatrick99Anchors, fitzpatrick99K, fitzpatrick99UvK } from '../../..
 
 describe('fitzpatrick99K', () => {
   it('matches k at the line wavelengths and the fixture wavelengths for R_V = 3.1', () => {
-    // python3-extinction 0.4.6, via REFERENCE.md §1.4 [C]; 3 d.p. → ±0.0006
+    // python3-extinction 0.4.6, via shared/science/README.md §1.4; 3 d.p. → ±0.0006
     const table: Array<[number, number]> = [
       [6562.8, 2.358], [4861.33, 3.615], [4340.47, 4.112], [4101.74, 4.322], [5006.84, 3.47], [6583.45, 2.346],
       [6716.44, 2.276], [6300.3, 2.506], [3726.03, 4.665], [1500, 8.068], [2175, 9.535], [3000, 5.57], [3650, 4.739],
@@ -19,7 +19,7 @@ describe('fitzpatrick99K', () => {
     // the UV anchor at 2700 Å is the FM90 value
     expect(fitzpatrick99K(2700, 3.1)).toBeCloseTo(fitzpatrick99UvK(1e4 / 2700, 3.1), 12)
   })
-  it('refuses λ outside 1150 Å – 6 µm (project convention, REFERENCE.md §1.3)', () => {
+  it('refuses λ outside 1150 Å – 6 µm (project convention, shared/science/README.md §1.3)', () => {
     expect(() => fitzpatrick99K(1100, 3.1)).toThrow(RangeError)
     expect(() => fitzpatrick99K(61000, 3.1)).toThrow(RangeError)
   })

@@ -3,8 +3,8 @@ import { defaultRvFor, EXTINCTION_LAWS, extinctionK } from '../../../../shared/e
 import { balmerCoefficient } from '../../../../shared/diagnostics/balmer-decrement.ts'
 
 describe('extinctionK', () => {
-  it('gives the Balmer coefficients 2.5/(k(Hβ) − k(Hα)) of REFERENCE.md §1.2', () => {
-    // python3-extinction 0.4.6, via REFERENCE.md §1.2 [C]; 3 d.p. → ±0.0006
+  it('gives the Balmer coefficients 2.5/(k(Hβ) − k(Hα)) of shared/science/README.md §1.2', () => {
+    // python3-extinction 0.4.6, via shared/science/README.md §1.2; 3 d.p. → ±0.0006
     const coeff = (law: (typeof EXTINCTION_LAWS)[number], rv: number) =>
       balmerCoefficient(extinctionK(law, 4861.33, rv), extinctionK(law, 6562.8, rv))
     expect(Math.abs(coeff('ccm89', 3.1) - 2.328)).toBeLessThan(6e-4)
@@ -13,7 +13,7 @@ describe('extinctionK', () => {
     expect(Math.abs(coeff('fitzpatrick99', 3.1) - 1.989)).toBeLessThan(6e-4)
   })
   it('gives k(4363) − k(5007) = 0.675 (CCM89) and 0.636 (Calzetti)', () => {
-    // REFERENCE.md §4 [C] (python3-extinction 0.4.6); 3 d.p. → ±0.0006
+    // shared/science/README.md §4 (python3-extinction 0.4.6); 3 d.p. → ±0.0006
     expect(Math.abs(extinctionK('ccm89', 4363.21, 3.1) - extinctionK('ccm89', 5006.84, 3.1) - 0.675)).toBeLessThan(6e-4)
     expect(Math.abs(extinctionK('calzetti00', 4363.21, 4.05) - extinctionK('calzetti00', 5006.84, 4.05) - 0.636)).toBeLessThan(6e-4)
   })

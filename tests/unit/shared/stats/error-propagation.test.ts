@@ -4,13 +4,13 @@ import {
   ROLE_DUST_NUMERATOR, ROLE_OTHER,
 } from '../../../../shared/stats/error-propagation.ts'
 
-describe('first-order error propagation (REFERENCE.md §9)', () => {
+describe('first-order error propagation (shared/science/README.md §9)', () => {
   it('ratio, log ratio and sum errors', () => {
     expect(relativeErrorOfRatio(0.03, 0.04)).toBeCloseTo(0.05, 15)
     expect(log10Error(0.1)).toBeCloseTo(0.1 / Math.LN10, 15)
     expect(errorOfSum(3, 4)).toBe(5)
   })
-  it('reproduces the Hα dereddened-flux covariance formula of REFERENCE.md §9', () => {
+  it('reproduces the Hα dereddened-flux covariance formula of shared/science/README.md §9', () => {
     // (σ/F)² = (k_Hβ/Δk)²(σα/Fα)² + (k_Hα/Δk)²(σβ/Fβ)² with Δk = k_Hβ − k_Hα (derivation, common practice)
     const kHa = 2.535, kHb = 3.609, dk = kHb - kHa, C = 2.5 / dk
     const ra = 0.02, rb = 0.05

@@ -4,7 +4,7 @@ import {
   ratioLimitStatus, stateOfSum, upperLimitFromError,
 } from '../../../../shared/stats/limits.ts'
 
-describe('detections and limits (REFERENCE.md §9, project convention)', () => {
+describe('detections and limits (shared/science/README.md §9, project convention)', () => {
   it('thresholds at minSnr and sets U = minSnr·σ', () => {
     expect(isDetection(9, 3, 3)).toBe(true)
     expect(isDetection(8.99, 3, 3)).toBe(false)
