@@ -143,6 +143,10 @@ const EnvSchema = z.object({
   COMPUTE_TIMEOUT_S: atLeast(1).default(60),
   COMPUTE_BUDGET: atLeast(1).default(DEFAULT_COMPUTE_BUDGET),
   COMPUTE_ANON_BUDGET: atLeast(1).default(DEFAULT_ANON_COMPUTE_BUDGET),
+  // checked here so a bad value stops start-up too; their readers (runtime.ts, cli/start.ts) take them as they are
+  MAIL_CATCHER_PORT: port(0),
+  SEED_DEMO: optional(z.enum(['0', '1'], { error: 'must be 0 or 1' })),
+  BUILD_CLIENT: optional(z.enum(['0', '1'], { error: 'must be 0 or 1' })),
 })
 
 /** One message for every bad variable: "NAME must be …, got "value"" per line. */

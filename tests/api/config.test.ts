@@ -43,6 +43,8 @@ describe('loadConfig: the environment through one zod schema', () => {
     })
     expect(load({ TRUST_PROXY: '2' }).trustProxy).toBe(2)
     expect(load({ TRUST_PROXY: 'off' }).trustProxy).toBe(false)
+    // read elsewhere, validated here
+    expect(() => load({ MAIL_CATCHER_PORT: '2525', SEED_DEMO: '0', BUILD_CLIENT: '1' })).not.toThrow()
   })
 
   it('reads SECURE_COOKIES as a boolean word', () => {
@@ -66,6 +68,8 @@ describe('loadConfig: the environment through one zod schema', () => {
     [{ APP_URL: 'rg.example.org' }, 'APP_URL must be a URL with http:// or https:// (e.g. https://ratiograph.example.org), got "rg.example.org"'],
     [{ DATABASE_URL: 'mysql://db/rg' }, 'DATABASE_URL must be a URL with postgres:// or postgresql://'],
     [{ SMTP_URL: 'relay:587' }, 'SMTP_URL must be a URL with smtp:// or smtps://'],
+    [{ MAIL_CATCHER_PORT: '2525x' }, 'MAIL_CATCHER_PORT must be a port number (a whole number from 0 to 65535), got "2525x"'],
+    [{ SEED_DEMO: 'no' }, 'SEED_DEMO must be 0 or 1, got "no"'],
     [{ TRUST_PROXY: 'true' }, 'TRUST_PROXY must not be true: that would let any client choose its address'],
     [{ TRUST_PROXY: 'loopback, 10.0.0.0/33, proxy.local' }, 'TRUST_PROXY must be a hop count or a comma list of addresses, subnets (10.0.0.0/8) or loopback/linklocal/uniquelocal; not "10.0.0.0/33", "proxy.local"'],
   ])('refuses %o with a message naming the variable and the rule', (env, message) => {
