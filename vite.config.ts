@@ -11,7 +11,9 @@ export default defineConfig({
       '@shared': new URL('./shared', import.meta.url).pathname,
       // plotly's partial bundle with the SVG scatter trace only (1.2 MB instead of 5 MB): every plot
       // here is SVG scatter — the sample points are drawn by point-raster.ts — and this bundle holds
-      // no new Function, which our Content-Security-Policy (no unsafe-eval) forbids. Same API and types.
+      // no new Function, which our Content-Security-Policy (no unsafe-eval) forbids. Same API. The full
+      // bundle is a devDependency only for the TypeScript types it ships (the basic bundle has none);
+      // this alias keeps it out of every build.
       'plotly.js-dist-min': 'plotly.js-basic-dist-min',
     },
   },

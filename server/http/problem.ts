@@ -18,7 +18,6 @@ export const notFound = (what: string) => new HttpProblem(404, 'Not Found', `no 
 export const forbidden = (detail: string) => new HttpProblem(403, 'Forbidden', detail)
 export const unauthorized = (detail = 'sign in or send an API key') => new HttpProblem(401, 'Unauthorized', detail)
 export const conflict = (detail: string) => new HttpProblem(409, 'Conflict', detail)
-export const unprocessable = (detail: string, errors: FieldError[]) => new HttpProblem(422, 'Unprocessable Content', detail, errors)
 export const unavailable = (detail = 'the database is unavailable; try again shortly') =>
   new HttpProblem(503, 'Service Unavailable', detail, undefined, { 'Retry-After': '5' })
 

@@ -12,9 +12,6 @@ export const CSV_PARSE_OPTIONS = {
   max_record_size: 1 << 20,
 } as const
 
-/** Cells that a spreadsheet would run as a formula (OWASP "CSV injection"). */
-export const FORMULA_START = /^[=+\-@\t\r]/
-
 const NUMBER_RE = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/
 
 /**

@@ -53,7 +53,7 @@ export function hyperbolaY(curve: HyperbolaCurve, x: number): number | null {
  * Kauffmann et al. 2003 line (MNRAS 346, 1055, eq. 1): y = 0.61/(x − 0.05) + 1.30 for x < 0.05.
  * @param x  log([N II]6584/Hα), dex
  * @returns log([O III]5007/Hβ) of the curve in dex, or null at/right of the asymptote x = 0.05
- * @example kauffmann2003Line(0) // -10.9
+ * @example kauffmann2003Line(0) // ≈ -10.9
  */
 export const kauffmann2003Line = (x: number): number | null => hyperbolaY(KA03, x)
 
@@ -191,7 +191,7 @@ function keepIfCloser(t: number, u: number, v: number, a: number): void {
  * @param y      dex
  * @param out    optional [distance, n_x, n_y] receiver (avoids an allocation in the kernel)
  * @returns the signed distance in dex
- * @example signedDistanceToHyperbola(KE01_NII, -0.3, 0.49885) // ≈ +0.0070 (shared/science/README.md §2.6)
+ * @example signedDistanceToHyperbola(KE01_NII, -0.4, 0.49885) // ≈ +0.0078 (0.01 dex above Ke01(−0.40) = 0.48885; shared/science/README.md §2.6)
  */
 export function signedDistanceToHyperbola(curve: HyperbolaCurve, x: number, y: number, out?: Float64Array | number[]): number {
   const a = curve.a

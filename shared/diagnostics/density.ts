@@ -79,7 +79,7 @@ export function electronDensityFromDoubletRatio(fit: DoubletFit, ratio: number, 
  * @param ratio         doublet ratio, dimensionless
  * @param temperatureK  K
  * @returns |dn_e/dR| in cm⁻³ per unit ratio
- * @example densityRatioDerivative(SANDERS16_SII, 1.0, 1e4) // ≈ 872.8
+ * @example densityRatioDerivative(SANDERS16_SII, 1.0, 1e4) // ≈ 1975.8
  */
 export function densityRatioDerivative(fit: DoubletFit, ratio: number, temperatureK: number): number {
   const d = fit.a - ratio

@@ -121,7 +121,7 @@ export function sfrKennicutt98(luminosityHalpha: number): number {
  * SFR = L(Hα)·10^−41.27.
  * @param luminosityHalpha  L(Hα), erg s⁻¹
  * @returns SFR in M☉ yr⁻¹
- * @example sfrKennicuttEvans12(5.912e40) // ≈ 0.318 (shared/science/README.md §6)
+ * @example sfrKennicuttEvans12(5.912e40) // ≈ 0.3175 (shared/science/README.md §6)
  */
 export function sfrKennicuttEvans12(luminosityHalpha: number): number {
   return luminosityHalpha * KENNICUTT_EVANS12_FACTOR

@@ -70,5 +70,3 @@ export const EXPORT_COLUMNS: ExportColumn[] = [
   { name: 'log_mbh', description: 'log black-hole mass from broad Hα (Greene & Ho 2005)', unit: 'dex(solMass)', ucd: 'phys.mass;meta.modelled', datatype: 'double', group: 'black-hole', get: (_g, r) => num(r?.blackHoleMass?.log10Mass) },
   { name: 'flags', description: 'flags, separated by spaces', unit: null, ucd: 'meta.code.qual', datatype: 'char', group: 'flags', get: (_g, r) => (Array.isArray(r?.flags) ? r.flags.join(' ') : '') },
 ]
-
-export const EXPORT_COLUMN_NAMES = EXPORT_COLUMNS.map((c) => c.name)

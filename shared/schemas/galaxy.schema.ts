@@ -7,7 +7,6 @@ export const LINE_ID_LIST = [
   'halpha', 'hbeta', 'hgamma', 'hdelta', 'oiii_5007', 'oiii_4959', 'oiii_4363', 'nii_6584', 'nii_6548',
   'nii_5755', 'sii_6717', 'sii_6731', 'oi_6300', 'oii_3726', 'oii_3729', 'halpha_broad',
 ] as const
-export const LineIdSchema = z.enum(LINE_ID_LIST)
 
 /**
  * Bounds of the numbers a galaxy may carry. They are wide enough for any survey's units and keep

@@ -66,7 +66,7 @@ export const ROLE_DUST_DENOMINATOR = 2
  * @param relativeD1   σ/F of the dust numerator line (ignored when dustC = 0)
  * @param relativeD2   σ/F of the dust denominator line (ignored when dustC = 0)
  * @returns Var(Q) in (natural-log units)²
- * @example linearisedLogVariance(1, [1], [0.05], [ROLE_OTHER], [3.47], 0, 0, 0) // 0.0025
+ * @example linearisedLogVariance(1, [1], [0.05], [ROLE_OTHER], [3.47], 0, 0, 0) // ≈ 0.05 ** 2 (= 0.0025)
  */
 export function linearisedLogVariance(
   n: number,
@@ -110,7 +110,7 @@ export function linearisedLogVariance(
  * @param relativeD1  σ/F of the dust numerator line
  * @param relativeD2  σ/F of the dust denominator line
  * @returns Var(ln F_corr)
- * @example linearisedLogVarianceOfLine(0.05, ROLE_OTHER, 3.47, 0, 0, 0) // 0.0025
+ * @example linearisedLogVarianceOfLine(0.05, ROLE_OTHER, 3.47, 0, 0, 0) // ≈ 0.05 ** 2 (= 0.0025)
  */
 export function linearisedLogVarianceOfLine(
   relative: number, role: number, k: number, dustC: number, relativeD1: number, relativeD2: number,

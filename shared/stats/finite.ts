@@ -39,7 +39,7 @@ function walk(value: unknown, path: string): string | null {
  * @param value  any JSON-like tree
  * @param label  prefix for the error message
  * @throws {TypeError} naming the JSON Pointer of the first offending number
- * @example assertAllFinite({ ebv: 0.3 }) // passes
+ * @example assertAllFinite({ ebv: 0.3 }) // undefined (passes; a NaN or ±Infinity anywhere throws)
  */
 export function assertAllFinite(value: unknown, label = 'value'): void {
   const hit = findNonFinite(value)

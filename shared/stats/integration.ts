@@ -15,7 +15,7 @@ const GL_W = [
  * @param b  upper limit
  * @returns ∫ₐᵇ f(x) dx (exact for polynomials of degree ≤ 19)
  * @param param  optional parameter handed to f
- * @example gaussLegendre10((x) => x * x, 0, 3) // 9
+ * @example gaussLegendre10((x) => x * x, 0, 3) // ≈ 9.000000000000 (exact for polynomials of degree ≤ 19, to rounding)
  */
 export function gaussLegendre10(f: (x: number, param: number) => number, a: number, b: number, param = 0): number {
   const half = 0.5 * (b - a)
@@ -39,7 +39,7 @@ export function gaussLegendre10(f: (x: number, param: number) => number, a: numb
  * @param relTol  relative tolerance (default 1e-10, comfortably below the 1e-8 the project needs)
  * @param param   optional parameter handed to f (lets hot callers avoid allocating closures)
  * @returns ∫ₐᵇ f(x) dx
- * @example adaptiveGaussLegendre(Math.exp, 0, 1) // ≈ e − 1
+ * @example adaptiveGaussLegendre(Math.exp, 0, 1) // ≈ Math.E - 1
  */
 export function adaptiveGaussLegendre(f: (x: number, param: number) => number, a: number, b: number, relTol = 1e-10, param = 0): number {
   const whole = gaussLegendre10(f, a, b, param)

@@ -33,7 +33,7 @@ export function percentileOfSorted(sorted: ArrayLike<number>, p: number): number
  * @param values   sample (any unit); not modified
  * @param scratch  optional buffer of length ≥ values.length, to avoid an allocation per call
  * @returns the three percentiles, or null
- * @example percentiles16_50_84([1, 2, 3, 4, 5]) // { p16: 1.64, p50: 3, p84: 4.36 }
+ * @example percentiles16_50_84([1, 2, 3, 4, 5]) // ≈ { p16: 1.64, p50: 3, p84: 4.36 }
  */
 export function percentiles16_50_84(values: ArrayLike<number>, scratch?: Float64Array): Percentiles | null {
   const buf = scratch && scratch.length >= values.length ? scratch : new Float64Array(values.length)
@@ -96,7 +96,7 @@ function swap(a: Float64Array, i: number, j: number): void {
  * @param a    values (reordered in place)
  * @param m    number of values used, ≥ 1
  * @param out  receives [p16, p50, p84]
- * @example const o = new Float64Array(3); percentilesBySelection(Float64Array.of(5, 1, 4, 2, 3), 5, o) // o = [1.64, 3, 4.36]
+ * @example const o = new Float64Array(3); percentilesBySelection(Float64Array.of(5, 1, 4, 2, 3), 5, o); o // ≈ [1.64, 3, 4.36]
  */
 export function percentilesBySelection(a: Float64Array, m: number, out: Float64Array): void {
   let from = 0

@@ -5,7 +5,7 @@
  * @param coefficients  c₀ … c_n, lowest order first (units of the result)
  * @param x             the argument (any unit the coefficients expect)
  * @returns the polynomial value
- * @example horner([1, 2, 3], 2) // 1 + 4 + 12 = 17
+ * @example horner([1, 2, 3], 2) // 17 (1 + 4 + 12)
  */
 export function horner(coefficients: readonly number[], x: number): number {
   let s = 0
@@ -20,7 +20,7 @@ export function horner(coefficients: readonly number[], x: number): number {
  * @param coefficients  c₀ … c_n, lowest order first
  * @param x             the argument
  * @returns dP/dx at x
- * @example hornerDerivative([1, 2, 3], 2) // 2 + 12 = 14
+ * @example hornerDerivative([1, 2, 3], 2) // 14 (2 + 12)
  */
 export function hornerDerivative(coefficients: readonly number[], x: number): number {
   let s = 0

@@ -1,11 +1,12 @@
 /**
  * A seeded pseudo-random generator: xoshiro128** (32-bit state words), seeded with splitmix32.
  * Source: Blackman & Vigna 2021, "Scrambled linear pseudorandom number generators",
- * ACM Trans. Math. Softw. 47, 36 (xoshiro128**, §4; section from memory, shared/science/README.md §8); splitmix32 is the
- * 32-bit variant of Steele, Lea & Flood 2014 (OOPSLA) SplitMix (common practice).
+ * ACM Trans. Math. Softw. 47, 36 (xoshiro128** 1.1 as in the authors' reference C code; shared/science/README.md §8); splitmix32 is
+ * SplitMix's golden-ratio step (Steele, Lea & Flood 2014, OOPSLA) followed by MurmurHash3's fmix32.
  * Normal deviates use the Box–Muller transform (Box & Muller 1958, Ann. Math. Stat. 29, 610).
  *
- * Deterministic: the same seed gives the same sequence in Node and in the browser.
+ * Deterministic: the same seed gives the same sequence in Node and in the browser. Reference vectors
+ * from an independent implementation: tests/fixtures/science/rng_vectors.py → rng.json.
  */
 export interface Rng {
   /** uniform integer in [0, 2³²) */
@@ -18,11 +19,13 @@ export interface Rng {
 
 /**
  * splitmix32 step: a well-mixed 32-bit hash of `state`; used to expand one seed into four words.
- * Source: 32-bit SplitMix variant (common practice; constants from memory, shared/science/README.md §8).
+ * Source: SplitMix's increment 0x9e3779b9 (Steele, Lea & Flood 2014), then MurmurHash3's fmix32
+ * finaliser (Appleby 2011: shifts 16, 13, 16; multipliers 0x85ebca6b, 0xc2b2ae35). Checked against
+ * tests/fixtures/science/rng.json.
  *
  * @param state  any 32-bit integer
  * @returns a 32-bit unsigned integer
- * @example splitmix32(1) // 0x...
+ * @example splitmix32(1) // 2527132011 (tests/fixtures/science/rng.json)
  */
 export function splitmix32(state: number): number {
   let z = (state + 0x9e3779b9) | 0
@@ -56,7 +59,7 @@ const INV_2_32 = 1 / 4294967296
  *
  * @param seed  any finite number; its low 32 bits are used
  * @returns a generator; two generators with the same seed produce identical sequences
- * @example createRng(1).nextFloat() // always the same value in [0, 1)
+ * @example createRng(1).nextUint32() // 3597913440 (tests/fixtures/science/rng.json)
  */
 export function createRng(seed: number): Rng {
   let s0 = splitmix32(seed | 0)

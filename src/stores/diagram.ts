@@ -46,7 +46,8 @@ export const useDiagramStore = defineStore('diagram', () => {
     try {
       // marks let `npm run bench:ui` say where the time to a drawn page goes
       performance.mark('rg:diagram-request')
-      // downloaded, parsed and turned into typed arrays off the main thread
+      // decoded on the main thread (no worker): the binary columns become typed-array views of the
+      // response without parsing; only the JSON fallback is parsed
       arrays.value = await loadDiagramArrays(id, filters.value, signal)
       performance.mark('rg:diagram-received')
       clearSelection()

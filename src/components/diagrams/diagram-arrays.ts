@@ -105,16 +105,6 @@ export function prepareTypedColumns(t: TypedDiagramColumns): DiagramArrays {
   return { revision: t.revision, count: n, ids: t.ids, redshift: t.redshift, ew: t.ewHalpha, panels, codes, names, palettes }
 }
 
-/** Every typed array's buffer once, for handing the arrays from a worker without copying. */
-export function transferables(a: DiagramArrays): ArrayBuffer[] {
-  const out = new Set<ArrayBuffer>()
-  const add = (v: ArrayBufferView | null) => { if (v) out.add(v.buffer as ArrayBuffer) }
-  add(a.redshift); add(a.ew)
-  for (const p of Object.values(a.panels)) { add(p.x); add(p.y); add(p.xErr); add(p.yErr); add(p.symbols) }
-  for (const c of Object.values(a.codes)) add(c)
-  return [...out]
-}
-
 /** The class name of point i under a classification. */
 export function classNameAt(a: DiagramArrays, d: ClassDiagram, i: number): string {
   return a.names[d][a.codes[d][i]]

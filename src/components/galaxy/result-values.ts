@@ -1,21 +1,8 @@
 import type { DiagramKey, GalaxyResult } from '../../api/types'
 import { isNum } from '../../utils/format'
 
-/**
- * Results nest their numbers in a few shapes (a bare number, `{ value, error }`, `{ ne, neError }`,
- * Monte Carlo `{ p16, p50, p84 }` siblings). This reads any of them into one form for display.
- */
+/** A displayed number: value, 1σ error and, with Monte Carlo, the 16th/84th percentiles. */
 export interface ReadValue { value: number | null; error: number | null; p16?: number | null; p84?: number | null }
-
-export function readValue(v: unknown, key?: string): ReadValue {
-  if (isNum(v)) return { value: v, error: null }
-  if (!v || typeof v !== 'object') return { value: null, error: null }
-  const o = v as Record<string, unknown>
-  const pick = (...names: string[]) => { for (const n of names) if (isNum(o[n])) return o[n] as number; return null }
-  const value = pick('value', ...(key ? [key] : []), 'ne', 'te', 'p50')
-  const error = pick('error', ...(key ? [`${key}Error`] : []), 'neError', 'teError')
-  return { value, error, p16: pick('p16'), p84: pick('p84') }
-}
 
 /**
  * A number and its siblings in the library's result shape: `key`, `keyError` and, with Monte Carlo,

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import type { DiagramColumns } from '../../../../../src/api/types'
-import { classLabelAt, indicesOfClass, limitSymbol, transferables, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
+import { classLabelAt, indicesOfClass, limitSymbol, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
 import { parseColour, SYMBOL } from '../../../../../src/components/diagrams/point-raster'
 import { CLASS_COLOURS } from '../../../../../src/utils/classes'
 
@@ -33,13 +33,6 @@ describe('prepareDiagramArrays', () => {
     // Float32 columns, as the binary form delivers them
     expect(Array.from(a.redshift)).toEqual([Math.fround(0.1), Math.fround(0.2), NaN])
     expect(Array.from(a.ew)).toEqual([24, 8, -1])
-  })
-
-  it('lists each typed array buffer once for a zero-copy transfer', () => {
-    const buffers = transferables(a)
-    expect(new Set(buffers).size).toBe(buffers.length)
-    expect(buffers).toContain(a.panels.whan.x.buffer) // shared with the [N II] panel, listed once
-    expect(buffers).toContain(a.codes.overall.buffer)
   })
 
   it('turns missing values into NaN and counts what can be placed', () => {
