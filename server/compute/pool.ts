@@ -6,6 +6,7 @@ import type { GalaxyResult } from '../../shared/science.ts'
 import { diagnoseTask, isFailure, type DiagnoseTask, type OutputMode, type TaskFailure, type TaskOutput } from './diagnose.task.ts'
 import { GALAXY_COST } from './budget.ts'
 import { encodeDiagramTask, type DiagramTask } from './diagram.task.ts'
+import { parseBodyTask, type ParseBodyOutput, type ParseBodyTask } from './parse-body.task.ts'
 
 /** The pool's part of the configuration (server/config.ts). */
 export type ComputeSettings = Pick<Config, 'computeThreads' | 'computeQueue' | 'computeTimeoutMs'>
@@ -32,6 +33,12 @@ export interface ComputePool {
   run(mode: OutputMode, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<TaskOutput[]>
   /** The binary columns of a diagram document (its JSON as UTF-8); background work. */
   encodeDiagram(json: Uint8Array): Promise<Uint8Array>
+  /**
+   * JSON.parse, validation and request hash of a bulk body (parse-body.task.ts). The bytes are
+   * handed to the thread, not copied: the caller must not use them afterwards. It waits its turn
+   * like background work (no 503 for a full queue), under the time budget of one chunk.
+   */
+  parseBody(task: Omit<ParseBodyTask, 'kind'>, signal?: AbortSignal): Promise<ParseBodyOutput>
   close(): Promise<void>
 }
 
@@ -49,10 +56,10 @@ export function chunkSize(galaxies: number, draws: number, threads: number) {
 }
 
 const busy = () => new HttpProblem(503, 'Service Unavailable', 'the compute queue is full; try again shortly', undefined, { 'Retry-After': '5' })
-const tooLong = (ms: number) => new HttpProblem(503, 'Service Unavailable',
+export const tooLong = (ms: number) => new HttpProblem(503, 'Service Unavailable',
   `the computation ran longer than the ${ms / 1000} s time budget and was stopped; send fewer galaxies or Monte Carlo draws per request`, undefined, { 'Retry-After': '30' })
 
-const gone = () => new HttpProblem(400, 'Bad Request', 'the request was aborted')
+export const gone = () => new HttpProblem(400, 'Bad Request', 'the request was aborted')
 
 function failureProblem(f: TaskFailure, offset: number, prefix: string) {
   if (f.failed === 'settings') return new HttpProblem(422, 'Unprocessable Content', f.message, [{ path: f.path, message: f.message }])
@@ -116,7 +123,7 @@ export function createComputePool(s: ComputeSettings): ComputePool {
   // Our own first-come-first-served queue: piscina keeps abortable tasks in a queue that, under steady
   // load, serves them out of order (bench:liveness saw p50 5 ms beside p99 1–10 s), so a chunk goes to
   // piscina only when a thread is free.
-  interface Job { task: object; signal?: AbortSignal; ok: (v: unknown) => void; fail: (e: unknown) => void; dequeued: () => void }
+  interface Job { task: object; signal?: AbortSignal; transferList?: ArrayBuffer[]; ok: (v: unknown) => void; fail: (e: unknown) => void; dequeued: () => void }
   const waiting: Job[] = []
   let running = 0
   const pump = () => {
@@ -125,16 +132,16 @@ export function createComputePool(s: ComputeSettings): ComputePool {
       job.dequeued()
       if (job.signal?.aborted) { job.fail(job.signal.reason); continue }
       running++
-      piscina.run(job.task, { signal: job.signal }).then(job.ok, job.fail).finally(() => { running--; pump() })
+      piscina.run(job.task, { signal: job.signal, transferList: job.transferList as never }).then(job.ok, job.fail).finally(() => { running--; pump() })
     }
   }
-  const submit = <T>(task: object, signal?: AbortSignal) => new Promise<T>((ok, fail) => {
+  const submit = <T>(task: object, signal?: AbortSignal, transferList?: ArrayBuffer[]) => new Promise<T>((ok, fail) => {
     // a request's deadline is shared by all its chunks: the listener goes when the chunk leaves the queue
     const onAbort = () => {
       const i = waiting.indexOf(job)
       if (i >= 0) { waiting.splice(i, 1); job.dequeued(); fail(signal!.reason) }
     }
-    const job: Job = { task, signal, ok: ok as (v: unknown) => void, fail, dequeued: () => signal?.removeEventListener('abort', onAbort) }
+    const job: Job = { task, signal, transferList, ok: ok as (v: unknown) => void, fail, dequeued: () => signal?.removeEventListener('abort', onAbort) }
     signal?.addEventListener('abort', onAbort)
     waiting.push(job)
     pump()
@@ -147,6 +154,14 @@ export function createComputePool(s: ComputeSettings): ComputePool {
     get queued() { return waiting.length },
     run: runner(threads, (task, signal) => submit(task, signal), () => waiting.length, s),
     encodeDiagram: (json) => submit({ kind: 'diagram', json } satisfies DiagramTask, timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined),
+    parseBody: (task, signal) => {
+      const deadline = timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined
+      const signals = [deadline, signal].filter((x): x is AbortSignal => x !== undefined)
+      const whole = task.bytes.byteOffset === 0 && task.bytes.byteLength === task.bytes.buffer.byteLength && task.bytes.buffer instanceof ArrayBuffer
+      return submit<ParseBodyOutput>({ kind: 'parse-body', ...task } satisfies ParseBodyTask, signals.length > 1 ? AbortSignal.any(signals) : signals[0],
+        whole ? [task.bytes.buffer as ArrayBuffer] : undefined)
+        .catch((err: unknown) => { throw deadline?.aborted ? tooLong(s.computeTimeoutMs) : signal?.aborted ? gone() : err })
+    },
     async close() {
       closed = true
       for (const job of waiting.splice(0)) job.fail(new Error('the compute pool was closed'))
@@ -161,6 +176,7 @@ export function inProcessCompute(s: ComputeSettings = { computeThreads: 1, compu
   return {
     threads: 1, closed: false, queued: 0, run: runner(1, exec, () => 0, s),
     encodeDiagram: async (json) => encodeDiagramTask({ kind: 'diagram', json }),
+    parseBody: async (task) => parseBodyTask({ kind: 'parse-body', ...task }),
     async close() {},
   }
 }

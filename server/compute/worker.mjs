@@ -6,9 +6,10 @@ import { move } from 'piscina'
 register()
 const { diagnoseTask } = await import('./diagnose.task.ts')
 const { encodeDiagramTask } = await import('./diagram.task.ts')
+const { parseBodyTask } = await import('./parse-body.task.ts')
 
 export default function run(task) {
-  const out = task.kind === 'diagram' ? encodeDiagramTask(task) : diagnoseTask(task)
+  const out = task.kind === 'diagram' ? encodeDiagramTask(task) : task.kind === 'parse-body' ? parseBodyTask(task) : diagnoseTask(task)
   // bytes are handed over, not copied
   return out instanceof Uint8Array ? move(out) : out
 }

@@ -28,7 +28,7 @@ export function diagnosticsRoutes(r: Router, deps: AppDeps, guard: Guard) {
       + `A request costs galaxies × (monteCarlo.draws + ${GALAXY_COST}) compute units: by default at most ${DEFAULT_COMPUTE_BUDGET.toLocaleString('en-US')} with credentials `
       + `and ${DEFAULT_ANON_COMPUTE_BUDGET.toLocaleString('en-US')} without (COMPUTE_BUDGET, COMPUTE_ANON_BUDGET); more is a 422 at /settings/monteCarlo/draws. `
       + 'Every number in the answer is finite or null.',
-    body: DiagnosticsRequestSchema,
+    body: DiagnosticsRequestSchema, bodyParsing: { worker: 'diagnostics' },
     bodyExample: { settings: { extinctionLaw: 'ccm89', rv: 3.1, intrinsicBalmer: 2.86, minSnr: 3 }, galaxies: [{ id: 'LNS-0000001', redshift: 0.05, fluxUnit: 1e-17, lines: { halpha: { flux: 300, error: 6 }, hbeta: { flux: 80, error: 3 }, oiii_5007: { upperLimit: 9 } }, ew: { halpha: 24.5 } }] },
     responses: {
       200: { description: 'results', schema: z.object({ methodVersion: z.string(), settings: z.record(z.string(), z.unknown()), results: z.array(GalaxyResultSchema) }) },

@@ -12,6 +12,14 @@ import type { Guard } from './index.ts'
 import { OnExistingSchema } from '../../shared/schemas/intake.schema.ts'
 import { DIAGRAM_COLUMNS_TYPE } from '../../shared/diagram-columns.ts'
 import { isCleanText } from '../../shared/schemas/text.ts'
+import { tooManyGalaxies } from '../compute/parse-body.task.ts'
+
+/**
+ * The request hash of each onExisting, as `requestHash` below makes it: the body alone for replace,
+ * else `{"body":…,"onExisting":…}` (JSON.stringify writes exactly these bytes around the body).
+ */
+export const BATCH_HASHES = Object.fromEntries(OnExistingSchema.options.map((o) =>
+  [o, o === 'replace' ? ['', ''] as const : ['{"body":', `,"onExisting":${JSON.stringify(o)}}`] as const]))
 
 const BatchQuerySchema = z.object({
   onExisting: OnExistingSchema.default('replace').meta({ description: 'IDs the project has: replace (the default upsert), skip, or merge (keep stored lines, overlay the new ones); replaced records stay retrievable' }),
@@ -19,9 +27,9 @@ const BatchQuerySchema = z.object({
 
 /** 413 before validation when a request carries more galaxies than one request may. */
 export function galaxyCountLimit(req: Request, _res: Response, next: NextFunction) {
-  const g = (req.body as { galaxies?: unknown })?.galaxies
-  if (Array.isArray(g) && g.length > MAX_GALAXIES_PER_REQUEST) {
-    return next(new HttpProblem(413, 'Content Too Large', `at most ${MAX_GALAXIES_PER_REQUEST} galaxies per request, got ${g.length}`,
+  const n = req.bulkBody ? (req.bulkBody.failed === 'count' ? req.bulkBody.count : null) : tooManyGalaxies(req.body)
+  if (n !== null) {
+    return next(new HttpProblem(413, 'Content Too Large', `at most ${MAX_GALAXIES_PER_REQUEST} galaxies per request, got ${n}`,
       [{ path: '/galaxies', message: `at most ${MAX_GALAXIES_PER_REQUEST} items` }]))
   }
   next()
@@ -35,16 +43,17 @@ export function galaxiesRoutes(r: Router, deps: AppDeps, guard: Guard) {
     method: 'post', path: '/projects/:projectId/galaxies/batch', tag, access: 'analyst', write: true,
     summary: 'Ingest up to 10,000 galaxies: upsert by ID, all or nothing, idempotent',
     description: 'Each request is one intake. With an `Idempotency-Key` header, a resend of the same body returns the first answer; the same key with another body answers 409. On any invalid row nothing is stored and the 422 lists every problem with a JSON Pointer.',
-    params: ProjectPathSchema, body: BatchRequestSchema, query: BatchQuerySchema,
+    params: ProjectPathSchema, body: BatchRequestSchema, query: BatchQuerySchema, bodyParsing: { worker: 'batch', hashes: BATCH_HASHES },
     headers: [{ name: 'Idempotency-Key', description: 'any string up to 200 characters; makes a resend safe' }],
     bodyExample: { galaxies: [{ id: 'LNS-0000001', redshift: 0.05, lines: { halpha: { flux: 300, error: 6 }, hbeta: { flux: 80, error: 3 }, nii_6584: { flux: 90, error: 4 }, oiii_5007: { upperLimit: 9 } }, ew: { halpha: 24.5 } }] },
     responses: { 200: { description: 'stored', schema: BatchResponseSchema }, 409: { description: 'idempotency conflict' }, 413: { description: 'more than 10,000 galaxies' }, 422: { description: 'invalid rows; nothing stored' } },
   }, (spec) => { const g = guard(spec); return (req, res, next) => g(req, res, (err?: unknown) => (err ? next(err) : galaxyCountLimit(req, res, next))) },
-  async (req, res, { params, body, query }) => {
+  async (req, res, { params, body, query, bodyHashes }) => {
     const key = req.get('idempotency-key')
     if (key !== undefined && (key.length === 0 || key.length > 200 || !isCleanText(key))) throw new HttpProblem(422, 'Unprocessable Content', 'Idempotency-Key must be 1–200 characters without control characters', [{ path: '/headers/Idempotency-Key', message: '1–200 characters without control characters' }])
     // another onExisting is another request: a resend with the same key and body but, say, merge must not replay a replace
-    const hash = requestHash(query.onExisting === 'replace' ? req.body : { body: req.body, onExisting: query.onExisting })
+    const hash = bodyHashes ? bodyHashes[query.onExisting]
+      : requestHash(query.onExisting === 'replace' ? req.body : { body: req.body, onExisting: query.onExisting })
     const out = await writingGalaxies(deps.db, params.projectId, () => ingestBatch(deps.db, requireAuth(req), params.projectId, body.galaxies, key, hash, query.onExisting))
     if (out.replay) res.setHeader('Idempotent-Replayed', 'true')
     res.json(out.body)

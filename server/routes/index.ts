@@ -3,6 +3,8 @@ import { ipKeyGenerator, rateLimit } from 'express-rate-limit'
 import type { AppDeps } from '../app.ts'
 import { authenticate, guardFor } from '../http/auth.ts'
 import { HttpProblem } from '../http/problem.ts'
+import { jsonBodies } from '../http/bulk-body.ts'
+import { inProcessCompute } from '../compute/pool.ts'
 import { accountsRoutes } from './accounts.routes.ts'
 import { projectsRoutes } from './projects.routes.ts'
 import { galaxiesRoutes } from './galaxies.routes.ts'
@@ -25,7 +27,8 @@ export function buildRoutes(deps: AppDeps): Router {
   const jsonTypes = ['application/json', 'application/*+json']
   // the small limit first: a body read here is not read again by the general parser (413 beyond it)
   router.use(['/v1/auth', '/v1/invitations'], express.json({ limit: AUTH_JSON_LIMIT, strict: false, type: jsonTypes }))
-  router.use('/v1', express.json({ limit: JSON_LIMIT, strict: false, type: jsonTypes }))
+  // express.json, except that large bulk bodies (diagnostics, batch) are read on a compute thread
+  router.use('/v1', jsonBodies(deps.compute ?? inProcessCompute(), { limit: JSON_LIMIT, type: jsonTypes }))
   router.use('/v1', authenticate(deps.db, deps.config))
   // per key (or signed-in user) and per address
   router.use('/v1', rateLimit({

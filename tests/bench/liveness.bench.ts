@@ -12,6 +12,8 @@ import { DIAGRAM_COLUMNS_TYPE } from '../../shared/diagram-columns.ts'
 const N = Number(process.env.BENCH_GALAXIES ?? 100_000)
 const DURATION = Number(process.env.BENCH_SECONDS ?? 20)
 const TARGET_P99_MS = 50
+/** BENCH_ONLY=regex: only the measurements whose title matches (e.g. `10,000`), for a quick rerun */
+const ONLY = process.env.BENCH_ONLY ? new RegExp(process.env.BENCH_ONLY, 'i') : null
 // no background rebuild of the diagram: the diagram request below builds it itself
 const env = await benchServer({ DIAGRAM_WARMUP_MS: '0', LARGE_INTAKE_ROWS: '1000000000' })
 const base = env.rt.url
@@ -31,6 +33,7 @@ const send = (path: string, init: { method?: string; headers?: Record<string, st
 
 /** Samples /api/health while `work` runs; prints p50/p99/max of its latency. */
 async function during(title: string, work: () => Promise<string>) {
+  if (ONLY && !ONLY.test(title)) return
   // the server runs on this thread: its event-loop delay separates a blocked loop from a busy machine
   // (on a shared 2-core machine PostgreSQL, the compute thread and the loop compete for the cores)
   const loop = monitorEventLoopDelay({ resolution: 10 })
@@ -123,6 +126,7 @@ await during(`recompute job of ${N + 20_000} galaxies (new assumptions)`, async 
 })
 
 async function load(title: string, opts: autocannon.Options) {
+  if (ONLY && !ONLY.test(title)) return 0
   // the load generator runs in a worker thread so that it does not share the server's event loop
   const r = await autocannon({ connections: 50, duration: DURATION, workers: 1, timeout: 30, ...opts })
   const errors = r.errors + r.timeouts + r.non2xx
