@@ -537,6 +537,9 @@ export function galaxiesService(db: Db) {
   }
 }
 
+/** Galaxies of one API batch written (and computed) together; the batch stays one transaction. */
+const BATCH_WRITE_CHUNK = 1000
+
 /**
  * Ingests one API batch as an intake: all or nothing, idempotent by key. The contract's upsert by
  * ID is `onExisting: replace` (the earlier records are kept as versions); `skip` and `merge` are
@@ -566,7 +569,14 @@ export async function ingestBatch(db: Db, auth: Auth, projectId: string, gals: G
         rowsTotal: gals.length, rowsAccepted: gals.length, rowsRejected: 0, revision,
         idempotencyKey: idempotencyKey ?? null, requestHash: hash, finishedAt: new Date(),
       }).returning()
-      const counts = await writeIntakeChunk(tx, { projectId, intakeId: intake.id, onExisting, revisions, where: (i) => `/galaxies/${i}`, interactive: true }, gals)
+      // in chunks, as a CSV intake is stored: building one chunk's SQL at a time keeps the event loop free
+      const counts: IntakeCounts = { inserted: 0, updated: 0, replaced: 0, merged: 0, skipped: 0 }
+      for (let start = 0; start < gals.length; start += BATCH_WRITE_CHUNK) {
+        const part = gals.slice(start, start + BATCH_WRITE_CHUNK)
+        const last = start + BATCH_WRITE_CHUNK >= gals.length
+        const c = await writeIntakeChunk(tx, { projectId, intakeId: intake.id, onExisting, revisions, where: (i) => `/galaxies/${start + i}`, interactive: true, bumpVersion: last }, part)
+        for (const k of Object.keys(counts) as Array<keyof IntakeCounts>) counts[k] += c[k]
+      }
       const body = { intake: intakeDto(intake, { id: auth.user.id, name: auth.user.name }), ...counts, revision, methodVersion: METHOD_VERSION }
       await tx.update(intakes).set({ response: body, report: { ...counts, onExisting } }).where(eq(intakes.id, intake.id))
       return { replay: false, body }
