@@ -62,7 +62,8 @@ describe('database restart with requests flowing', () => {
     const during = await agent.get(`/api/v1/projects/${projectId}/galaxies`)
     expect(during.status).toBe(503)
     expect(during.headers['retry-after']).toBeDefined()
-    pgctl('-D', cluster.dataDir, '-w', 'start', '-l', join(dir, 'postgres.log'), '-o', `-c listen_addresses=127.0.0.1 -p ${cluster.port} -c unix_socket_directories=${join(dir, 'sock')}`)
+    // started again as `npm start` would: the same folder (or the one it was moved to) and port
+    await startEmbeddedPostgres({ dir, port: cluster.port, durable: false })
     for (let i = 0; i < 50 && (await request(app).get('/api/health')).status !== 200; i++) await sleep(200)
     expect((await request(app).get('/api/health')).status).toBe(200)
     await sleep(800)
