@@ -1,4 +1,5 @@
 import { COMMON_PASSWORDS } from './common-passwords.ts'
+import { isWellFormed } from './schemas/text.ts'
 
 export const PASSWORD_MIN_CHARS = 10
 /** bcrypt reads only the first 72 bytes of its input (Provos & Mazières 1999, the key schedule's 18 × 32-bit words). */
@@ -23,7 +24,7 @@ export const isCommonPassword = (s: string) => COMMON_PASSWORDS.has(s.toLowerCas
 /** Why a new password is refused, or null when it is acceptable (one check for server and forms). */
 export function passwordProblem(p: string): string | null {
   // a lone UTF-16 surrogate has no UTF-8 form: two different ones would hash the same
-  if (/[\ud800-\udbff](?![\udc00-\udfff])|(?<![\ud800-\udbff])[\udc00-\udfff]/.test(p)) return 'contains a broken character (an unpaired UTF-16 surrogate)'
+  if (!isWellFormed(p)) return 'contains a broken character (an unpaired UTF-16 surrogate)'
   if (Array.from(p).length < PASSWORD_MIN_CHARS) return `use at least ${PASSWORD_MIN_CHARS} characters`
   if (utf8Bytes(p) > PASSWORD_MAX_BYTES) return `use at most ${PASSWORD_MAX_BYTES} bytes (this one has ${utf8Bytes(p)}); longer passwords would be cut silently`
   if (isRepetition(p)) return 'a character or short group repeated is too easy to guess'
