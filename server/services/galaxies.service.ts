@@ -222,7 +222,8 @@ export interface IntakeChunkContext {
  * or merge), computes the results of what is written under the given revisions, and writes.
  */
 export async function writeIntakeChunk(tx: Executor, ctx: IntakeChunkContext, gals: GalaxyInputDto[]): Promise<IntakeCounts> {
-  const stored = await storedGalaxies(tx, ctx.projectId, gals.map((g) => g.id), ctx.onExisting === 'merge')
+  // replace needs no look-up here: writeGalaxies locks and copies the records it overwrites
+  const stored = ctx.onExisting === 'replace' ? new Map<string, StoredGalaxy & { id: number }>() : await storedGalaxies(tx, ctx.projectId, gals.map((g) => g.id), ctx.onExisting === 'merge')
   const write: GalaxyInputDto[] = [], at: number[] = []
   let skipped = 0
   gals.forEach((g, i) => {

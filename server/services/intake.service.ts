@@ -49,6 +49,7 @@ async function inspect(path: string): Promise<{ delimiter: string; bytes: number
   const fh = await open(path)
   const decoder = new TextDecoder('utf-8', { fatal: true })
   let start = '', bytes = 0
+  let headerFound = false
   try {
     for await (const chunk of fh.createReadStream()) {
       bytes += (chunk as Buffer).length
@@ -57,7 +58,7 @@ async function inspect(path: string): Promise<{ delimiter: string; bytes: number
       let text: string
       try { text = decoder.decode(chunk as Buffer, { stream: true }) } catch { throw bad('the file is not UTF-8 text (save it as UTF-8 CSV)') }
       // enough of the start to pass an opening comment block and hold the whole header line
-      if (start.length < (1 << 20) && headerLine(start, false) === undefined) start += text
+      if (!headerFound && start.length < (1 << 20)) { start += text; headerFound = headerLine(start, false) !== undefined }
     }
     try { decoder.decode() } catch { throw bad('the file is not UTF-8 text (save it as UTF-8 CSV)') }
   } finally { await fh.close() }

@@ -22,6 +22,12 @@ const IN_PROCESS_GRACE_MS = 60_000
 
 export interface JobQueue { enqueue(name: string, data: object): Promise<void>; stop(): Promise<void> }
 
+/** The JobQueue face of a pg-boss instance. */
+const bossQueue = (boss: PgBoss): JobQueue => ({
+  async enqueue(name, data) { await boss.send(name, data, { retryLimit: 3, retryDelay: 5 }) },
+  async stop() { await boss.stop({ graceful: true, timeout: 10_000, wait: true }) },
+})
+
 /** A pg-boss queue in the same PostgreSQL; workers may run here or in `npm run worker` elsewhere. */
 export async function startJobQueue(databaseUrl: string): Promise<{ queue: JobQueue; boss: PgBoss }> {
   const boss = new PgBoss({ connectionString: databaseUrl, max: 4, schema: 'pgboss' })
@@ -30,10 +36,7 @@ export async function startJobQueue(databaseUrl: string): Promise<{ queue: JobQu
   await boss.createQueue(RECOMPUTE_QUEUE)
   return {
     boss,
-    queue: {
-      async enqueue(name, data) { await boss.send(name, data, { retryLimit: 3, retryDelay: 5 }) },
-      async stop() { await boss.stop({ graceful: true, timeout: 10_000, wait: true }) },
-    },
+    queue: bossQueue(boss),
   }
 }
 
@@ -284,11 +287,7 @@ export async function startRecomputeWorker(boss: PgBoss, db: Db) {
   await boss.work<{ jobId: string }>(RECOMPUTE_QUEUE, { pollingIntervalSeconds: 1, batchSize: 1, includeMetadata: true }, async ([job]) => {
     await runJob(db, job.data.jobId, { finalAttempt: job.retryCount >= job.retryLimit })
   })
-  const queue: JobQueue = {
-    async enqueue(name, data) { await boss.send(name, data, { retryLimit: 3, retryDelay: 5 }) },
-    async stop() { await boss.stop({ graceful: true, timeout: 10_000, wait: true }) },
-  }
-  const watch = watchOrphanedJobs(db, queue)
+  const watch = watchOrphanedJobs(db, bossQueue(boss))
   boss.once('stopped', () => watch.stop())
   return watch
 }
