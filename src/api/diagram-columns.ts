@@ -1,5 +1,5 @@
 import { decodeDiagramColumns, DIAGRAM_COLUMNS_TYPE } from '../../shared/diagram-columns.ts'
-import { prepareDiagramArrays, prepareTypedColumns, type DiagramArrays } from '../components/diagrams/diagram-arrays'
+import { prepareDiagramArrays, prepareTypedColumns, type DiagramArrays } from '../lib/diagrams/diagram-arrays'
 import { filterQuery } from './galaxies'
 import { ApiProblem, apiUrl, problemFromResponse } from './http'
 import { projectPath } from './projects'

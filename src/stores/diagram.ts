@@ -4,7 +4,7 @@ import { loadDiagramArrays } from '../api/diagram-columns'
 import { ApiProblem } from '../api/http'
 import { projectsApi } from '../api/projects'
 import type { DiagramKey, GalaxyFilters, Settings } from '../api/types'
-import type { DiagramArrays } from '../components/diagrams/diagram-arrays'
+import type { DiagramArrays } from '../lib/diagrams/diagram-arrays'
 
 export type ColourBy = 'overall' | 'own'
 

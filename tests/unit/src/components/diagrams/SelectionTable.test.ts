@@ -3,7 +3,7 @@ import { mount, RouterLinkStub } from '@vue/test-utils'
 import { createVuetify } from 'vuetify'
 import SelectionTable from '../../../../../src/components/diagrams/SelectionTable.vue'
 import type { DiagramColumns } from '../../../../../src/api/types'
-import { prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
+import { prepareDiagramArrays } from '../../../../../src/lib/diagrams/diagram-arrays'
 
 const n = 5
 const columns: DiagramColumns = {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import type { DiagramColumns } from '../../../../../src/api/types'
-import { classLabelAt, indicesOfClass, limitSymbol, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/components/diagrams/diagram-arrays'
-import { parseColour, SYMBOL } from '../../../../../src/components/diagrams/point-raster'
+import { classLabelAt, indicesOfClass, limitSymbol, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/lib/diagrams/diagram-arrays'
+import { parseColour, SYMBOL } from '../../../../../src/lib/diagrams/point-raster'
 import { CLASS_COLOURS } from '../../../../../src/utils/classes'
 
 const names = {

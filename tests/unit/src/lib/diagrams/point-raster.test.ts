@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { makeSprite, parseColour, projectPoints, rasterise, SYMBOL, type RasterInput } from '../../../../../src/components/diagrams/point-raster'
+import { makeSprite, parseColour, projectPoints, rasterise, SYMBOL, type RasterInput } from '../../../../../src/lib/diagrams/point-raster'
 
 // Geometry and compositing checks of the point layer. The "over" operator is Porter & Duff (1984,
 // "Compositing Digital Images", SIGGRAPH); the rest is plain arithmetic on the inputs (common practice).

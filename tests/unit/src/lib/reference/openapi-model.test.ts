@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { children, groupByTag, readOperations, typeText, type Schema } from '../../../../../src/components/reference/openapi-model'
+import { children, groupByTag, readOperations, typeText, type Schema } from '../../../../../src/lib/reference/openapi-model'
 
 const doc: Schema = {
   openapi: '3.1.0',

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { buildGrid, nearestPoint, parsePath, pointsInShapes, shapesFromEvent } from '../../../../../src/components/diagrams/point-geometry'
+import { buildGrid, nearestPoint, parsePath, pointsInShapes, shapesFromEvent } from '../../../../../src/lib/diagrams/point-geometry'
 
 // Selection and picking on the columnar arrays; expected values follow from the inputs (common practice).
 
