@@ -1,8 +1,6 @@
 import { onBeforeUnmount } from 'vue'
+import { hasFigure } from '../lib/diagrams/plotly-frame'
 import type { PlotlyModule } from '../utils/plotly'
-
-/** Plotly's figure state on its element: set by the first draw, removed by purge. */
-const hasFigure = (gd: HTMLElement | undefined) => !!(gd as { _fullLayout?: unknown } | undefined)?._fullLayout
 
 /**
  * Plotly calls on one element, one after another, and none once the component is gone: plotly's
@@ -21,7 +19,7 @@ export function usePlotQueue(element: () => HTMLElement | undefined, plotly: () 
   }
 
   /**
-   * A change to a drawn figure (relayout, resize). Plotly's relayout reads `gd._fullLayout` and
+   * A change to a drawn figure (relayout, resize). Plotly's relayout reads its figure state and
    * throws on an element not yet drawn, so one asked for before the first draw (settings arriving
    * while the panel waits for its width) is dropped: that draw reads the current state anyway.
    */

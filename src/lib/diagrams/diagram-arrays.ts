@@ -124,3 +124,17 @@ export function indicesOfClass(a: DiagramArrays, name: string, by: ClassDiagram[
 export function classLabelAt(a: DiagramArrays, d: ClassDiagram, i: number): string {
   return classLabel(a.names[d][a.codes[d][i]])
 }
+
+/** What a tooltip says about one point. */
+export interface PointTipText { id: string; label: string; x: string; y: string }
+
+/** An axis value for a tooltip: three decimals of a log ratio, or three figures of EW(Hα) on the log axis. */
+export function fmtAxis(v: number, log: boolean): string {
+  if (!Number.isFinite(v)) return '—'
+  return log ? `${v.toPrecision(3)} Å` : v.toFixed(3)
+}
+
+/** The tooltip of point i on a panel, coloured by classification `d`. */
+export function pointTipText(a: DiagramArrays, p: PanelArrays, d: ClassDiagram, yLog: boolean, i: number): PointTipText {
+  return { id: a.ids[i], label: classLabelAt(a, d, i), x: fmtAxis(p.x[i], false), y: fmtAxis(p.y[i], yLog) }
+}
