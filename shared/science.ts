@@ -7,14 +7,17 @@
 export { diagnoseColumns, diagnoseGalaxy, diagnoseMany } from './diagnostics/pipeline.ts'
 export { DEFAULT_SETTINGS, MAX_MONTE_CARLO_DRAWS, METHOD_VERSION, ScienceSettingsError, validateSettings } from './diagnostics/settings.ts'
 export type * from './diagnostics/types.ts'
-export { ScienceInputError, ROW_FLAGS, METALLICITY_KEYS, type Flagged } from './flags.ts'
+export { ScienceInputError, type Flagged } from './flags.ts'
 export { assertAllFinite, findNonFinite } from './stats/finite.ts'
 
-// lines and dust
-export { AIR_WAVELENGTH_ANGSTROM, LINE_IDS, LINES, isLineId, type LineInfo } from './lines/index.ts'
+// names: lines, ratios, laws, classes, calibrations, flags (shared/vocabulary/)
 export {
-  calzetti00K, ccm89K, defaultRvFor, EXTINCTION_LAWS, EXTINCTION_RANGE_ANGSTROM, extinctionK, fitzpatrick99K, odonnell94K,
-} from './extinction/index.ts'
+  AIR_WAVELENGTH_ANGSTROM, CLASS_KEYS, className, DIAGRAM_CLASSES, defaultRvFor, EXTINCTION_LAWS, isLineId, LINE_IDS, LINES,
+  METALLICITY_KEYS, RATIO_KEYS, ROW_FLAGS, type LineInfo,
+} from './vocabulary/index.ts'
+
+// dust
+export { calzetti00K, ccm89K, EXTINCTION_RANGE_ANGSTROM, extinctionK, fitzpatrick99K, odonnell94K } from './extinction/index.ts'
 export {
   balmerCoefficient, colourExcessFromBalmer, colourExcessFromBalmerRaw, colourExcessFromHgammaRaw, dereddeningFactor,
   INTRINSIC_HALPHA_HBETA_AGN, INTRINSIC_HALPHA_HBETA_CASE_B, INTRINSIC_HGAMMA_HBETA_CASE_B,
@@ -22,7 +25,6 @@ export {
 export { ExtinctionRangeError } from './diagnostics/kernel.ts'
 
 // diagrams
-export { CLASS_NAMES, DIAGRAM_CLASSES, className } from './diagnostics/classes.ts'
 export {
   kauffmann2003Line, kewley2001NiiLine, kewley2001OiLine, kewley2001SiiLine, signedDistanceToHyperbola, signedDistanceToLine,
   KA03, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, S07_NII,

@@ -1,6 +1,6 @@
 import { createRng, type Rng } from '../../shared/stats/rng.ts'
 import { extinctionK } from '../../shared/extinction/index.ts'
-import { LINES } from '../../shared/lines/index.ts'
+import { LINES } from '../../shared/vocabulary/lines.ts'
 import { doubletRatioFromDensity, SANDERS16_OII, SANDERS16_SII } from '../../shared/diagnostics/density.ts'
 import { KA03, KE01_NII, hyperbolaY } from '../../shared/diagnostics/demarcation.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'

@@ -1,4 +1,5 @@
-import { GalaxyInputSchema, LINE_ID_LIST, type GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
+import { GalaxyInputSchema, type GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
+import { LINE_IDS } from '../../shared/vocabulary/lines.ts'
 import type { ColumnMapping, IntakeOptions, IntakeProblem } from '../../shared/schemas/intake.schema.ts'
 
 /**
@@ -41,7 +42,7 @@ export function rowToGalaxy(record: string[], row: number, headerIndex: Map<stri
   const ra = number(m.ra); if (ra !== undefined) g.ra = ra
   const dec = number(m.dec); if (dec !== undefined) g.dec = dec
   const lines = g.lines as Record<string, unknown>
-  for (const lineId of LINE_ID_LIST) {
+  for (const lineId of LINE_IDS) {
     const cols = m.lines[lineId]
     if (!cols) continue
     const flux = number(cols.flux), error = number(cols.error), limit = opts.nonDetection === 'limit-column' ? number(cols.limit) : undefined
@@ -89,7 +90,7 @@ export function suggestMapping(headers: string[]): ColumnMapping {
   const lines: ColumnMapping['lines'] = {}
   const ew: ColumnMapping['ew'] = {}
   const fwhm: ColumnMapping['fwhm'] = {}
-  for (const id of LINE_ID_LIST) {
+  for (const id of LINE_IDS) {
     const flux = pick(`${id}_flux`, id, `f_${id}`, `flux_${id}`)
     if (flux) {
       const error = pick(`${id}_err`, `${id}_error`, `${id}_flux_err`, `${id}_sigma`, `e_${id}`, `${id}_e`, `err_${id}`)

@@ -9,7 +9,7 @@ import { HttpProblem, conflict, notFound, type FieldError } from '../http/proble
 import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
 import type { IntakeCounts, OnExisting } from '../../shared/schemas/intake.schema.ts'
 import { mergeGalaxy, type StoredGalaxy } from '../../shared/galaxy-merge.ts'
-import { CLASS_NAMES, classCode, type ClassDiagram } from '../../shared/schemas/classes.ts'
+import { DIAGRAM_CLASSES as CLASS_NAMES, classCode, type ClassDiagram } from '../../shared/vocabulary/classes.ts'
 import { METHOD_VERSION, type GalaxyResult } from '../../shared/science.ts'
 import { diagnose, diagnoseRows, inProcessCompute, type ComputeOptions, type ComputePool } from '../compute/pool.ts'
 import { overBudget, type Budgets } from '../compute/budget.ts'

@@ -1,7 +1,7 @@
 import { sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import type { Role } from '../http/auth.ts'
-import { CLASS_NAMES, CLASS_DIAGRAMS } from '../../shared/schemas/classes.ts'
+import { DIAGRAM_CLASSES, CLASS_DIAGRAMS } from '../../shared/vocabulary/classes.ts'
 import { projectsService } from './projects.service.ts'
 
 /** Equal-width histogram of a results column computed in SQL (width_bucket). */
@@ -24,8 +24,8 @@ export async function overview(db: Db, projectId: string, role: Role) {
   for (const d of CLASS_DIAGRAMS) {
     const col = sql.raw(`class_${d}`)
     const rows = await db.execute<{ c: number; n: number }>(sql`select ${col} as c, count(*)::int as n from results where project_id = ${projectId}::uuid and revision = ${revision} group by 1`)
-    classCounts[d] = Object.fromEntries(CLASS_NAMES[d].map((name) => [name, 0]))
-    for (const { c, n } of rows.rows) classCounts[d][CLASS_NAMES[d][c] ?? 'unclassified'] += n
+    classCounts[d] = Object.fromEntries(DIAGRAM_CLASSES[d].map((name) => [name, 0]))
+    for (const { c, n } of rows.rows) classCounts[d][DIAGRAM_CLASSES[d][c] ?? 'unclassified'] += n
   }
   return {
     project,

@@ -1,4 +1,4 @@
-import { classCode } from '../../shared/schemas/classes.ts'
+import { classCode } from '../../shared/vocabulary/classes.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 
 /** Bits of results.limits: which diagram coordinate is a limit, and which way. */

@@ -1,7 +1,7 @@
 import * as __limits from '../stats/limits.ts'
 import {
   CLASS_AGN, CLASS_AMBIGUOUS, CLASS_COMPOSITE, CLASS_LINER, CLASS_SEYFERT, CLASS_STAR_FORMING, CLASS_UNCLASSIFIED,
-} from './classes.ts'
+} from '../vocabulary/classes.ts'
 import { isBelowHyperbola, KA03, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, S07_NII, type HyperbolaCurve, type StraightLine } from './demarcation.ts'
 // imported constants copied into module scope: V8 reads module-local constants in hot loops without
 // the per-access initialisation check that imported bindings need

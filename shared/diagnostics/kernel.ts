@@ -5,10 +5,12 @@
  * truth). Inside the kernel NaN is the "no value" sentinel of float columns; `pipeline.ts` turns every
  * NaN into null plus a flag before anything leaves the library.
  */
-import { extinctionK, type ExtinctionLaw } from '../extinction/index.ts'
-import { flagBit, METALLICITY_KEYS } from '../flags.ts'
-import * as __flags from '../flags.ts'
-import { LINE_COUNT, LINE_IDS, LINES } from '../lines/index.ts'
+import { extinctionK } from '../extinction/index.ts'
+import { METALLICITY_KEYS } from '../vocabulary/calibrations.ts'
+import type { ExtinctionLaw } from '../vocabulary/extinction-laws.ts'
+import { flagBit } from '../vocabulary/flags.ts'
+import * as __flags from '../vocabulary/flags.ts'
+import { LINE_COUNT, LINE_IDS, LINES } from '../vocabulary/lines.ts'
 import { linearisedLogVariance, linearisedLogVarianceOfLine } from '../stats/error-propagation.ts'
 import * as __error_propagation from '../stats/error-propagation.ts'
 import { ratioLimitStatus, stateOfSum } from '../stats/limits.ts'
@@ -16,7 +18,7 @@ import * as __limits from '../stats/limits.ts'
 import { balmerCoefficient, INTRINSIC_HGAMMA_HBETA_CASE_B } from './balmer-decrement.ts'
 import { blackHoleMassGreeneHo05, GREENE_HO05 } from './black-hole.ts'
 import { classifyNiiPoint, classifyOiPoint, classifySiiPoint, classProvenByLimits, niiSubtypeOfPoint, overallClass } from './bpt.ts'
-import * as __classes from './classes.ts'
+import * as __classes from '../vocabulary/classes.ts'
 import {
   KA03, KA03_KE01_CROSSING_X, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, S07_NII, signedDistanceToHyperbola,
   signedDistanceToLine, type HyperbolaCurve, type StraightLine,

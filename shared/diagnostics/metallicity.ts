@@ -1,4 +1,4 @@
-import type { MetallicityKey } from '../flags.ts'
+import type { MetallicityKey } from '../vocabulary/calibrations.ts'
 
 /** Which strong-line index a calibration uses (shared/science/README.md §5). */
 export type MetallicityIndex = 'n2' | 'o3n2' | 'n2s2ha'

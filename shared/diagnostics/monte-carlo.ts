@@ -1,6 +1,6 @@
 import { hashString, createRng, splitmix32 } from '../stats/rng.ts'
 import { percentilesBySelection } from '../stats/percentiles.ts'
-import { LINE_COUNT } from '../lines/index.ts'
+import { LINE_COUNT } from '../vocabulary/lines.ts'
 import { LINE_DETECTED, LINE_UPPER_LIMIT } from '../stats/limits.ts'
 import {
   createKernelInput, createKernelOutput, FLOAT_COLUMN_COUNT, FLOAT_COLUMN_IS_VALUE, IC, INT_COLUMN_COUNT, runKernel,

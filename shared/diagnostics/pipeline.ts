@@ -2,10 +2,12 @@
  * The object API: validate galaxies, pack them into kernel columns, run the kernel (and the Monte
  * Carlo), and build `GalaxyResult`s in which every number is finite or null.
  */
-import { FLAG_WORDS, METALLICITY_KEYS, requireFinite, requirePositiveFinite, ROW_FLAGS, ScienceInputError, belowMinSnrFlag, ratioLimitFlag } from '../flags.ts'
-import { isLineId, LINE_COUNT, LINE_IDS, LINE_INDEX, type LineId } from '../lines/index.ts'
+import { requireFinite, requirePositiveFinite, ScienceInputError } from '../flags.ts'
+import { METALLICITY_KEYS } from '../vocabulary/calibrations.ts'
+import { FLAG_WORDS, ROW_FLAGS, belowMinSnrFlag, ratioLimitFlag } from '../vocabulary/flags.ts'
+import { isLineId, LINE_COUNT, LINE_IDS, LINE_INDEX, type LineId } from '../vocabulary/lines.ts'
 import { LINE_DETECTED, LINE_UPPER_LIMIT, RATIO_LOWER, RATIO_UPPER } from '../stats/limits.ts'
-import { className, DIAGRAM_CLASSES, CLASS_LINER, CLASS_SEYFERT, type NiiClass, type OverallClass, type SiiOiClass, type WhanClass } from './classes.ts'
+import { CLASS_CODE, className, DIAGRAM_CLASSES, CLASS_LINER, CLASS_SEYFERT, type ClassName, type NiiClass, type OverallClass, type SiiOiClass, type WhanClass } from '../vocabulary/classes.ts'
 import {
   createKernelInput, createKernelOutput, DENSITY_NOT_COMPUTED, FC, FLAG_STRIDE, FLOAT_COLUMN_COUNT, FLOAT_COLUMN_IS_VALUE, IC,
   INT_COLUMN_COUNT, prepareSettings, RATIO_KEYS, runKernel, type KernelInput, type KernelOutput, type PreparedSettings,
@@ -128,12 +130,8 @@ function rowFlags(out: KernelOutput, row: number): string[] {
   return flags
 }
 
-function probabilities<T extends string>(names: readonly T[], fractions: Float64Array): Record<T, number> {
-  const codeOf: Record<string, number> = {
-    'unclassified': 0, 'star-forming': 1, 'composite': 2, 'agn': 3, 'seyfert': 4, 'liner': 5, 'ambiguous': 6,
-    'strong-agn': 7, 'weak-agn': 8, 'retired': 9, 'passive': 10,
-  }
-  return Object.fromEntries(names.map((n) => [n, fractions[codeOf[n]]])) as Record<T, number>
+function probabilities<T extends ClassName>(names: readonly T[], fractions: Float64Array): Record<T, number> {
+  return Object.fromEntries(names.map((n) => [n, fractions[CLASS_CODE[n]]])) as Record<T, number>
 }
 
 function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelOutput, prep: PreparedSettings, mc: MonteCarloSummary | null): GalaxyResult {

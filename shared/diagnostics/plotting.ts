@@ -1,8 +1,9 @@
 /**
  * Plotting helpers for the dashboard, built from the same curves and coefficients the classifier uses.
  */
-import { extinctionK, type ExtinctionLaw } from '../extinction/index.ts'
-import { AIR_WAVELENGTH_ANGSTROM } from '../lines/index.ts'
+import { extinctionK } from '../extinction/index.ts'
+import type { ExtinctionLaw } from '../vocabulary/extinction-laws.ts'
+import { AIR_WAVELENGTH_ANGSTROM } from '../vocabulary/lines.ts'
 import {
   KA03, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, S07_NII, straightLineY, type HyperbolaCurve, type StraightLine,
 } from './demarcation.ts'

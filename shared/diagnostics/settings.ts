@@ -1,4 +1,5 @@
-import { defaultRvFor, EXTINCTION_LAWS } from '../extinction/index.ts'
+import { SFR_CALIBRATIONS } from '../vocabulary/calibrations.ts'
+import { defaultRvFor, EXTINCTION_LAWS } from '../vocabulary/extinction-laws.ts'
 import { INTRINSIC_HALPHA_HBETA_CASE_B } from './balmer-decrement.ts'
 import type { DiagnosticSettings } from './types.ts'
 
@@ -61,8 +62,8 @@ export function validateSettings(settings: DiagnosticSettings): void {
   positive('/settings/electronTemperature', settings.electronTemperature)
   positive('/settings/minSnr', settings.minSnr)
   if (typeof settings.allowNegative !== 'boolean') throw new ScienceSettingsError('/settings/allowNegative', 'allowNegative must be a boolean')
-  if (settings.sfrCalibration !== 'kennicutt98' && settings.sfrCalibration !== 'kennicuttEvans12') {
-    throw new ScienceSettingsError('/settings/sfrCalibration', `sfrCalibration must be kennicutt98 or kennicuttEvans12, got ${String(settings.sfrCalibration)}`)
+  if (!SFR_CALIBRATIONS.includes(settings.sfrCalibration)) {
+    throw new ScienceSettingsError('/settings/sfrCalibration', `sfrCalibration must be one of ${SFR_CALIBRATIONS.join(', ')}, got ${String(settings.sfrCalibration)}`)
   }
   positive('/settings/cosmology/h0', settings.cosmology?.h0)
   const om = settings.cosmology.omegaM

@@ -1,5 +1,5 @@
 import * as __limits from '../stats/limits.ts'
-import { CLASS_PASSIVE, CLASS_RETIRED, CLASS_STAR_FORMING, CLASS_STRONG_AGN, CLASS_UNCLASSIFIED, CLASS_WEAK_AGN } from './classes.ts'
+import { CLASS_PASSIVE, CLASS_RETIRED, CLASS_STAR_FORMING, CLASS_STRONG_AGN, CLASS_UNCLASSIFIED, CLASS_WEAK_AGN } from '../vocabulary/classes.ts'
 // imported constants copied into module scope: V8 reads module-local constants in hot loops without
 // the per-access initialisation check that imported bindings need
 const RATIO_EXACT = __limits.RATIO_EXACT

@@ -2,11 +2,9 @@ import { calzetti00K, CALZETTI00_RANGE_ANGSTROM } from './calzetti00.ts'
 import { ccm89K, CCM89_RANGE_ANGSTROM } from './ccm89.ts'
 import { fitzpatrick99K, FITZPATRICK99_RANGE_ANGSTROM } from './fitzpatrick99.ts'
 import { odonnell94K, ODONNELL94_RANGE_ANGSTROM } from './odonnell94.ts'
+import type { ExtinctionLaw } from '../vocabulary/extinction-laws.ts'
 
-/** The extinction laws the service offers (public API `extinctionLaw`; shared/science/README.md §1.3). */
-export type ExtinctionLaw = 'ccm89' | 'odonnell94' | 'calzetti00' | 'fitzpatrick99'
-
-export const EXTINCTION_LAWS: readonly ExtinctionLaw[] = ['ccm89', 'odonnell94', 'calzetti00', 'fitzpatrick99']
+// the laws' keys, labels and default R_V are in shared/vocabulary/extinction-laws.ts (shared/science/README.md §1.3)
 
 /** Valid wavelength range of each law in Å (shared/science/README.md §1.3). */
 export const EXTINCTION_RANGE_ANGSTROM: Readonly<Record<ExtinctionLaw, { min: number; max: number }>> = {
@@ -21,19 +19,6 @@ const LAW_FUNCTIONS: Readonly<Record<ExtinctionLaw, (wavelengthAngstrom: number,
   odonnell94: odonnell94K,
   calzetti00: calzetti00K,
   fitzpatrick99: fitzpatrick99K,
-}
-
-/**
- * The R_V a law is used with when the caller names the law but no R_V: 4.05 for Calzetti et al. 2000
- * (ApJ 533, 682, eq. 5: R′_V = 4.05 ± 0.80), 3.1 otherwise (diffuse Milky Way value; Cardelli et al.
- * 1989, ApJ 345, 245 — common practice).
- *
- * @param law  extinction law key
- * @returns R_V, dimensionless
- * @example defaultRvFor('calzetti00') // 4.05
- */
-export function defaultRvFor(law: ExtinctionLaw): number {
-  return law === 'calzetti00' ? 4.05 : 3.1
 }
 
 /**

@@ -1,4 +1,4 @@
-import { LINE_ID_LIST } from './galaxy.schema.ts'
+import { LINE_IDS as LINE_ID_LIST } from '../vocabulary/lines.ts'
 
 /** One column of the CSV and VOTable exports, with its unit (VOUnit) and UCD (IVOA UCD1+). */
 export interface ExportColumn {

@@ -1,12 +1,9 @@
 import { z } from 'zod'
 import { textLine } from './text.ts'
 import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
-
-/** The line identifiers of the public API (shared/lines/index.ts; shared/science/README.md §0). */
-export const LINE_ID_LIST = [
-  'halpha', 'hbeta', 'hgamma', 'hdelta', 'oiii_5007', 'oiii_4959', 'oiii_4363', 'nii_6584', 'nii_6548',
-  'nii_5755', 'sii_6717', 'sii_6731', 'oi_6300', 'oii_3726', 'oii_3729', 'halpha_broad',
-] as const
+import { SFR_CALIBRATIONS } from '../vocabulary/calibrations.ts'
+import { defaultRvFor, EXTINCTION_LAWS } from '../vocabulary/extinction-laws.ts'
+import { LINE_IDS, type LineId } from '../vocabulary/lines.ts'
 
 /**
  * Bounds of the numbers a galaxy may carry. They are wide enough for any survey's units and keep
@@ -46,7 +43,7 @@ export const LineValueSchema = z.object({
 }).meta({ id: 'LineValue', description: '`{flux, error}` (error > 0) or `{upperLimit}` (> 0)' })
 
 const perLine = <T extends z.ZodType>(value: T) =>
-  z.object(Object.fromEntries(LINE_ID_LIST.map((id) => [id, value.optional()])) as Record<(typeof LINE_ID_LIST)[number], z.ZodOptional<T>>).strict()
+  z.object(Object.fromEntries(LINE_IDS.map((id) => [id, value.optional()])) as Record<LineId, z.ZodOptional<T>>).strict()
 
 export const GalaxyInputSchema = z.object({
   id: textLine().min(1).max(120).meta({ description: 'the pipeline\'s own galaxy ID' }),
@@ -60,8 +57,6 @@ export const GalaxyInputSchema = z.object({
 }).strict().meta({ id: 'GalaxyInput' })
 export type GalaxyInputDto = z.infer<typeof GalaxyInputSchema>
 
-export const EXTINCTION_LAWS = ['ccm89', 'odonnell94', 'calzetti00', 'fitzpatrick99'] as const
-
 /** Analysis settings (assumptions). Every field optional; defaults in shared/diagnostics/settings.ts (shared/science/README.md §10). */
 export const SettingsInputSchema = z.object({
   extinctionLaw: z.enum(EXTINCTION_LAWS).default('ccm89'),
@@ -70,7 +65,7 @@ export const SettingsInputSchema = z.object({
   electronTemperature: z.number().min(5000).max(30000).default(10000).meta({ description: 'K, used for the density diagnostics' }),
   minSnr: z.number().min(0).max(100).default(3),
   allowNegative: z.boolean().default(false),
-  sfrCalibration: z.enum(['kennicutt98', 'kennicuttEvans12']).default('kennicutt98'),
+  sfrCalibration: z.enum(SFR_CALIBRATIONS).default('kennicutt98'),
   cosmology: z.object({
     h0: z.number().min(20).max(150).default(70),
     omegaM: z.number().min(0).max(1).default(0.3),
@@ -83,7 +78,7 @@ export const SettingsInputSchema = z.object({
 
 export const SettingsSchema = SettingsInputSchema.transform((s) => ({
   ...s,
-  rv: s.rv ?? (s.extinctionLaw === 'calzetti00' ? 4.05 : 3.1),
+  rv: s.rv ?? defaultRvFor(s.extinctionLaw),
 })).meta({ id: 'Settings' })
 export type Settings = z.output<typeof SettingsSchema>
 

@@ -1,10 +1,11 @@
 import { z } from 'zod'
-import { FluxUnitSchema, LINE_ID_LIST } from './galaxy.schema.ts'
+import { LINE_IDS, type LineId } from '../vocabulary/lines.ts'
+import { FluxUnitSchema } from './galaxy.schema.ts'
 import { textLine } from './text.ts'
 
 const header = textLine().min(1).max(200)
 const perLine = <T extends z.ZodType>(v: T) =>
-  z.object(Object.fromEntries(LINE_ID_LIST.map((id) => [id, v.optional()])) as Record<(typeof LINE_ID_LIST)[number], z.ZodOptional<T>>).strict()
+  z.object(Object.fromEntries(LINE_IDS.map((id) => [id, v.optional()])) as Record<LineId, z.ZodOptional<T>>).strict()
 
 /** Which CSV column feeds which field. Values are header names of the uploaded file. */
 export const ColumnMappingSchema = z.object({

@@ -1,9 +1,9 @@
 import { z } from 'zod'
-import { CLASS_NAMES } from './classes.ts'
+import { DIAGRAM_CLASSES } from '../vocabulary/classes.ts'
 import { positiveInt4, textLine } from './text.ts'
 
 /** Query-string list: repeated parameter or comma-separated. */
-const list = <T extends readonly [string, ...string[]]>(values: T) =>
+const list = <const T extends readonly string[]>(values: T) =>
   z.preprocess((v) => (v === undefined ? undefined : (Array.isArray(v) ? v : [v]).flatMap((s) => String(s).split(',')).filter(Boolean)),
     z.array(z.enum(values)).optional())
 
@@ -35,11 +35,11 @@ const RangeSchema = textLine().max(200).transform((s, ctx) => {
 })
 
 export const GalaxyFilterSchema = z.object({
-  class: list(CLASS_NAMES.overall).meta({ description: 'overall class(es), comma-separated or repeated' }),
-  classNii: list(CLASS_NAMES.nii),
-  classSii: list(CLASS_NAMES.sii),
-  classOi: list(CLASS_NAMES.oi),
-  classWhan: list(CLASS_NAMES.whan),
+  class: list(DIAGRAM_CLASSES.overall).meta({ description: 'overall class(es), comma-separated or repeated' }),
+  classNii: list(DIAGRAM_CLASSES.nii),
+  classSii: list(DIAGRAM_CLASSES.sii),
+  classOi: list(DIAGRAM_CLASSES.oi),
+  classWhan: list(DIAGRAM_CLASSES.whan),
   q: textLine().max(120).optional().meta({ description: 'text contained in the galaxy ID' }),
   zMin: num.optional(),
   zMax: num.optional(),

@@ -1,6 +1,6 @@
 import { ApiProblem, apiUrl, csrfHeaders, http } from './http'
 import { projectPath } from './projects'
-import type { ColumnMapping, CommitAnswer, CsvUpload, GalaxyVersion, Intake, ItemList, Job, NonDetection, OnExisting, ValidationReport } from './types'
+import type { ColumnMapping, CommitAnswer, CsvUpload, GalaxyVersion, Intake, IntakeDetail, ItemList, Job, NonDetection, OnExisting, ValidationReport } from './types'
 
 export interface CommitOptions { mapping: ColumnMapping; fluxUnit: number; nonDetection: NonDetection; saveMappingAs?: string; onExisting?: OnExisting }
 
@@ -32,7 +32,7 @@ function uploadCsv(projectId: string, file: File, onProgress: (fraction: number)
 
 export const intakesApi = {
   list: (projectId: string) => http.get<ItemList<Intake>>(`${projectPath(projectId)}/intakes`),
-  get: (projectId: string, intakeId: string) => http.get<Intake>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}`),
+  get: (projectId: string, intakeId: string) => http.get<IntakeDetail>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}`),
   uploadCsv,
   validate: (projectId: string, intakeId: string, options: CommitOptions) =>
     http.post<ValidationReport>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/validate`, options),

@@ -1,57 +1,38 @@
+import type { z } from 'zod'
 import type { DiagramColumnsJson } from '../../shared/diagram-columns.ts'
+import type {
+  ApiKeyCreatedSchema, ApiKeySchema, IntakeSchema, JobSchema, MeSchema, ProjectSchema, RoleSchema,
+} from '../../shared/schemas/api.schema.ts'
+import type { GalaxyResultSchema } from '../../shared/schemas/diagnostics-result.schema.ts'
+import type { Settings as SettingsDto } from '../../shared/schemas/galaxy.schema.ts'
+import type {
+  ColumnMapping as ColumnMappingDto, IntakeCounts as IntakeCountsDto, IntakeProblemSchema, IntakeReportSchema, NonDetectionSchema,
+  OnExisting as OnExistingDto,
+} from '../../shared/schemas/intake.schema.ts'
+import type { LineValue } from '../../shared/diagnostics/types.ts'
+import type { ClassDiagram, Diagram, LineId } from '../../shared/vocabulary/index.ts'
+
 /**
- * What the dashboard reads and sends, as described in server/API-DESIGN.md and the team's API
- * contract. Kept here rather than imported from the server so the client states what it relies on.
+ * What the dashboard reads and sends. Where the shared zod schemas (shared/schemas/) describe a
+ * request or an answer, the type is `z.infer` of that schema, so the client and the server cannot
+ * drift apart; the shapes typed here are those only the server's routes describe.
  */
 
-export const LINE_IDS = [
-  'halpha', 'hbeta', 'hgamma', 'hdelta', 'oiii_5007', 'oiii_4959', 'oiii_4363', 'nii_6584', 'nii_6548',
-  'nii_5755', 'sii_6717', 'sii_6731', 'oi_6300', 'oii_3726', 'oii_3729', 'halpha_broad',
-] as const
-export type LineId = (typeof LINE_IDS)[number]
+export type { ClassDiagram, LineId, LineValue }
 
-export type Role = 'owner' | 'analyst' | 'viewer'
-export type DiagramKey = 'nii' | 'sii' | 'oi' | 'whan'
-export type ClassDiagram = DiagramKey | 'overall'
+/** The four diagram panels (the three BPT diagrams and WHAN). */
+export type DiagramKey = Diagram
 
-export type LineValue = { flux: number; error: number } | { upperLimit: number }
+export type Role = z.infer<typeof RoleSchema>
 
-export interface ProjectRoleRef { id: string; name: string; role: Role }
-
-export interface Me {
-  id: string
-  email: string
-  name: string
-  isSiteAdmin: boolean
-  /** API keys and joining projects need a verified address */
-  emailVerified: boolean
-  projects: ProjectRoleRef[]
-}
+export type Me = z.infer<typeof MeSchema>
 
 export interface UserRef { id: string; name: string; email?: string }
 
-export interface Project {
-  id: string
-  name: string
-  description: string | null
-  role: Role
-  createdAt: string
-  galaxyCount: number
-  currentRevision: number
-}
+export type Project = z.infer<typeof ProjectSchema>
 
-export interface Settings {
-  extinctionLaw: 'ccm89' | 'odonnell94' | 'calzetti00' | 'fitzpatrick99'
-  rv: number
-  intrinsicBalmer: number
-  electronTemperature: number
-  minSnr: number
-  allowNegative?: boolean
-  sfrCalibration?: 'kennicutt98' | 'kennicuttEvans12'
-  cosmology: { h0: number; omegaM: number }
-  monteCarlo: { draws: number; seed: number }
-  [extra: string]: unknown
-}
+/** The project's assumptions, complete (the server fills the defaults). */
+export type Settings = SettingsDto
 
 export interface Revision {
   revision: number
@@ -61,38 +42,12 @@ export interface Revision {
   createdBy: UserRef | null
 }
 
-export interface Job {
-  id: string
-  kind: 'recompute' | 'intake' | 'undo'
-  status: 'queued' | 'running' | 'done' | 'failed'
-  total: number
-  done: number
-  error: string | null
-  createdAt: string
-  finishedAt: string | null
-  /** the intake an `intake` job stores */
-  intakeId?: string | null
-  heartbeatAt?: string | null
-  /** set when the job's worker had gone (a crash, a restart) and it was taken up again */
-  resumedAt?: string | null
-  resumeCount?: number
-  /** how far it had come: a recompute continues from there, an intake (all or nothing) starts again */
-  resumedFrom?: number | null
-}
+export type Job = z.infer<typeof JobSchema>
 
-export interface Intake {
-  id: string
-  kind: 'api' | 'csv'
-  status: 'staged' | 'committing' | 'committed' | 'undone' | 'rejected' | 'failed'
-  fileName: string | null
-  createdAt: string
-  finishedAt: string | null
-  by: UserRef | null
-  rowsTotal: number
-  rowsAccepted: number
-  rowsRejected: number
-  report?: unknown
-}
+export type Intake = z.infer<typeof IntakeSchema>
+
+/** One intake as `GET …/intakes/{id}` answers: with its report (counts, problems or the undo). */
+export type IntakeDetail = Intake & { report?: unknown }
 
 /** `log`: the edges are log10 of the quantity (the server bins densities logarithmically). */
 export interface Histogram { edges: number[]; counts: number[]; log?: boolean }
@@ -145,22 +100,7 @@ export interface GalaxyQuery extends GalaxyFilters {
 }
 
 /** Results for one galaxy under one revision; the shape of one POST /diagnostics result. */
-export interface GalaxyResult {
-  id?: string
-  extinction?: { balmerDecrement: number | null; ebv: number | null; ebvError: number | null; av: number | null; flags: string[] } | null
-  dereddened?: Partial<Record<LineId, { flux: number | null; error: number | null } | { upperLimit: number }>> | null
-  ratios?: Record<string, number | null> | null
-  ratioErrors?: Record<string, number | null> | null
-  ratioLimits?: Record<string, 'upper' | 'lower'> | null
-  classes?: Partial<Record<ClassDiagram, string>> & { classProbabilities?: unknown }
-  density?: Record<string, { ne: number | null; neError: number | null; flag: string | null } | null> | null
-  temperature?: Record<string, unknown> | null
-  metallicity?: Record<string, unknown> | null
-  sfr?: Record<string, unknown> | null
-  blackHoleMass?: unknown
-  flags?: string[]
-  [extra: string]: unknown
-}
+export type GalaxyResult = z.infer<typeof GalaxyResultSchema>
 
 export interface GalaxyDetail {
   id: string
@@ -189,17 +129,9 @@ export interface GalaxyRevisionResults {
 /** Columnar diagram data: one entry per galaxy in every array (see API-DESIGN.md); one definition with the binary codec's. */
 export type DiagramColumns = DiagramColumnsJson
 
-export interface ColumnMapping {
-  id: string
-  redshift?: string
-  ra?: string
-  dec?: string
-  lines: Partial<Record<LineId, { flux: string; error?: string; limit?: string }>>
-  ew: Partial<Record<LineId, string>>
-  fwhm: Partial<Record<LineId, string>>
-}
+export type ColumnMapping = ColumnMappingDto
 
-export type NonDetection = 'limit-column' | 'negative-error' | 'snr-only'
+export type NonDetection = z.infer<typeof NonDetectionSchema>
 
 export interface CsvUpload {
   intake: Intake
@@ -210,23 +142,15 @@ export interface CsvUpload {
   savedMappings: { name: string; mapping: ColumnMapping }[]
 }
 
-/** `field` is the file's column header, `column` its 1-based position (or a name on older servers). */
-export interface ValidationProblem { row: number; column: number | string | null; field: string | null; message: string }
+/** `field` is the file's column header, `column` its 1-based position. */
+export type ValidationProblem = z.infer<typeof IntakeProblemSchema>
 
 /** What an intake does with IDs the project already has. */
-export type OnExisting = 'skip' | 'replace' | 'merge'
+export type OnExisting = OnExistingDto
 
-export interface ValidationReport {
-  rowsTotal: number
-  rowsValid: number
-  problems: ValidationProblem[]
-  problemCount?: number
-  /** valid rows whose galaxy ID the project already has */
-  existing?: number
-  onExisting?: OnExisting
-}
+export type ValidationReport = z.infer<typeof IntakeReportSchema>
 
-export interface IntakeCounts { inserted: number; updated: number; replaced: number; merged: number; skipped: number }
+export type IntakeCounts = IntakeCountsDto
 
 /** 200: stored within the request (counts); 202: a job to follow. */
 export interface CommitAnswer extends Partial<IntakeCounts> { intake: Intake; job: Job }
@@ -246,19 +170,9 @@ export interface Invitation { id: string; email: string; role: Role; expiresAt: 
 
 export interface InvitationInfo { projectName: string; email: string; role: Role; expiresAt: string; accountExists: boolean }
 
-export interface ApiKey {
-  id: string
-  name: string
-  prefix: string
-  projectId: string | null
-  access: 'read' | 'write'
-  expiresAt: string | null
-  createdAt: string
-  lastUsedAt: string | null
-  revokedAt: string | null
-}
+export type ApiKey = z.infer<typeof ApiKeySchema>
 
-export interface CreatedApiKey extends ApiKey { key: string }
+export type CreatedApiKey = z.infer<typeof ApiKeyCreatedSchema>
 
 export interface OutboxItem { id: string; to: string; subject: string; receivedAt: string }
 

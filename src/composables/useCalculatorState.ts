@@ -1,5 +1,6 @@
 import type { LocationQuery, LocationQueryRaw } from 'vue-router'
-import { LINE_IDS, type LineId } from '../api/types'
+import { isExtinctionLaw, LINE_IDS, type ExtinctionLaw, type LineId } from '../../shared/vocabulary/index.ts'
+import type { GalaxyInput, PartialSettings } from '../utils/science'
 
 /**
  * The Calculator's inputs and their link form. Each line is one query key: `halpha=300,6` for a
@@ -15,15 +16,13 @@ export interface CalculatorState {
   ewHalpha: string
   ewNii: string
   fwhmBroad: string
-  law: 'ccm89' | 'odonnell94' | 'calzetti00' | 'fitzpatrick99'
+  law: ExtinctionLaw
   rv: string
   intrinsicBalmer: string
   minSnr: string
   /** erg s⁻¹ cm⁻² per typed flux unit; only luminosities depend on it */
   fluxUnit: string
 }
-
-const LAWS = ['ccm89', 'odonnell94', 'calzetti00', 'fitzpatrick99'] as const
 
 export function emptyState(): CalculatorState {
   const lines = {} as Record<LineId, LineEntry>
@@ -64,7 +63,7 @@ export function stateFromQuery(q: LocationQuery): CalculatorState | null {
   s.ewNii = str(q.ew_nii) ?? ''
   s.fwhmBroad = str(q.fwhm_broad) ?? ''
   const law = str(q.law)
-  if (law && (LAWS as readonly string[]).includes(law)) s.law = law as CalculatorState['law']
+  if (law && isExtinctionLaw(law)) s.law = law
   s.rv = str(q.rv) ?? ''
   s.intrinsicBalmer = str(q.balmer) ?? ''
   s.minSnr = str(q.snr) ?? ''
@@ -93,8 +92,8 @@ export function queryFromState(s: CalculatorState): LocationQueryRaw {
 }
 
 export interface BuiltInput {
-  galaxy: Record<string, unknown>
-  settings: { extinctionLaw: CalculatorState['law']; rv?: number; intrinsicBalmer?: number; minSnr?: number }
+  galaxy: GalaxyInput
+  settings: PartialSettings & { extinctionLaw: ExtinctionLaw }
   /** inputs that are not numbers yet, by field, so the form can mark them */
   invalid: Record<string, string>
 }
@@ -109,7 +108,7 @@ export function buildInput(s: CalculatorState): BuiltInput {
     if (positive && n <= 0) { invalid[field] = 'must be above 0'; return undefined }
     return n
   }
-  const lines: Record<string, unknown> = {}
+  const lines: GalaxyInput['lines'] = {}
   for (const id of LINE_IDS) {
     const l = s.lines[id]
     if (l.flux.trim() === '') continue
@@ -123,13 +122,13 @@ export function buildInput(s: CalculatorState): BuiltInput {
     if (flux !== undefined && error === undefined && !invalid[`${id}.error`]) invalid[`${id}.error`] = 'an error is needed'
     if (flux !== undefined && error !== undefined) lines[id] = { flux, error }
   }
-  const ew: Record<string, number> = {}
+  const ew: NonNullable<GalaxyInput['ew']> = {}
   const ewH = num(s.ewHalpha, 'ewHalpha')
   const ewN = num(s.ewNii, 'ewNii')
   if (ewH !== undefined) ew.halpha = ewH
   if (ewN !== undefined) ew.nii_6584 = ewN
   const fwhm = num(s.fwhmBroad, 'fwhmBroad', true)
-  const galaxy: Record<string, unknown> = { id: s.id || 'galaxy', lines }
+  const galaxy: GalaxyInput = { id: s.id || 'galaxy', lines }
   const z = num(s.redshift, 'redshift')
   if (z !== undefined) galaxy.redshift = z
   const unit = num(s.fluxUnit, 'fluxUnit', true)

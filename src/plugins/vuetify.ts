@@ -4,7 +4,7 @@ import { aliases, mdi } from 'vuetify/iconsets/mdi-svg'
 
 /**
  * Ratiograph's own palette: an ink blue for structure, a warm copper for calls to action.
- * Class colours are not theme colours; they live in utils/classes.ts (Okabe & Ito 2008).
+ * Class colours are not theme colours; they live in shared/vocabulary/classes.ts (Okabe & Ito 2008).
  */
 const light: ThemeDefinition = {
   dark: false,

@@ -4,11 +4,11 @@
  */
 import {
   DEFAULT_SETTINGS, defaultRvFor, demarcationCurves, diagnoseGalaxy as diagnoseWithLibrary, reddeningVector, siiRatioCurve, whanLines,
-  type DiagnosticSettings, type ExtinctionLaw, type GalaxyInput,
+  type DiagnosticSettings, type ExtinctionLaw, type GalaxyInput, type GalaxyResult,
 } from '../../shared/science.ts'
-import type { GalaxyResult } from '../api/types'
+import type { BptDiagram } from '../../shared/vocabulary/index.ts'
 
-export type RatioDiagram = 'nii' | 'sii' | 'oi'
+export type RatioDiagram = BptDiagram
 export type { ExtinctionLaw }
 
 /** A line drawn on a diagram, in the diagram's own coordinates (WHAN: x = log [N II]/Hα, y = EW(Hα) in Å). */
@@ -58,7 +58,7 @@ export function completeSettings(s: PartialSettings): DiagnosticSettings {
 
 /** One galaxy diagnosed in the browser with the same library the server uses. */
 export function diagnoseGalaxy(galaxy: GalaxyInput, settings: PartialSettings): GalaxyResult {
-  return diagnoseWithLibrary(galaxy, completeSettings(settings)) as unknown as GalaxyResult
+  return diagnoseWithLibrary(galaxy, completeSettings(settings))
 }
 
 export type { GalaxyInput }

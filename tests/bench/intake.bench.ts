@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { monitorEventLoopDelay } from 'node:perf_hooks'
 import { generateLanternSurvey } from '../../server/seed/lantern.ts'
-import { LINE_ID_LIST } from '../../shared/schemas/galaxy.schema.ts'
+import { LINE_IDS } from '../../shared/vocabulary/lines.ts'
 import { benchServer } from './bench-env.ts'
 
 const N = Number(process.env.BENCH_ROWS ?? 200_000)
@@ -14,9 +14,9 @@ const env = await benchServer({ UPLOAD_LIMIT_MB: '500', INTAKE_MAX_ROWS: String(
 /** Writes the CSV to a file and returns its path, so that none of it stays in this process's memory. */
 function writeCsv(): string {
   const galaxies = generateLanternSurvey(N, 11)
-  const header = ['id', 'z', ...LINE_ID_LIST.flatMap((l) => [`${l}_flux`, `${l}_err`, `${l}_limit`])]
+  const header = ['id', 'z', ...LINE_IDS.flatMap((l) => [`${l}_flux`, `${l}_err`, `${l}_limit`])]
   const cell = (v: number | undefined) => (v === undefined ? '' : String(v))
-  const rows = galaxies.map((g) => [g.id, cell(g.redshift), ...LINE_ID_LIST.flatMap((l) => {
+  const rows = galaxies.map((g) => [g.id, cell(g.redshift), ...LINE_IDS.flatMap((l) => {
     const v = g.lines[l] as { flux?: number; error?: number; upperLimit?: number } | undefined
     return [cell(v?.flux), cell(v?.error), cell(v?.upperLimit)]
   })].join(','))

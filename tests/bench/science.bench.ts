@@ -16,7 +16,7 @@ import { createKernelOutput, FC, FLOAT_COLUMN_COUNT, IC, INT_COLUMN_COUNT, prepa
 import { galaxySeed, monteCarloGalaxy } from '../../shared/diagnostics/monte-carlo.ts'
 import { diagnoseMany } from '../../shared/diagnostics/pipeline.ts'
 import { DEFAULT_SETTINGS } from '../../shared/diagnostics/settings.ts'
-import { LINE_COUNT, LINE_IDS, type LineId } from '../../shared/lines/index.ts'
+import { LINE_COUNT, LINE_IDS, type LineId } from '../../shared/vocabulary/lines.ts'
 import type { GalaxyInput } from '../../shared/diagnostics/types.ts'
 import { syntheticGalaxies } from './synthetic.ts'
 

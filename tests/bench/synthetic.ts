@@ -5,7 +5,7 @@
  */
 import { createKernelInput, type KernelInput } from '../../shared/diagnostics/kernel.ts'
 import { extinctionK } from '../../shared/extinction/index.ts'
-import { LINES, LINE_INDEX, type LineId } from '../../shared/lines/index.ts'
+import { LINES, LINE_INDEX, type LineId } from '../../shared/vocabulary/lines.ts'
 import { createRng } from '../../shared/stats/rng.ts'
 import { doubletRatioFromDensity, SANDERS16_OII, SANDERS16_SII } from '../../shared/diagnostics/density.ts'
 import { NII_TEMPERATURE_MODEL, OIII_TEMPERATURE_MODEL, temperatureRatio } from '../../shared/diagnostics/temperature.ts'

@@ -1,5 +1,5 @@
 import type { ClassDiagram, DiagramColumns, DiagramKey } from '../../api/types'
-import { classColour, classLabel } from '../../utils/classes'
+import { classColour, classLabel } from '../../../shared/vocabulary/index.ts'
 import { parseColour, SYMBOL, type SymbolCode } from './point-raster'
 import { typedColumns, type TypedDiagramColumns } from '../../../shared/diagram-columns.ts'
 

@@ -40,7 +40,7 @@ const X_RATIO: Record<Exclude<DiagramKey, 'whan'>, string> = { nii: 'niiHa', sii
 
 /** Where one galaxy sits on each diagram; WHAN y is EW(Hα) in Å. */
 export function galaxyPoints(result: GalaxyResult | null | undefined, ewHalpha: number | null | undefined): Record<DiagramKey, DiagramPoint> {
-  const r = result?.ratios ?? {}
+  const r: Record<string, unknown> = result?.ratios ?? {}
   const y = isNum(r.oiiiHb) ? r.oiiiHb : null
   const yLimit = limitOf(result, 'oiiiHb')
   const out = {} as Record<DiagramKey, DiagramPoint>

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { belowMinSnrFlag, FLAG_WORDS, flagBit, ratioLimitFlag, requireFinite, requirePositiveFinite, ROW_FLAGS, ScienceInputError } from '../../../shared/flags.ts'
+import { requireFinite, requirePositiveFinite, ScienceInputError } from '../../../shared/flags.ts'
+import { belowMinSnrFlag, FLAG_WORDS, flagBit, ratioLimitFlag, ROW_FLAGS } from '../../../shared/vocabulary/flags.ts'
 
 describe('flag vocabulary and input guards', () => {
   it('has unique kebab-case flags that fit the kernel words', () => {

@@ -1,6 +1,6 @@
 import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
-import { AIR_WAVELENGTH_ANGSTROM, type LineId } from '../../../shared/lines/index.ts'
+import { AIR_WAVELENGTH_ANGSTROM, type LineId } from '../../../shared/vocabulary/lines.ts'
 import { evaluateSpline, naturalCubicSpline } from '../../../shared/stats/spline.ts'
 import { linearisedLogVariance } from '../../../shared/stats/error-propagation.ts'
 import { NII_TEMPERATURE_MODEL, OIII_TEMPERATURE_MODEL, temperatureFromRatio } from '../../../shared/diagnostics/temperature.ts'

@@ -3,7 +3,8 @@ import {
   colourExcessFromBalmer, colourExcessFromBalmerRaw, colourExcessFromHgammaRaw, dereddeningFactor, INTRINSIC_HALPHA_HBETA_AGN,
   INTRINSIC_HALPHA_HBETA_CASE_B, INTRINSIC_HGAMMA_HBETA_CASE_B,
 } from '../../../../shared/diagnostics/balmer-decrement.ts'
-import { extinctionK, type ExtinctionLaw } from '../../../../shared/extinction/index.ts'
+import { extinctionK } from '../../../../shared/extinction/index.ts'
+import type { ExtinctionLaw } from '../../../../shared/vocabulary/extinction-laws.ts'
 
 const ebvFor = (law: ExtinctionLaw, rv: number, dec: number, intrinsic: number) =>
   colourExcessFromBalmerRaw(dec, intrinsic, extinctionK(law, 4861.33, rv), extinctionK(law, 6562.8, rv))

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest'
 import { classifyNiiPoint, classifyOiPoint, classifySiiPoint, classProvenByLimits, niiSubtypeOfPoint, overallClass } from '../../../../shared/diagnostics/bpt.ts'
 import {
   CLASS_AGN, CLASS_AMBIGUOUS, CLASS_COMPOSITE, CLASS_LINER, CLASS_SEYFERT, CLASS_STAR_FORMING, CLASS_UNCLASSIFIED,
-} from '../../../../shared/diagnostics/classes.ts'
+} from '../../../../shared/vocabulary/classes.ts'
 import { RATIO_EXACT, RATIO_LOWER, RATIO_UPPER } from '../../../../shared/stats/limits.ts'
 
 describe('[N II] diagram classes (shared/science/README.md §2.3)', () => {

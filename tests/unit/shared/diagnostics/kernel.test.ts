@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest'
 import { createKernelInput, ExtinctionRangeError, FC, FLOAT_COLUMN_COUNT, IC, INT_COLUMN_COUNT, prepareSettings } from '../../../../shared/diagnostics/kernel.ts'
 import { diagnoseColumns, diagnoseMany } from '../../../../shared/diagnostics/pipeline.ts'
-import { LINE_INDEX } from '../../../../shared/lines/index.ts'
+import { LINE_INDEX } from '../../../../shared/vocabulary/lines.ts'
 import { fluxesAt, galaxy, settingsWith } from './helpers.ts'
-import type { LineId } from '../../../../shared/lines/index.ts'
+import type { LineId } from '../../../../shared/vocabulary/lines.ts'
 
 describe('columnar kernel', () => {
   it('gives the same numbers as the object API (one source of truth)', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { CLASS_PASSIVE, CLASS_RETIRED, CLASS_STAR_FORMING, CLASS_STRONG_AGN, CLASS_UNCLASSIFIED, CLASS_WEAK_AGN } from '../../../../shared/diagnostics/classes.ts'
+import { CLASS_PASSIVE, CLASS_RETIRED, CLASS_STAR_FORMING, CLASS_STRONG_AGN, CLASS_UNCLASSIFIED, CLASS_WEAK_AGN } from '../../../../shared/vocabulary/classes.ts'
 import { whanClass } from '../../../../shared/diagnostics/whan.ts'
 import { RATIO_EXACT, RATIO_LOWER, RATIO_NONE, RATIO_UPPER } from '../../../../shared/stats/limits.ts'
 

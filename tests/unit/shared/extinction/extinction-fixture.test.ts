@@ -1,6 +1,7 @@
 import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
-import { extinctionK, type ExtinctionLaw } from '../../../../shared/extinction/index.ts'
+import { extinctionK } from '../../../../shared/extinction/index.ts'
+import type { ExtinctionLaw } from '../../../../shared/vocabulary/extinction-laws.ts'
 
 interface Case { law: ExtinctionLaw; rv: number; wavelengthAngstrom: number[]; k: number[] }
 const fixture = JSON.parse(readFileSync(new URL('../../../fixtures/science/extinction.json', import.meta.url), 'utf8')) as {

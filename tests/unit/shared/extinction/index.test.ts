@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { defaultRvFor, EXTINCTION_LAWS, extinctionK } from '../../../../shared/extinction/index.ts'
+import { extinctionK } from '../../../../shared/extinction/index.ts'
+import { defaultRvFor, EXTINCTION_LAWS } from '../../../../shared/vocabulary/extinction-laws.ts'
 import { balmerCoefficient } from '../../../../shared/diagnostics/balmer-decrement.ts'
 
 describe('extinctionK', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { AIR_WAVELENGTH_ANGSTROM, isLineId, LINE_IDS, LINES } from '../../../../shared/lines/index.ts'
+import { AIR_WAVELENGTH_ANGSTROM, isLineId, LINE_IDS, LINES } from '../../../../shared/vocabulary/lines.ts'
 
 describe('contract lines', () => {
   it('are the 16 identifiers of the public API in kernel order', () => {

@@ -18,7 +18,7 @@ describe('GalaxyResultSchema', () => {
     expect(parsed.classes.classProbabilities).toEqual(mc.classes.classProbabilities)
   })
   it('refuses a NaN and an unknown class', () => {
-    const r = diagnoseGalaxy(g, DEFAULT_SETTINGS) as unknown as { extinction: { ebv: number }; classes: { nii: string } }
+    const r = diagnoseGalaxy(g, DEFAULT_SETTINGS)
     expect(GalaxyResultSchema.safeParse({ ...r, extinction: { ...r.extinction, ebv: Number.NaN } }).success).toBe(false)
     expect(GalaxyResultSchema.safeParse({ ...r, classes: { ...r.classes, nii: 'quasar' } }).success).toBe(false)
   })

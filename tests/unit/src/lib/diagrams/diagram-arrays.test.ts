@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest'
 import type { DiagramColumns } from '../../../../../src/api/types'
 import { classLabelAt, indicesOfClass, limitSymbol, limitSymbolCode, prepareDiagramArrays } from '../../../../../src/lib/diagrams/diagram-arrays'
 import { parseColour, SYMBOL } from '../../../../../src/lib/diagrams/point-raster'
-import { CLASS_COLOURS } from '../../../../../src/utils/classes'
+import { CLASS_COLOURS } from '../../../../../shared/vocabulary/index.ts'
 
 const names = {
   overall: ['star-forming', 'composite', 'seyfert', 'liner', 'ambiguous', 'unclassified'],
