@@ -13,6 +13,7 @@ import type { Mailer } from './lib/mailer.ts'
 import type { JobQueue } from './services/jobs.service.ts'
 import { configureCompute, configureDiagramWarmup } from './services/galaxies.service.ts'
 import type { ComputePool } from './compute/pool.ts'
+import { routeRegistry } from './http/route.ts'
 
 export interface AppDeps {
   db: Db
@@ -26,6 +27,7 @@ export interface AppDeps {
   serveClient?: boolean
 }
 
+/** The Express app; `routeRegistry` holds what its routes registered (the OpenAPI document is built from it). */
 export function createApp(deps: AppDeps) {
   configureDiagramWarmup(deps.config.diagramWarmupMs)
   configureCompute(deps.compute, { authenticated: deps.config.computeBudget, anonymous: deps.config.anonymousComputeBudget })
@@ -62,7 +64,8 @@ export function createApp(deps: AppDeps) {
   })
 
   app.use('/api', healthRoutes(deps.db))
-  app.use('/api', buildRoutes(deps))
+  const registry = routeRegistry()
+  app.use('/api', buildRoutes(deps, registry))
   app.use('/api', (_req, _res, next) => next(new HttpProblem(404, 'Not Found', 'no such route')))
 
   const dist = join(PROJECT_ROOT, 'dist')
@@ -73,5 +76,5 @@ export function createApp(deps: AppDeps) {
     app.use(spa)
   }
   app.use(errorHandler)
-  return app
+  return Object.assign(app, { routeRegistry: registry })
 }

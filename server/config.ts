@@ -52,6 +52,8 @@ export interface Config {
   /** per-request compute units, galaxies × (draws + 10): with credentials, and without */
   computeBudget: number
   anonymousComputeBudget: number
+  /** the local mail catcher's SMTP port when SMTP_URL is unset (0: any free port) */
+  mailCatcherPort: number
 }
 
 function readOrCreateSecret(dataDir: string): string {
@@ -80,9 +82,11 @@ const port = (min: number) => integer(min, 65535, `a port number (a whole number
 const atLeast = (min: number) => integer(min, Number.MAX_SAFE_INTEGER, `a whole number ≥ ${min}`)
 
 const BOOLEAN_WORDS: Record<string, boolean> = { 1: true, true: true, yes: true, on: true, 0: false, false: false, no: false, off: false }
-const flag = optional(z.string().trim().toLowerCase()
-  .refine((v) => v in BOOLEAN_WORDS, { error: 'must be 1/true/yes/on or 0/false/no/off' })
-  .transform((v) => BOOLEAN_WORDS[v]))
+/** true or false for a boolean word in any case, else undefined (own keys only: not "constructor"). */
+const booleanWord = (v: string): boolean | undefined => (Object.hasOwn(BOOLEAN_WORDS, v.toLowerCase()) ? BOOLEAN_WORDS[v.toLowerCase()] : undefined)
+const flag = optional(z.string().trim()
+  .refine((v) => booleanWord(v) !== undefined, { error: 'must be 1/true/yes/on or 0/false/no/off' })
+  .transform((v) => booleanWord(v)!))
 
 function url(protocols: readonly string[], example: string) {
   const rule = `must be a URL with ${protocols.map((p) => `${p}//`).join(' or ')} (e.g. ${example})`
@@ -99,12 +103,13 @@ function isProxyEntry(entry: string): boolean {
   return prefix === undefined || (/^\d+$/.test(prefix) && Number(prefix) <= (family === 4 ? 32 : 128))
 }
 
-/** TRUST_PROXY: unset/0/false/off/no → trust no proxy; a number → that many hops; else a comma list (loopback, 10.0.0.0/8, …). */
+/** TRUST_PROXY: unset or a false word → trust no proxy; a number → that many hops; else a comma list (loopback, 10.0.0.0/8, …). */
 const trustProxy = z.string().optional().transform((value, ctx): Config['trustProxy'] => {
   const v = (value ?? '').trim()
-  if (v === '' || /^(0|false|off|no)$/i.test(v)) return false
+  const word = booleanWord(v)
+  if (v === '' || word === false) return false
   if (/^\d+$/.test(v)) return Number(v)
-  if (/^(true|on|yes|all)$/i.test(v)) {
+  if (word === true || v.toLowerCase() === 'all') {
     ctx.addIssue({ code: 'custom', message: 'must not be true: that would let any client choose its address; give the hop count or the proxy addresses' })
     return z.NEVER
   }
@@ -143,8 +148,8 @@ const EnvSchema = z.object({
   COMPUTE_TIMEOUT_S: atLeast(1).default(60),
   COMPUTE_BUDGET: atLeast(1).default(DEFAULT_COMPUTE_BUDGET),
   COMPUTE_ANON_BUDGET: atLeast(1).default(DEFAULT_ANON_COMPUTE_BUDGET),
-  // checked here so a bad value stops start-up too; their readers (runtime.ts, cli/start.ts) take them as they are
-  MAIL_CATCHER_PORT: port(0),
+  MAIL_CATCHER_PORT: port(0).default(0),
+  // checked here so a bad value stops start-up too; their reader (cli/start.ts) takes them as they are
   SEED_DEMO: optional(z.enum(['0', '1'], { error: 'must be 0 or 1' })),
   BUILD_CLIENT: optional(z.enum(['0', '1'], { error: 'must be 0 or 1' })),
 })
@@ -196,5 +201,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     computeTimeoutMs: e.COMPUTE_TIMEOUT_S * 1000,
     computeBudget: e.COMPUTE_BUDGET,
     anonymousComputeBudget: e.COMPUTE_ANON_BUDGET,
+    mailCatcherPort: e.MAIL_CATCHER_PORT,
   }
 }

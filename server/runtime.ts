@@ -12,6 +12,7 @@ import { createComputePool } from './compute/pool.ts'
 import { logger } from './lib/logger.ts'
 import { startJobQueue, startRecomputeWorker } from './services/jobs.service.ts'
 import { expireStagedIntakes } from './services/intake.service.ts'
+import { forgetOldSignInFailures } from './services/sign-in-throttle.ts'
 
 export interface Runtime {
   config: Config
@@ -79,7 +80,7 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
   let catcher: Awaited<ReturnType<typeof startMailCatcher>> | undefined
   let smtpUrl = config.smtpUrl
   if (!smtpUrl) {
-    catcher = await startMailCatcher(db, Number(process.env.MAIL_CATCHER_PORT ?? 0))
+    catcher = await startMailCatcher(db, config.mailCatcherPort)
     smtpUrl = catcher.url
   }
   const mailer = smtpMailer(smtpUrl)
@@ -93,8 +94,11 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
   }
   if (opts.buildClient) buildClientIfStale(log)
 
-  // abandoned CSV uploads: swept at start and then hourly
-  const sweep = () => { expireStagedIntakes(db, config.stagedIntakeHours).catch((err) => logger.warn({ err }, 'sweeping staged intakes failed')) }
+  // abandoned CSV uploads and sign-in failure counters past their time: swept at start and then hourly
+  const sweep = () => {
+    expireStagedIntakes(db, config.stagedIntakeHours).catch((err) => logger.warn({ err }, 'sweeping staged intakes failed'))
+    forgetOldSignInFailures(db).catch((err) => logger.warn({ err }, 'sweeping sign-in failures failed'))
+  }
   sweep()
   const sweeper = setInterval(sweep, 60 * 60 * 1000)
   sweeper.unref()

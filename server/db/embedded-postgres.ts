@@ -12,7 +12,7 @@ import net from 'node:net'
  * in a `mktemp -d` folder is not, so its cluster is kept in a postgres-owned folder elsewhere
  * (see placeCluster) and the requested folder names it in `cluster-location`.
  */
-export const DEFAULT_EMBEDDED_PG_PORT = 54329
+const DEFAULT_EMBEDDED_PG_PORT = 54329
 
 export interface EmbeddedPostgresOptions {
   /** Absolute or relative folder for the cluster; it is made absolute (postgres chdirs into it). */
@@ -131,15 +131,28 @@ function ownDir(path: string, owner: { uid: number; gid: number }) {
   chmodSync(path, 0o700)
 }
 
+/** Who runs the server processes: `postgres` when we are root (its passwd entry: name:x:uid:gid:…), else ourselves. */
 function runsPostgres(): { uid: number; gid: number } {
-  return isRoot() ? { uid: uid('postgres'), gid: gid('postgres') } : { uid: process.getuid?.() ?? 0, gid: process.getgid?.() ?? 0 }
+  if (!isRoot()) return { uid: process.getuid?.() ?? 0, gid: process.getgid?.() ?? 0 }
+  const [, , uid, gid] = execFileSync('getent', ['passwd', 'postgres'], { encoding: 'utf8' }).trim().split(':')
+  if (!/^\d+$/.test(uid ?? '') || !/^\d+$/.test(gid ?? '')) throw new Error('cannot read the uid and gid of the postgres user (getent passwd postgres)')
+  return { uid: Number(uid), gid: Number(gid) }
+}
+
+/** Where the pointer file in `requested` says its cluster lives; undefined when there is none. */
+function pointerIn(requested: string): string | undefined {
+  try {
+    return readFileSync(join(requested, CLUSTER_POINTER), 'utf8').trim()
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code === 'ENOENT') return undefined
+    throw err
+  }
 }
 
 /** The folder a cluster asked for in `requested` is in: from its pointer file, or `requested` itself. */
 export function clusterDirOf(requested: string): string {
   const abs = resolve(requested)
-  const pointer = join(abs, CLUSTER_POINTER)
-  return existsSync(pointer) ? readFileSync(pointer, 'utf8').trim() : abs
+  return pointerIn(abs) ?? abs
 }
 
 /**
@@ -150,16 +163,15 @@ export function clusterDirOf(requested: string): string {
  * `requested` holds only the pointer. A decision once made is kept (the pointer), so a later change
  * of permissions never swaps a team's cluster for an empty one. A user's folders are never loosened.
  */
-function placeCluster(requested: string, durable: boolean, log: (m: string) => void): { dir: string; relocatedFrom?: string } {
+function placeCluster(requested: string, durable: boolean, owner: { uid: number; gid: number }, log: (m: string) => void): { dir: string; relocatedFrom?: string } {
   // parents with the usual mode (a recursive mkdir would give each of them 0700)
   mkdirSync(dirname(requested), { recursive: true })
   if (!existsSync(requested)) mkdirSync(requested, { mode: 0o700 })
-  const owner = runsPostgres()
   const pointer = join(requested, CLUSTER_POINTER)
-  if (existsSync(pointer)) {
-    const dir = readFileSync(pointer, 'utf8').trim()
-    ownDir(dir, owner)
-    return { dir, relocatedFrom: requested }
+  const placed = pointerIn(requested)
+  if (placed !== undefined) {
+    ownDir(placed, owner)
+    return { dir: placed, relocatedFrom: requested }
   }
   if (!isRoot()) {
     try { chmodSync(requested, 0o700) } catch { /* a folder of another owner: postgres (us) says so itself if it matters */ }
@@ -217,7 +229,7 @@ function rememberedPort(dir: string): number | null {
 }
 
 /** EMBEDDED_PG_PORT when set (taken → error); else last time's port, the default, or any free one. */
-export async function chooseClusterPort(dir: string, opts: { port?: number; defaultPort?: number }, log: (m: string) => void): Promise<number> {
+async function chooseClusterPort(dir: string, opts: { port?: number; defaultPort?: number }, log: (m: string) => void): Promise<number> {
   if (opts.port !== undefined) {
     if (await portIsFree(opts.port)) return opts.port
     throw new Error(`port ${opts.port} for the embedded PostgreSQL is already in use: stop what holds it, set EMBEDDED_PG_PORT ` +
@@ -235,7 +247,8 @@ export async function chooseClusterPort(dir: string, opts: { port?: number; defa
 export async function startEmbeddedPostgres(opts: EmbeddedPostgresOptions): Promise<EmbeddedPostgres> {
   const log = opts.log ?? (() => {})
   const bin = ensurePostgresBinaries(log)
-  const { dir, relocatedFrom } = placeCluster(resolve(opts.dir), opts.durable, log)
+  const owner = runsPostgres()
+  const { dir, relocatedFrom } = placeCluster(resolve(opts.dir), opts.durable, owner, log)
   const data = join(dir, 'data')
   const database = opts.database ?? 'ratiograph'
   const user = opts.user ?? 'ratiograph'
@@ -248,7 +261,7 @@ export async function startEmbeddedPostgres(opts: EmbeddedPostgresOptions): Prom
     run(join(bin, 'initdb'), ['-D', data, '-U', 'postgres', '-E', 'UTF8', '--locale=C.UTF-8',
       '--auth-local=trust', '--auth-host=scram-sha-256'])
   }
-  const sock = socketDir(dir, runsPostgres())
+  const sock = socketDir(dir, owner)
 
   const running = run(join(bin, 'pg_ctl'), ['-D', data, 'status'], { allowFail: true }).includes('server is running')
   let port: number
@@ -284,6 +297,3 @@ export function stopClusterAt(dir: string) {
   const data = join(clusterDirOf(dir), 'data')
   if (existsSync(join(data, 'postmaster.pid'))) run(join(bin, 'pg_ctl'), ['-D', data, '-m', 'fast', '-w', 'stop'], { allowFail: true })
 }
-
-function uid(name: string): number { return Number(execFileSync('id', ['-u', name], { encoding: 'utf8' }).trim()) }
-function gid(name: string): number { return Number(execFileSync('id', ['-g', name], { encoding: 'utf8' }).trim()) }

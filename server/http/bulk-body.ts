@@ -22,14 +22,11 @@ export interface BulkRoute {
   hashes?: Record<string, readonly [string, string]>
 }
 
-/** Routes whose large bodies are read on a compute thread; route() fills it from `bodyParsing`. */
-export const BULK_ROUTES: BulkRoute[] = []
-
-export function registerBulkRoute(r: Omit<BulkRoute, 'pattern'>) {
-  if (BULK_ROUTES.some((b) => b.method === r.method && b.path === r.path)) return
+/** A bulk route with the pattern that finds it by request path; route() adds it to the app's registry. */
+export function bulkRoute(r: Omit<BulkRoute, 'pattern'>): BulkRoute {
   // a path parameter is one segment; Express's own matching still decides which route answers
   const pattern = new RegExp('^' + r.path.split('/').map((s) => (s.startsWith(':') ? '[^/]+' : s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&'))).join('/') + '/?$', 'i')
-  BULK_ROUTES.push({ ...r, pattern })
+  return { ...r, pattern }
 }
 
 export const notJson = () => new HttpProblem(400, 'Bad Request', 'the body is not valid JSON')
@@ -46,16 +43,16 @@ function plainUtf8Json(req: Request, types: string[]) {
 
 /**
  * The JSON body parser of /api/v1 for every route, with the same limit, media types, encodings and
- * 4xx answers as express.json; the bodies of BULK_ROUTES above BULK_INLINE_BYTES are read as bytes
+ * 4xx answers as express.json; the bodies of `bulkRoutes` above BULK_INLINE_BYTES are read as bytes
  * and handed to a compute thread, which parses, counts, validates and hashes them (the event loop
  * then only waits). Runs where express.json ran, before authentication, so a body that is not
  * JSON is still a 400 whoever sends it.
  */
-export function jsonBodies(compute: ComputePool, opts: { limit: string; type: string[] }): RequestHandler {
+export function jsonBodies(compute: ComputePool, bulkRoutes: readonly BulkRoute[], opts: { limit: string; type: string[] }): RequestHandler {
   const json = express.json({ limit: opts.limit, strict: false, type: opts.type })
   const raw = express.raw({ limit: opts.limit, type: opts.type })
   return (req, res, next) => {
-    const bulk = req.method === 'POST' ? BULK_ROUTES.find((b) => b.method === 'post' && b.pattern.test(req.path)) : undefined
+    const bulk = req.method === 'POST' ? bulkRoutes.find((b) => b.method === 'post' && b.pattern.test(req.path)) : undefined
     if (!bulk || !plainUtf8Json(req, opts.type)) { json(req, res, next); return }
     raw(req, res, (err?: unknown) => {
       if (err) { next(err); return }

@@ -15,17 +15,18 @@ export function isDatabaseUnavailable(err: unknown): boolean {
   return e.cause ? isDatabaseUnavailable(e.cause) : false
 }
 
-interface HttpError { type?: string; status?: number; statusCode?: number; expose?: boolean; code?: string; message?: string }
+interface HttpError { type?: string; status?: number; statusCode?: number; expose?: boolean; message?: string }
 
 function fromBodyParser(err: HttpError, contentEncoding: string | undefined): HttpProblem | null {
   if (err.type === 'entity.parse.failed') return new HttpProblem(400, 'Bad Request', 'the body is not valid JSON')
   if (err.type === 'entity.too.large') return new HttpProblem(413, 'Content Too Large', 'the body is larger than the limit')
   if (err.type === 'encoding.unsupported' || err.type === 'charset.unsupported') return new HttpProblem(415, 'Unsupported Media Type', 'unsupported body encoding')
   if (err.type === 'request.aborted') return new HttpProblem(400, 'Bad Request', 'the request was aborted')
-  // zlib's errors while inflating a body whose Content-Encoding does not match what was sent
-  const zlib = (typeof err.code === 'string' && err.code.startsWith('Z_')) || /incorrect header check|unexpected end of file|invalid (block type|stored block|distance)|Decompression failed/i.test(err.message ?? '')
-  if (zlib && (err.status ?? err.statusCode) === 400) {
-    return new HttpProblem(400, 'Bad Request', `the body is not valid ${contentEncoding ?? 'compressed'} data, as its Content-Encoding header says`)
+  // body-parser types every failure of its own; a 400 without a type is its decompression stream's
+  // error (zlib, brotli), which only a body sent with a Content-Encoding can meet
+  const encoded = contentEncoding !== undefined && contentEncoding.toLowerCase() !== 'identity'
+  if (encoded && err.type === undefined && (err.status ?? err.statusCode) === 400 && !(err instanceof URIError)) {
+    return new HttpProblem(400, 'Bad Request', `the body is not valid ${contentEncoding} data, as its Content-Encoding header says`)
   }
   return null
 }

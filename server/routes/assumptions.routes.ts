@@ -1,39 +1,37 @@
-import type { Router } from 'express'
 import { z } from 'zod'
 import type { AppDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
-import { route } from '../http/route.ts'
+import { route, type Routes } from '../http/route.ts'
 import { assumptionsService } from '../services/assumptions.service.ts'
 import { getJob, listJobs } from '../services/jobs.service.ts'
 import { JobPathSchema, JobSchema, ListOf, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
-import { SettingsInputSchema, SettingsSchema } from '../../shared/schemas/galaxy.schema.ts'
+import { SettingsSchema } from '../../shared/schemas/galaxy.schema.ts'
 import { textBlock } from '../../shared/schemas/text.ts'
-import type { Guard } from './index.ts'
 
 const RevisionSchema = z.object({
   revision: z.number().int(), settings: SettingsSchema, note: z.string(), createdAt: z.string(),
   createdBy: z.object({ id: z.string().nullable(), name: z.string().nullable() }).nullable(),
 }).meta({ id: 'AssumptionsRevision' })
 
-export function assumptionsRoutes(r: Router, deps: AppDeps, guard: Guard) {
+export function assumptionsRoutes(r: Routes, deps: AppDeps) {
   const assumptions = assumptionsService(deps.db, deps.jobs)
   const tag = 'Assumptions'
-  route(r, { method: 'get', path: '/projects/:projectId/assumptions', tag, summary: 'Current assumptions and every revision', access: 'viewer', params: ProjectPathSchema,
+  route(r, { method: 'get', path: '/projects/:projectId/assumptions', operationId: 'getAssumptions', tag, summary: 'Current assumptions and every revision', access: 'viewer', params: ProjectPathSchema,
     responses: { 200: { description: 'revisions, newest first', schema: z.object({ current: RevisionSchema, resultsRevision: z.number().int(), revisions: z.array(RevisionSchema) }) } } },
-  guard, async (_req, res, { params }) => { res.json(await assumptions.list(params.projectId)) })
+  async (_req, res, { params }) => { res.json(await assumptions.list(params.projectId)) })
 
-  route(r, { method: 'put', path: '/projects/:projectId/assumptions', tag, access: 'analyst', write: true, params: ProjectPathSchema,
+  route(r, { method: 'put', path: '/projects/:projectId/assumptions', operationId: 'changeAssumptions', tag, access: 'analyst', write: true, params: ProjectPathSchema,
     summary: 'Change the assumptions: makes a new revision and recomputes every galaxy in the background',
-    body: z.object({ settings: SettingsInputSchema, note: textBlock().max(2000).default('') }).strict(),
+    body: z.object({ settings: SettingsSchema, note: textBlock().max(2000).default('') }).strict(),
     bodyExample: { settings: { extinctionLaw: 'calzetti00', intrinsicBalmer: 2.86, minSnr: 3 }, note: 'switch to Calzetti 2000 for the dusty nuclei' },
     responses: { 201: { description: 'the new revision and its recompute job', schema: z.object({ revision: RevisionSchema, job: JobSchema }) } } },
-  guard, async (req, res, { params, body }) => { res.status(201).json(await assumptions.change(requireAuth(req), params.projectId, body.settings, body.note)) })
+  async (req, res, { params, body }) => { res.status(201).json(await assumptions.change(requireAuth(req), params.projectId, body.settings, body.note)) })
 
-  route(r, { method: 'get', path: '/projects/:projectId/jobs', tag, summary: 'Background jobs of the project, newest first', access: 'viewer', params: ProjectPathSchema,
+  route(r, { method: 'get', path: '/projects/:projectId/jobs', operationId: 'listJobs', tag: 'Jobs', summary: 'Background jobs of the project, newest first', access: 'viewer', params: ProjectPathSchema,
     responses: { 200: { description: 'jobs', schema: ListOf(JobSchema) } } },
-  guard, async (_req, res, { params }) => { res.json({ items: await listJobs(deps.db, params.projectId) }) })
+  async (_req, res, { params }) => { res.json({ items: await listJobs(deps.db, params.projectId) }) })
 
-  route(r, { method: 'get', path: '/projects/:projectId/jobs/:jobId', tag, summary: 'One job with its progress (poll this)', access: 'viewer', params: JobPathSchema,
+  route(r, { method: 'get', path: '/projects/:projectId/jobs/:jobId', operationId: 'getJob', tag: 'Jobs', summary: 'One job with its progress (poll this)', access: 'viewer', params: JobPathSchema,
     responses: { 200: { description: 'job', schema: JobSchema } } },
-  guard, async (_req, res, { params }) => { res.json(await getJob(deps.db, params.projectId, params.jobId)) })
+  async (_req, res, { params }) => { res.json(await getJob(deps.db, params.projectId, params.jobId)) })
 }

@@ -1,19 +1,18 @@
-import type { Response, Router } from 'express'
+import type { Response } from 'express'
 import { rateLimit } from 'express-rate-limit'
 import { z } from 'zod'
 import type { AppDeps } from '../app.ts'
-import { route } from '../http/route.ts'
+import { route, type Routes } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
-import { DiagnosticsRequestSchema } from '../../shared/schemas/galaxy.schema.ts'
+import { DiagnosticsRequestSchema, SettingsSchema } from '../../shared/schemas/galaxy.schema.ts'
 import { GalaxyResultSchema } from '../../shared/schemas/diagnostics-result.schema.ts'
 import { METHOD_VERSION } from '../../shared/science.ts'
 import { checkBatchRules } from '../services/galaxies.service.ts'
 import { diagnoseJson, inProcessCompute } from '../compute/pool.ts'
 import { DEFAULT_ANON_COMPUTE_BUDGET, DEFAULT_COMPUTE_BUDGET, GALAXY_COST, overBudget } from '../compute/budget.ts'
 import { galaxyCountLimit } from './galaxies.routes.ts'
-import type { Guard } from './index.ts'
 
-export function diagnosticsRoutes(r: Router, deps: AppDeps, guard: Guard) {
+export function diagnosticsRoutes(r: Routes, deps: AppDeps) {
   const anonymousLimiter = rateLimit({
     windowMs: 60_000, limit: deps.config.anonymousDiagnosticsRateLimit, standardHeaders: 'draft-8', legacyHeaders: false,
     skip: (req) => !!req.auth,
@@ -22,22 +21,21 @@ export function diagnosticsRoutes(r: Router, deps: AppDeps, guard: Guard) {
   const compute = deps.compute ?? inProcessCompute()
   const { computeBudget, anonymousComputeBudget } = deps.config
   route(r, {
-    method: 'post', path: '/diagnostics', tag: 'Diagnostics', access: 'optional',
+    method: 'post', path: '/diagnostics', operationId: 'runDiagnostics', tag: 'Diagnostics', access: 'optional',
     summary: 'Stateless diagnostics for up to 10,000 galaxies',
     description: 'Nothing is stored. Anonymous use is allowed at a lower rate and a smaller compute budget; send an API key or session for more. '
       + `A request costs galaxies × (monteCarlo.draws + ${GALAXY_COST}) compute units: by default at most ${DEFAULT_COMPUTE_BUDGET.toLocaleString('en-US')} with credentials `
       + `and ${DEFAULT_ANON_COMPUTE_BUDGET.toLocaleString('en-US')} without (COMPUTE_BUDGET, COMPUTE_ANON_BUDGET); more is a 422 at /settings/monteCarlo/draws. `
       + 'Every number in the answer is finite or null.',
-    body: DiagnosticsRequestSchema, bodyParsing: { worker: 'diagnostics' },
+    body: DiagnosticsRequestSchema, bodyParsing: { worker: 'diagnostics' }, rateLimit: anonymousLimiter, before: [galaxyCountLimit],
     bodyExample: { settings: { extinctionLaw: 'ccm89', rv: 3.1, intrinsicBalmer: 2.86, minSnr: 3 }, galaxies: [{ id: 'LNS-0000001', redshift: 0.05, fluxUnit: 1e-17, lines: { halpha: { flux: 300, error: 6 }, hbeta: { flux: 80, error: 3 }, oiii_5007: { upperLimit: 9 } }, ew: { halpha: 24.5 } }] },
     responses: {
-      200: { description: 'results', schema: z.object({ methodVersion: z.string(), settings: z.record(z.string(), z.unknown()), results: z.array(GalaxyResultSchema) }) },
+      200: { description: 'results', schema: z.object({ methodVersion: z.string(), settings: SettingsSchema, results: z.array(GalaxyResultSchema) }) },
       413: { description: 'more than 10,000 galaxies' },
       422: { description: 'invalid values, with field paths; also galaxies × (draws + 10) over the caller\'s compute budget (path /settings/monteCarlo/draws, or /galaxies without Monte Carlo)' },
       503: { description: 'the compute queue is full, or the computation ran past the time budget (COMPUTE_TIMEOUT_S); with Retry-After' },
     },
-  }, (spec) => { const g = guard(spec); return (req, res, next) => anonymousLimiter(req, res, (e?: unknown) => (e ? next(e) : g(req, res, (e2?: unknown) => (e2 ? next(e2) : galaxyCountLimit(req, res, next))))) },
-  async (req, res, { body }) => {
+  }, async (req, res, { body }) => {
     const { settings, galaxies } = body
     const anonymous = !req.auth
     const draws = settings.monteCarlo.draws

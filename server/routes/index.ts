@@ -4,6 +4,7 @@ import type { AppDeps } from '../app.ts'
 import { authenticate, guardFor } from '../http/auth.ts'
 import { HttpProblem } from '../http/problem.ts'
 import { jsonBodies } from '../http/bulk-body.ts'
+import type { RouteRegistry, Routes } from '../http/route.ts'
 import { inProcessCompute } from '../compute/pool.ts'
 import { accountsRoutes } from './accounts.routes.ts'
 import { projectsRoutes } from './projects.routes.ts'
@@ -19,16 +20,16 @@ export const JSON_LIMIT = '32mb'
 /** Sign-in, sign-up, reset, verification and invitations need little; anyone can call them. */
 export const AUTH_JSON_LIMIT = '16kb'
 
-export function buildRoutes(deps: AppDeps): Router {
+/** Every /api route of one app; `registry` receives their specs (OpenAPI, bulk bodies). */
+export function buildRoutes(deps: AppDeps, registry: RouteRegistry): Router {
   const router = Router()
-  const v1 = Router()
-  const guard = guardFor(deps.db)
-  router.use(openapiRoutes())
+  const v1: Routes = { router: Router(), guard: guardFor(deps.db), registry }
+  router.use(openapiRoutes(registry))
   const jsonTypes = ['application/json', 'application/*+json']
   // the small limit first: a body read here is not read again by the general parser (413 beyond it)
   router.use(['/v1/auth', '/v1/invitations'], express.json({ limit: AUTH_JSON_LIMIT, strict: false, type: jsonTypes }))
   // express.json, except that large bulk bodies (diagnostics, batch) are read on a compute thread
-  router.use('/v1', jsonBodies(deps.compute ?? inProcessCompute(), { limit: JSON_LIMIT, type: jsonTypes }))
+  router.use('/v1', jsonBodies(deps.compute ?? inProcessCompute(), registry.bulk, { limit: JSON_LIMIT, type: jsonTypes }))
   router.use('/v1', authenticate(deps.db, deps.config))
   // per key (or signed-in user) and per address
   router.use('/v1', rateLimit({
@@ -36,16 +37,14 @@ export function buildRoutes(deps: AppDeps): Router {
     keyGenerator: (req) => req.auth?.key ? `key:${req.auth.key.id}` : req.auth ? `user:${req.auth.user.id}` : `ip:${ipKeyGenerator(req.ip ?? '')}`,
     handler: (_req, _res, next, options) => next(new HttpProblem(429, 'Too Many Requests', 'rate limit reached; slow down', undefined, { 'Retry-After': String(Math.ceil(options.windowMs / 1000)) })),
   }))
-  accountsRoutes(v1, deps, guard)
-  projectsRoutes(v1, deps, guard)
-  galaxiesRoutes(v1, deps, guard)
-  diagnosticsRoutes(v1, deps, guard)
-  assumptionsRoutes(v1, deps, guard)
-  intakeRoutes(v1, deps, guard)
-  exportRoutes(v1, deps, guard)
-  adminRoutes(v1, deps, guard)
-  router.use('/v1', v1)
+  accountsRoutes(v1, deps)
+  projectsRoutes(v1, deps)
+  galaxiesRoutes(v1, deps)
+  diagnosticsRoutes(v1, deps)
+  assumptionsRoutes(v1, deps)
+  intakeRoutes(v1, deps)
+  exportRoutes(v1, deps)
+  adminRoutes(v1, deps)
+  router.use('/v1', v1.router)
   return router
 }
-
-export type Guard = ReturnType<typeof guardFor>

@@ -1,4 +1,4 @@
-import type { NextFunction, Request, Response, Router } from 'express'
+import type { NextFunction, Request, Response } from 'express'
 import multer from 'multer'
 import { randomUUID } from 'node:crypto'
 import { mkdirSync } from 'node:fs'
@@ -6,20 +6,38 @@ import { join } from 'node:path'
 import { z } from 'zod'
 import type { AppDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
-import { route } from '../http/route.ts'
+import { route, type Routes } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
 import { parseRequest } from '../http/parse-request.ts'
 import { textLine } from '../../shared/schemas/text.ts'
 import { intakeService } from '../services/intake.service.ts'
 import { GalaxyPathSchema, IntakePathSchema, IntakeSchema, JobSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
-import { ColumnMappingSchema, IntakeCountsSchema, IntakeOptionsSchema, IntakeReportSchema } from '../../shared/schemas/intake.schema.ts'
-import type { Guard } from './index.ts'
+import {
+  ColumnMappingSchema, IntakeCountsSchema, IntakeOptionsSchema, IntakeProblemSchema, IntakeReportSchema, NonDetectionSchema, OnExistingSchema,
+} from '../../shared/schemas/intake.schema.ts'
+import { GalaxyInputSchema } from '../../shared/schemas/galaxy.schema.ts'
 
 /** The uploaded file's own name (multer decodes filename*= and %0A in it): stored and shown, so plain text. */
 const FileNameSchema = textLine().min(1).max(255)
 const CSV_TYPES = new Set(['text/csv', 'text/plain', 'text/tab-separated-values', 'application/csv', 'application/vnd.ms-excel', 'application/octet-stream'])
 
-export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
+/** What an intake row keeps of its commit (counts and options), of a failed commit (problems) and of its undo. */
+const StoredReportSchema = IntakeCountsSchema.partial().extend({
+  onExisting: OnExistingSchema.optional(), fluxUnit: z.number().optional(), nonDetection: NonDetectionSchema.optional(),
+  jobId: z.uuid().optional().meta({ description: 'the job that stored a CSV' }),
+  problems: z.array(IntakeProblemSchema).optional().meta({ description: 'why the last commit was refused (nothing was stored)' }),
+  problemCount: z.number().int().optional(), error: z.string().optional(),
+  errors: z.array(z.object({ path: z.string(), message: z.string() })).optional(),
+  undone: z.object({ at: z.string(), by: z.object({ id: z.uuid(), name: z.string().nullable() }), restored: z.number().int(), removed: z.number().int() }).optional(),
+}).nullable().meta({ description: 'null until a commit; then what it stored, or why it was refused' })
+
+/** A stored galaxy record, as an intake wrote it. */
+const RecordSchema = z.object({
+  id: z.string(), redshift: z.number().nullable(), fluxUnit: z.number(), ra: z.number().nullable(), dec: z.number().nullable(),
+  lines: GalaxyInputSchema.shape.lines, ew: GalaxyInputSchema.shape.ew.unwrap().nullable(), fwhm: GalaxyInputSchema.shape.fwhm.unwrap().nullable(),
+})
+
+export function intakeRoutes(r: Routes, deps: AppDeps) {
   const intake = intakeService(deps.db, deps.mailer, deps.config.dataDir, deps.config.appUrl, deps.config.largeIntakeRows,
     { maxRows: deps.config.intakeMaxRows, inlineRows: deps.config.intakeInlineRows })
   const dir = join(deps.config.dataDir, 'uploads')
@@ -54,25 +72,26 @@ export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
   const StagedSchema = z.object({
     intake: IntakeSchema, delimiter: z.string(), headers: z.array(z.string()), previewRows: z.array(z.array(z.string())), rowCount: z.number().int(),
     commentLines: z.number().int().meta({ description: '`#` comment lines skipped (before the header or between rows)' }),
-    suggestedMapping: ColumnMappingSchema, savedMappings: z.array(z.object({ name: z.string(), mapping: z.unknown() })),
+    suggestedMapping: ColumnMappingSchema, savedMappings: z.array(z.object({ name: z.string(), mapping: ColumnMappingSchema })),
   })
-  route(r, { method: 'post', path: '/projects/:projectId/intakes/csv', tag, access: 'analyst', write: true, params: ProjectPathSchema,
+  route(r, { method: 'post', path: '/projects/:projectId/intakes/csv', operationId: 'uploadIntakeCsv', tag, access: 'analyst', write: true, params: ProjectPathSchema,
     summary: 'Upload a CSV (multipart field "file"): stages it and answers a preview and a suggested column mapping',
     description: `Lines whose first non-blank character is \`#\` are comments and skipped. At most INTAKE_MAX_ROWS (default 1,000,000) data rows; a larger file answers 413.`,
-    bodyContentType: 'multipart/form-data', responses: { 201: { description: 'staged', schema: StagedSchema }, 413: { description: 'too large, or more rows than one intake takes' }, 415: { description: 'not a CSV' } } },
-  (spec) => { const g = guard(spec); return (req, res, next) => g(req, res, (e?: unknown) => (e ? next(e) : receive(req, res, next))) },
+    bodyContentType: 'multipart/form-data', before: [receive], responses: { 201: { description: 'staged', schema: StagedSchema }, 413: { description: 'too large, or more rows than one intake takes' }, 415: { description: 'not a CSV' } } },
   async (req, res, { params }) => {
     if (!req.file) throw new HttpProblem(422, 'Unprocessable Content', 'no file in the form', [{ path: '/file', message: 'required' }])
     res.status(201).json(await intake.stage(requireAuth(req), params.projectId, req.file))
   })
 
-  route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/validate', tag, access: 'analyst', write: true, params: IntakePathSchema, body: IntakeOptionsSchema,
+  route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/validate', operationId: 'validateIntake', tag, access: 'analyst', write: true, params: IntakePathSchema, body: IntakeOptionsSchema,
     summary: 'Check every row of a staged file with a mapping, and count the IDs the project already has (nothing is stored)',
     responses: { 200: { description: 'report with row and column numbers', schema: IntakeReportSchema } } },
-  guard, async (_req, res, { params, body }) => { res.json(await intake.validate(params.projectId, params.intakeId, body)) })
+  async (_req, res, { params, body }) => { res.json(await intake.validate(params.projectId, params.intakeId, body)) })
 
+  // the stored report's counts and options beside the intake and its job
   const Committed = z.object({ intake: IntakeSchema, job: JobSchema }).extend(IntakeCountsSchema.shape)
-  route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/commit', tag, access: 'analyst', write: true, params: IntakePathSchema, body: IntakeOptionsSchema,
+    .extend({ onExisting: OnExistingSchema, fluxUnit: z.number(), nonDetection: NonDetectionSchema, jobId: z.uuid() })
+  route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/commit', operationId: 'commitIntake', tag, access: 'analyst', write: true, params: IntakePathSchema, body: IntakeOptionsSchema,
     summary: 'Store every row of a staged file in one transaction (all or nothing), as an `intake` job',
     description: 'IDs the project already has are left as they are unless `onExisting` says `replace` or `merge` (validate reports how many there are); replaced records stay retrievable and the intake can be undone. Files of up to INTAKE_INLINE_ROWS (default 10,000) rows are stored within the request (200); larger ones answer 202 with the job: poll `GET …/jobs/{jobId}`, then read the intake.',
     responses: {
@@ -80,12 +99,12 @@ export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
       202: { description: 'storing in the background: follow the job', schema: z.object({ intake: IntakeSchema, job: JobSchema }) },
       409: { description: 'not staged (already committing, committed or expired)' }, 422: { description: 'problems; nothing stored' },
     } },
-  guard, async (req, res, { params, body }) => {
+  async (req, res, { params, body }) => {
     const out = await intake.commit(requireAuth(req), params.projectId, params.intakeId, body)
     res.status(out.status).json(out.body)
   })
 
-  route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/undo', tag, access: 'analyst', write: true, params: IntakePathSchema,
+  route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/undo', operationId: 'undoIntake', tag, access: 'analyst', write: true, params: IntakePathSchema,
     summary: 'Undo a committed intake: restore the records it replaced, remove the galaxies it created, recompute their results',
     description: 'One transaction: all of it or nothing. Refused with 409 when a later intake changed any of the same galaxies (undo that one first), or when the intake is not committed.',
     responses: {
@@ -93,22 +112,20 @@ export function intakeRoutes(r: Router, deps: AppDeps, guard: Guard) {
       202: { description: 'an intake of more than INTAKE_INLINE_ROWS rows: undone by an `undo` job; follow it', schema: z.object({ intake: IntakeSchema, job: JobSchema }) },
       409: { description: 'a later intake changed its galaxies, not committed, or an undo of it is running' },
     } },
-  guard, async (req, res, { params }) => {
+  async (req, res, { params }) => {
     const out = await intake.undo(requireAuth(req), params.projectId, params.intakeId)
     res.status(out.status).json(out.body)
   })
 
-  const RecordSchema = z.object({ id: z.string(), redshift: z.number().nullable(), fluxUnit: z.number(), ra: z.number().nullable(), dec: z.number().nullable(),
-    lines: z.unknown(), ew: z.unknown().nullable(), fwhm: z.unknown().nullable() })
-  route(r, { method: 'get', path: '/projects/:projectId/galaxies/:galaxyId/versions', tag, access: 'viewer', params: GalaxyPathSchema,
+  route(r, { method: 'get', path: '/projects/:projectId/galaxies/:galaxyId/versions', operationId: 'listGalaxyVersions', tag: 'Galaxies', access: 'viewer', params: GalaxyPathSchema,
     summary: 'Earlier records of a galaxy that intakes replaced or merged into, newest first',
     responses: { 200: { description: 'earlier records', schema: z.object({ items: z.array(z.object({
       writtenBy: z.string().nullable().meta({ description: 'the intake that had written the record' }), writtenAt: z.string(), replacedAt: z.string(),
       supersededBy: z.object({ intakeId: z.string(), kind: z.string(), fileName: z.string().nullable(), createdAt: z.string() }), record: RecordSchema,
     })) }) } } },
-  guard, async (_req, res, { params }) => { res.json(await intake.versions(params.projectId, params.galaxyId)) })
+  async (_req, res, { params }) => { res.json(await intake.versions(params.projectId, params.galaxyId)) })
 
-  route(r, { method: 'get', path: '/projects/:projectId/intakes/:intakeId', tag, access: 'viewer', params: IntakePathSchema,
-    summary: 'One intake with its report', responses: { 200: { description: 'intake', schema: IntakeSchema.extend({ report: z.unknown() }) } } },
-  guard, async (_req, res, { params }) => { res.json(await intake.get(params.projectId, params.intakeId)) })
+  route(r, { method: 'get', path: '/projects/:projectId/intakes/:intakeId', operationId: 'getIntake', tag, access: 'viewer', params: IntakePathSchema,
+    summary: 'One intake with its report', responses: { 200: { description: 'intake', schema: IntakeSchema.extend({ report: StoredReportSchema }) } } },
+  async (_req, res, { params }) => { res.json(await intake.get(params.projectId, params.intakeId)) })
 }

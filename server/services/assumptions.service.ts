@@ -5,8 +5,7 @@ import type { Auth } from '../http/auth.ts'
 import { SettingsSchema } from '../../shared/schemas/galaxy.schema.ts'
 import { parseRequest } from '../http/parse-request.ts'
 import { audit } from './audit.ts'
-import { jobDto, RECOMPUTE_QUEUE, runRecompute, type JobQueue } from './jobs.service.ts'
-import { logger } from '../lib/logger.ts'
+import { dispatchJob, jobDto, type JobQueue } from './jobs.service.ts'
 
 function revisionDto(r: typeof assumptionRevisions.$inferSelect, by: { id: string | null; name: string | null }) {
   return { revision: r.revision, settings: SettingsSchema.parse(r.settings), note: r.note, createdAt: r.createdAt.toISOString(), createdBy: by.id ? by : null }
@@ -35,8 +34,7 @@ export function assumptionsService(db: Db, queue: JobQueue | undefined) {
         await audit(tx, { action: 'assumptions-changed', actorUserId: auth.user.id, projectId, target: `revision ${revision}`, details: { settings, note } })
         return { rev, job }
       })
-      if (queue) await queue.enqueue(RECOMPUTE_QUEUE, { jobId: out.job.id })
-      else runRecompute(db, out.job.id).catch((err) => logger.error({ err }, 'recompute failed')) // no queue: run here
+      await dispatchJob(db, queue, out.job) // no queue: it runs in this process
       return { revision: revisionDto(out.rev, { id: auth.user.id, name: auth.user.name }), job: jobDto(out.job) }
     },
   }

@@ -1,5 +1,6 @@
 import { createReadStream } from 'node:fs'
 import { access, mkdir, open, rm } from 'node:fs/promises'
+import { pipeline } from 'node:stream/promises'
 import { join } from 'node:path'
 import { CsvError, parse } from 'csv-parse'
 import { and, eq, sql } from 'drizzle-orm'
@@ -18,6 +19,7 @@ import { CSV_PARSE_OPTIONS, columnFor, rowToGalaxy, suggestMapping } from './csv
 import { dispatchJob, errorText, jobDto, registerJobRunner, reportProgress, runJob, type JobLease } from './jobs.service.ts'
 import { resultRow } from './result-columns.ts'
 import { audit } from './audit.ts'
+import { addCounts, zeroCounts } from './intake-counts.ts'
 import { CONTROL_MESSAGE, isCleanText } from '../../shared/schemas/text.ts'
 
 const PREVIEW_ROWS = 20
@@ -37,7 +39,7 @@ const isComment = (line: string) => /^[\s\uFEFF]*#/.test(line)
  * The header: the first complete line that is neither blank nor a `#` comment, from the start of a
  * file (`complete`: the text holds the whole file, so its last line is whole too).
  */
-export function headerLine(text: string, complete = true): string | undefined {
+function headerLine(text: string, complete = true): string | undefined {
   const lines = text.replace(/^\uFEFF/, '').split(/\r?\n/)
   if (!complete) lines.pop()
   for (const line of lines) if (line.trim() !== '' && !isComment(line)) return line
@@ -71,16 +73,24 @@ async function inspect(path: string): Promise<{ delimiter: string; bytes: number
   return { delimiter: counts[0][1] > 0 ? counts[0][0] : ',', bytes }
 }
 
-/** Streams the records of a staged file (csv-parse, `#` comment lines skipped), with the file line of each. */
+/**
+ * Streams the records of a staged file (csv-parse, `#` comment lines skipped), with the file line of
+ * each. The file is read through `pipeline`, so it is closed however the reading ends: at the end,
+ * on a CSV error, or when the caller stops early (the header alone).
+ */
 async function* records(path: string, delimiter: string, stats?: { commentLines: number }): AsyncGenerator<{ record: string[]; line: number }> {
-  const parser = createReadStream(path).pipe(parse({ ...CSV_PARSE_OPTIONS, delimiter }))
+  const parser = parse({ ...CSV_PARSE_OPTIONS, delimiter })
+  const piped = pipeline(createReadStream(path), parser)
+  piped.catch(() => {}) // its failure reaches the loop below through the parser
   try {
     for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) yield { record: item.record, line: item.info.lines }
+    await piped
   } catch (err) {
     if (err instanceof CsvError) throw bad(`the file is not valid CSV: ${err.message}`)
     throw err
   } finally {
     if (stats) stats.commentLines = parser.info.comment_lines
+    parser.destroy() // a caller that stopped early: the pipeline then closes the file
   }
 }
 
@@ -205,13 +215,10 @@ async function pass(tx: Tx, projectId: string, path: string, opts: IntakeOptions
   return out
 }
 
-const zeroCounts = (): IntakeCounts => ({ inserted: 0, updated: 0, replaced: 0, merged: 0, skipped: 0 })
-const addCounts = (a: IntakeCounts, b: IntakeCounts) => { for (const k of Object.keys(a) as Array<keyof IntakeCounts>) a[k] += b[k] }
-
 /** What a finished intake mails its starter, and where its links point; set by the app (`configureIntakeJobs`). */
 interface IntakeJobContext { mailer?: Mailer; appUrl?: string; largeIntakeRows?: number }
 const context: IntakeJobContext = {}
-export function configureIntakeJobs(c: IntakeJobContext) { Object.assign(context, c) }
+function configureIntakeJobs(c: IntakeJobContext) { Object.assign(context, c) }
 
 interface IntakeJobParams { intakeId: string; options: unknown }
 

@@ -274,11 +274,6 @@ async function recompute(lease: JobLease, job: JobRow, db: Db) {
 
 registerJobRunner('recompute', { run: recompute, continues: true })
 
-/** Runs one recompute job here and now (no queue), or resumes it. */
-export async function runRecompute(db: Db, jobId: string) {
-  await runJob(db, jobId)
-}
-
 /**
  * Subscribes this process as a worker of the recompute queue, and resumes — now and every 30 s —
  * the jobs whose worker has gone (a crash, a restart: see `resumeOrphanedJobs`).

@@ -28,6 +28,14 @@ export function lockSeconds(failures: number, free: number, maxLockS: number = T
 /** IPv6 clients are counted per /56 (express-rate-limit's subnet), so rotating within it does not help. */
 const clientKey = (ip: string | undefined) => (ip ? ipKeyGenerator(ip) : 'unknown')
 
+/**
+ * Removes counters whose last failure is older than `forgetAfterS` (they would start again at 1
+ * anyway): the runtime's hourly sweep, so a failed sign-in never scans the whole table.
+ */
+export async function forgetOldSignInFailures(db: Db) {
+  await db.delete(signInFailures).where(lt(signInFailures.lastFailureAt, sql`now() - make_interval(secs => ${THROTTLE.forgetAfterS})`))
+}
+
 export function signInThrottle(db: Db) {
   const pairs = (email: string, ip: string | undefined) => {
     const addr = clientKey(ip)
@@ -65,7 +73,6 @@ export function signInThrottle(db: Db) {
         }
         if (k.email) pairFailures = row.failures
       }
-      await db.delete(signInFailures).where(lt(signInFailures.lastFailureAt, sql`now() - make_interval(secs => ${THROTTLE.forgetAfterS})`))
       return pairFailures
     },
 

@@ -137,5 +137,5 @@ export const GalaxyResultSchema = z.object({
   sfr: SfrSchema,
   blackHoleMass: BlackHoleSchema.nullable(),
   flags: flags.meta({ description: 'every flag of the galaxy, deduplicated' }),
-}).meta({ description: 'Diagnostics of one galaxy nucleus; every number is finite or null' })
+}).meta({ id: 'GalaxyResult', description: 'Diagnostics of one galaxy nucleus; every number is finite or null' })
 

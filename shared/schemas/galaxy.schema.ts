@@ -76,10 +76,15 @@ export const SettingsInputSchema = z.object({
   }).strict().prefault({}),
 }).strict()
 
+/** Settings as the science uses them and answers show them: every default applied, R_V resolved. */
+const ResolvedSettingsSchema = SettingsInputSchema.required()
+type ResolvedSettings = z.output<typeof ResolvedSettingsSchema>
+
+// the pipe gives the answer side a JSON Schema of its own (a transform alone has none); its defaults never apply there
 export const SettingsSchema = SettingsInputSchema.transform((s) => ({
   ...s,
   rv: s.rv ?? defaultRvFor(s.extinctionLaw),
-})).meta({ id: 'Settings' })
+})).pipe(ResolvedSettingsSchema as unknown as z.ZodType<ResolvedSettings, ResolvedSettings>).meta({ id: 'Settings' })
 export type Settings = z.output<typeof SettingsSchema>
 
 export const MAX_GALAXIES_PER_REQUEST = 10_000

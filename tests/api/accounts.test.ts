@@ -3,6 +3,7 @@ import request from 'supertest'
 import { signedInAgent, startTestApp, tokenIn as linkIn, waitForMail, type TestApp } from '../helpers/app.ts'
 import { startMailCatcher } from '../../server/lib/mail-catcher.ts'
 import { queuedMailer, smtpDelivery } from '../../server/lib/mailer.ts'
+import { forgetOldSignInFailures } from '../../server/services/sign-in-throttle.ts'
 
 let t: TestApp
 beforeAll(async () => { t = await startTestApp() })
@@ -61,6 +62,17 @@ describe('sign-up and sign-in', () => {
     for (let i = 0; i < 6; i++) last = await request(t.app).post('/api/v1/auth/sign-in').send({ email: 'lockme@example.org', password: 'wrong-password-x' })
     expect(last!.status).toBe(429)
     expect(Number(last!.headers['retry-after'])).toBeGreaterThan(0)
+  })
+
+  it('the hourly sweep, not a failed sign-in, removes counters idle for a day', async () => {
+    await request(t.app).post('/api/v1/auth/sign-in').send({ email: 'stale@example.org', password: 'wrong-password-x' })
+    const rows = async () => (await t.db.$client.query("select email, ip from sign_in_failures where email in ('stale@example.org', 'fresh@example.org') order by email")).rows.map((r) => r.email)
+    expect(await rows()).toEqual(['stale@example.org'])
+    await t.db.$client.query("update sign_in_failures set last_failure_at = now() - interval '25 hours' where email = 'stale@example.org'")
+    await request(t.app).post('/api/v1/auth/sign-in').send({ email: 'fresh@example.org', password: 'wrong-password-x' })
+    expect(await rows()).toEqual(['fresh@example.org', 'stale@example.org']) // a failure no longer sweeps the table
+    await forgetOldSignInFailures(t.db)
+    expect(await rows()).toEqual(['fresh@example.org'])
   })
 
   it('sign-out voids the session', async () => {

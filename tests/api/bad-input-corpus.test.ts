@@ -1,7 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import http from 'node:http'
 import type { AddressInfo } from 'node:net'
-import { ROUTES } from '../../server/http/route.ts'
 import { signedInAgent, startTestApp, type TestApp } from '../helpers/app.ts'
 import { galaxy } from '../helpers/fixtures.ts'
 import { BAD_REQUESTS, type BadRequest, type MultipartPart } from '../fixtures/bad-input/corpus.ts'
@@ -102,7 +101,7 @@ const JSON_POINTER = /^(\/([^~]|~[01])*)*$/
 describe('bad-input corpus', () => {
   it('holds at least 150 requests, and entries for every registered route', () => {
     expect(BAD_REQUESTS.length).toBeGreaterThanOrEqual(150)
-    const registered = new Set(ROUTES.map((r) => `${r.method} ${r.path}`))
+    const registered = new Set(t.app.routeRegistry.specs.map((r) => `${r.method} ${r.path}`))
     const covered = new Set(BAD_REQUESTS.map((e) => e.route))
     expect([...registered].filter((r) => !covered.has(r)), 'routes without a corpus entry').toEqual([])
     expect([...covered].filter((r) => r !== 'app' && !registered.has(r)), 'entries naming no registered route').toEqual([])

@@ -23,7 +23,7 @@ describe('loadConfig: the environment through one zod schema', () => {
       appUrl: 'http://127.0.0.1:8080', secureCookies: false, trustProxy: false, authRateLimit: 20,
       largeIntakeRows: 5000, diagramWarmupMs: 1500, stagedIntakeHours: 24, intakeMaxRows: 1_000_000,
       intakeInlineRows: 10_000, apiRateLimit: 1200, anonymousDiagnosticsRateLimit: 600, computeQueue: 256,
-      computeTimeoutMs: 60_000, computeBudget: 2_500_000, anonymousComputeBudget: 200_000,
+      computeTimeoutMs: 60_000, computeBudget: 2_500_000, anonymousComputeBudget: 200_000, mailCatcherPort: 0,
     })
     expect(c.computeThreads).toBeGreaterThanOrEqual(1)
   })
@@ -42,9 +42,11 @@ describe('loadConfig: the environment through one zod schema', () => {
       secureCookies: true, trustProxy: ['loopback', '10.0.0.0/8', '::1', '2001:db8::/32'],
     })
     expect(load({ TRUST_PROXY: '2' }).trustProxy).toBe(2)
-    expect(load({ TRUST_PROXY: 'off' }).trustProxy).toBe(false)
-    // read elsewhere, validated here
-    expect(() => load({ MAIL_CATCHER_PORT: '2525', SEED_DEMO: '0', BUILD_CLIENT: '1' })).not.toThrow()
+    // the boolean words of SECURE_COOKIES, in any case: a false one trusts no proxy
+    for (const v of ['off', 'No', 'FALSE', '0']) expect(load({ TRUST_PROXY: v }).trustProxy).toBe(false)
+    expect(load({ MAIL_CATCHER_PORT: '2525' }).mailCatcherPort).toBe(2525)
+    // read elsewhere (cli/start.ts), validated here
+    expect(() => load({ SEED_DEMO: '0', BUILD_CLIENT: '1' })).not.toThrow()
   })
 
   it('reads SECURE_COOKIES as a boolean word', () => {
@@ -71,6 +73,9 @@ describe('loadConfig: the environment through one zod schema', () => {
     [{ MAIL_CATCHER_PORT: '2525x' }, 'MAIL_CATCHER_PORT must be a port number (a whole number from 0 to 65535), got "2525x"'],
     [{ SEED_DEMO: 'no' }, 'SEED_DEMO must be 0 or 1, got "no"'],
     [{ TRUST_PROXY: 'true' }, 'TRUST_PROXY must not be true: that would let any client choose its address'],
+    [{ TRUST_PROXY: 'Yes' }, 'TRUST_PROXY must not be true: that would let any client choose its address'],
+    [{ TRUST_PROXY: 'all' }, 'TRUST_PROXY must not be true: that would let any client choose its address'],
+    [{ SECURE_COOKIES: 'constructor' }, 'SECURE_COOKIES must be 1/true/yes/on or 0/false/no/off, got "constructor"'],
     [{ TRUST_PROXY: 'loopback, 10.0.0.0/33, proxy.local' }, 'TRUST_PROXY must be a hop count or a comma list of addresses, subnets (10.0.0.0/8) or loopback/linklocal/uniquelocal; not "10.0.0.0/33", "proxy.local"'],
   ])('refuses %o with a message naming the variable and the rule', (env, message) => {
     const m = refusal(env)
