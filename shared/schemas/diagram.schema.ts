@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { CLASS_NAMES } from './classes.ts'
+import { DIAGRAM_CLASSES as CLASS_NAMES } from '../vocabulary/classes.ts'
 import type { DiagramColumnsJson } from '../diagram-columns.ts'
 
 /**
