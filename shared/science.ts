@@ -40,5 +40,6 @@ export { lineLuminosity, luminosityDistanceMpc, sfrKennicutt98, sfrKennicuttEvan
 export { blackHoleMassGreeneHo05 } from './diagnostics/black-hole.ts'
 
 // columnar kernel (batch and benchmark)
-export { createKernelInput, createKernelOutput, FC, FLOAT_COLUMNS, IC, INT_COLUMNS, prepareSettings } from './diagnostics/kernel.ts'
+export { createKernelInput, createKernelOutput, prepareSettings } from './diagnostics/kernel.ts'
+export { FLOAT, FLOAT_COLUMNS, INT, INT_COLUMNS } from './diagnostics/kernel-layout.ts'
 export type { KernelInput, KernelOutput, PreparedSettings } from './diagnostics/kernel.ts'

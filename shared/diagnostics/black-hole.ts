@@ -16,3 +16,15 @@ export function blackHoleMassGreeneHo05(luminosityBroadHalpha: number, fwhmKmPer
     Math.pow(luminosityBroadHalpha / 1e42, GREENE_HO05.luminosityExponent) *
     Math.pow(fwhmKmPerS / 1e3, GREENE_HO05.fwhmExponent)
 }
+
+/**
+ * First-order error of log10 M_BH from the broad-line flux alone: 0.55 (σ_F/F)/ln 10 dex (the FWHM
+ * and the calibration's scatter are not included; shared/science/README.md §7, §9).
+ *
+ * @param relativeFluxError  σ/F of the broad Hα flux, dimensionless
+ * @returns σ of log10 M_BH, dex
+ * @example blackHoleLog10MassError(0.1) // ≈ 0.0238862 (shared/science/README.md §7)
+ */
+export function blackHoleLog10MassError(relativeFluxError: number): number {
+  return (GREENE_HO05.luminosityExponent * relativeFluxError) / Math.LN10
+}

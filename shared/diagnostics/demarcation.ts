@@ -120,6 +120,39 @@ export function signedDistanceToLine(line: StraightLine, x: number, y: number): 
   return (y - line.m * x - line.q) / Math.sqrt(1 + line.m * line.m)
 }
 
+/**
+ * First-order 1σ error of the signed distance to a straight line from independent errors of x and y:
+ * √((m σ_x)² + σ_y²)/√(1 + m²). Source: shared/science/README.md §2.6, §9 (first-order propagation).
+ *
+ * @param line    the line
+ * @param sigmaX  σ of x, dex
+ * @param sigmaY  σ of y, dex
+ * @returns σ of the distance, dex
+ * @example signedDistanceToLineError(S07_NII, 0.1, 0.05) // ≈ 0.0802049
+ */
+export function signedDistanceToLineError(line: StraightLine, sigmaX: number, sigmaY: number): number {
+  const a = line.m * sigmaX
+  return Math.sqrt(a * a + sigmaY * sigmaY) / Math.sqrt(1 + line.m * line.m)
+}
+
+/**
+ * First-order 1σ error of a perpendicular distance from the unit normal (n_x, n_y) at the closest
+ * point (as written by `signedDistanceToHyperbola` into `out`): √((n_x σ_x)² + (n_y σ_y)²).
+ * Source: shared/science/README.md §2.6, §9 (first-order propagation; the closest point moves only to second order).
+ *
+ * @param normalX  n_x
+ * @param normalY  n_y
+ * @param sigmaX   σ of x, dex
+ * @param sigmaY   σ of y, dex
+ * @returns σ of the distance, dex
+ * @example distanceErrorAlongNormal(0.6, 0.8, 0.1, 0.05) // ≈ 0.0721110
+ */
+export function distanceErrorAlongNormal(normalX: number, normalY: number, sigmaX: number, sigmaY: number): number {
+  const a = normalX * sigmaX
+  const b = normalY * sigmaY
+  return Math.sqrt(a * a + b * b)
+}
+
 // p(t) = t⁴ + u t³ − a v t − a² and p′(t) for the closest point on a hyperbola (see below).
 function quarticP(t: number, u: number, av: number, a2: number): number {
   return ((t + u) * t * t - av) * t - a2

@@ -1,128 +1,85 @@
 /**
  * The columnar kernel: the whole deterministic chain for many galaxies at once, Float64Array /
  * Int8Array in and out. `diagnoseGalaxy`, `diagnoseMany`, the Monte Carlo and the benchmark all run
- * through `runKernel`; the formulas themselves live in the small functions it calls (one source of
- * truth). Inside the kernel NaN is the "no value" sentinel of float columns; `pipeline.ts` turns every
- * NaN into null plus a flag before anything leaves the library.
+ * through `runKernel`. The kernel holds no formula of its own: every number comes from the public
+ * functions of shared/extinction, shared/stats and shared/diagnostics (one implementation, tested
+ * there); the kernel decides which of them apply to a row and where their results go (the column
+ * layout is `kernel-layout.ts`). Each step reads and writes one row context (`Row`); what differs
+ * between ratios, diagrams, doublets and temperature ions is data (the RATIO_*, *_DIAGRAM, DENSITY_*
+ * and TEMPERATURE_* specs), not arguments.
+ * Inside the kernel NaN is the "no value" sentinel of float columns; `pipeline.ts` turns every NaN
+ * into null plus a flag before anything leaves the library.
  */
 import { extinctionK } from '../extinction/index.ts'
 import { METALLICITY_KEYS } from '../vocabulary/calibrations.ts'
 import type { ExtinctionLaw } from '../vocabulary/extinction-laws.ts'
 import { flagBit } from '../vocabulary/flags.ts'
 import * as __flags from '../vocabulary/flags.ts'
-import { LINE_COUNT, LINE_IDS, LINES } from '../vocabulary/lines.ts'
-import { linearisedLogVariance, linearisedLogVarianceOfLine } from '../stats/error-propagation.ts'
+import { LINE_COUNT, LINE_INDEX, LINES } from '../vocabulary/lines.ts'
+import {
+  fluxWeightedK, linearisedLogVariance, linearisedLogVarianceOfLine, log10Error, relativeErrorOfRatio, relativeErrorOfSum,
+} from '../stats/error-propagation.ts'
 import * as __error_propagation from '../stats/error-propagation.ts'
-import { ratioLimitStatus, stateOfSum } from '../stats/limits.ts'
+import { isDetection, ratioLimitStatus, stateOfSum, upperLimitFromError } from '../stats/limits.ts'
 import * as __limits from '../stats/limits.ts'
-import { balmerCoefficient, INTRINSIC_HGAMMA_HBETA_CASE_B } from './balmer-decrement.ts'
-import { blackHoleMassGreeneHo05, GREENE_HO05 } from './black-hole.ts'
+import {
+  balmerCoefficient, colourExcessError, colourExcessFromBalmerRaw, colourExcessFromHgammaRaw, dereddeningFactor,
+  INTRINSIC_HGAMMA_HBETA_CASE_B,
+} from './balmer-decrement.ts'
+import { blackHoleLog10MassError, blackHoleMassGreeneHo05 } from './black-hole.ts'
 import { classifyNiiPoint, classifyOiPoint, classifySiiPoint, classProvenByLimits, niiSubtypeOfPoint, overallClass } from './bpt.ts'
 import * as __classes from '../vocabulary/classes.ts'
 import {
-  KA03, KA03_KE01_CROSSING_X, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, S07_NII, signedDistanceToHyperbola,
-  signedDistanceToLine, type HyperbolaCurve, type StraightLine,
+  distanceErrorAlongNormal, isBelowHyperbola, KA03, KA03_KE01_CROSSING_X, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, S07_NII,
+  signedDistanceToHyperbola, signedDistanceToLine, signedDistanceToLineError, type HyperbolaCurve, type StraightLine,
 } from './demarcation.ts'
 import {
-  DENSITY_OK, densityRangeStatus, densityRatioDerivative, electronDensityFromDoubletRatio, SANDERS16_OII, SANDERS16_SII,
-  type DoubletFit,
+  DENSITY_LOW_LIMIT, DENSITY_OK, densityRangeStatus, densityRatioDerivative, electronDensityFromDoubletRatio, SANDERS16_OII,
+  SANDERS16_SII, type DoubletFit,
 } from './density.ts'
+import * as __layout from './kernel-layout.ts'
 import { createLuminosityDistanceCache, lineLuminosity, sfrKennicutt98, sfrKennicuttEvans12 } from './luminosity.ts'
-import { METALLICITY_CALIBRATIONS } from './metallicity.ts'
+import * as __metallicity from './metallicity.ts'
+import { METALLICITY_CALIBRATIONS, n2Index, n2s2haIndex, o3n2Index } from './metallicity.ts'
 import {
-  NII_TEMPERATURE_MODEL, OIII_TEMPERATURE_MODEL, temperatureRatioLogSlope, temperatureWithDensityIteration, type TemperatureRatioModel,
-  type TemperatureSolution,
+  doubletSumFromStrongLine, NII_6584_TO_6548, NII_TEMPERATURE_MODEL, OIII_5007_TO_4959, OIII_TEMPERATURE_MODEL, temperatureError,
+  temperatureWithDensityIteration, type TemperatureRatioModel, type TemperatureSolution,
 } from './temperature.ts'
+import * as __whan from './whan.ts'
 import { whanClass } from './whan.ts'
 import type { DiagnosticSettings, RatioKey } from './types.ts'
 // imported constants copied into module scope: V8 reads module-local constants in hot loops without
 // the per-access initialisation check that imported bindings need
 const FLAG_WORDS = __flags.FLAG_WORDS
-// imported constants copied into module scope: V8 reads module-local constants in hot loops without
-// the per-access initialisation check that imported bindings need
-const LN10 = __error_propagation.LN10
 const ROLE_DUST_DENOMINATOR = __error_propagation.ROLE_DUST_DENOMINATOR
 const ROLE_DUST_NUMERATOR = __error_propagation.ROLE_DUST_NUMERATOR
 const ROLE_OTHER = __error_propagation.ROLE_OTHER
-// imported constants copied into module scope: V8 reads module-local constants in hot loops without
-// the per-access initialisation check that imported bindings need
 const CLASS_AGN = __classes.CLASS_AGN
 const CLASS_STAR_FORMING = __classes.CLASS_STAR_FORMING
 const CLASS_UNCLASSIFIED = __classes.CLASS_UNCLASSIFIED
-// imported constants copied into module scope: V8 reads module-local constants in hot loops without
-// the per-access initialisation check that imported bindings need
 const LINE_ABSENT = __limits.LINE_ABSENT
 const LINE_DETECTED = __limits.LINE_DETECTED
 const LINE_NONPOSITIVE = __limits.LINE_NONPOSITIVE
 const LINE_UPPER_LIMIT = __limits.LINE_UPPER_LIMIT
 const RATIO_EXACT = __limits.RATIO_EXACT
 const RATIO_NONE = __limits.RATIO_NONE
+const FLOAT = __layout.FLOAT
+const INT = __layout.INT
+const FLOAT_COLUMN_COUNT = __layout.FLOAT_COLUMN_COUNT
+const INT_COLUMN_COUNT = __layout.INT_COLUMN_COUNT
+const RATIO_COUNT = __layout.RATIO_COUNT
+const DENSITY_NOT_COMPUTED = __layout.DENSITY_NOT_COMPUTED
+const D16_NII_HA_WEIGHT = __metallicity.D16_NII_HA_WEIGHT
+const WHAN_PASSIVE_MAX_EW = __whan.WHAN.passiveMaxEw
 
-// ── line indices (kernel column order = LINES) ──────────────────────────────────────────────────
-export const HA = 0, HB = 1, HG = 2, HD = 3, O3_5007 = 4, O3_4959 = 5, O3_4363 = 6, N2_6584 = 7, N2_6548 = 8,
-  N2_5755 = 9, S2_6717 = 10, S2_6731 = 11, O1_6300 = 12, O2_3726 = 13, O2_3729 = 14, HA_BROAD = 15
-
-/** Fixed [O III] 5007/4959 used when 4959 is missing (Storey & Zeippen 2000, MNRAS 312, 813 — from memory, shared/science/README.md §12; shared/science/README.md §4). */
-export const OIII_5007_TO_4959 = 2.98
-/** Fixed [N II] 6584/6548 used when 6548 is missing (≈ 3.05, shared/science/README.md §4 — from memory, shared/science/README.md §12). */
-export const NII_6584_TO_6548 = 3.05
-/** Weight of log([N II]/Hα) in the D16 index y (Dopita et al. 2016, Ap&SS 361, 61, eq. 1). */
-const D16_NII_HA_WEIGHT = 0.264
-
-/** Ratio keys of the contract in kernel order, and their indices. */
-export const RATIO_KEYS: readonly RatioKey[] = ['niiHa', 'oiiiHb', 'siiHa', 'oiHa', 'siiDoublet', 'oiiDoublet']
-export const R_NII = 0, R_OIII = 1, R_SII = 2, R_OI = 3, R_SIID = 4, R_OIID = 5
-
-// ── float output columns (row-major: value of column c for row i at i·FLOAT_COLUMN_COUNT + c) ──
-/** Names of the float output columns; a name ending in "Error" never gets Monte Carlo percentiles. */
-export const FLOAT_COLUMNS: readonly string[] = [
-  'balmerDecrement', 'balmerDecrementError', 'ebv', 'ebvError', 'av', 'avError',
-  ...LINE_IDS.flatMap((l) => [`flux:${l}`, `fluxError:${l}`]),
-  ...RATIO_KEYS.flatMap((k) => [`ratio:${k}`, `ratioError:${k}`]),
-  'nii.ka03', 'nii.ka03Error', 'nii.ke01', 'nii.ke01Error', 'nii.s07', 'nii.s07Error', 'nii.nearestDistance',
-  'sii.ke01', 'sii.ke01Error', 'sii.ke06', 'sii.ke06Error',
-  'oi.ke01', 'oi.ke01Error', 'oi.ke06', 'oi.ke06Error',
-  'density.sii.ne', 'density.sii.neError', 'density.oii.ne', 'density.oii.neError',
-  'te.oiii', 'te.oiiiError', 'te.oiii.neUsed', 'te.nii', 'te.niiError', 'te.nii.neUsed',
-  ...METALLICITY_KEYS.flatMap((k) => [`z.${k}`, `z.${k}Error`]),
-  'sfr.dl', 'sfr.lHa', 'sfr.lHaError', 'sfr.k98', 'sfr.k98Error', 'sfr.ke12', 'sfr.ke12Error',
-  'bh.mass', 'bh.log10Mass', 'bh.log10MassError', 'bh.lBroad',
-]
-/** Number of float output columns. */
-export const FLOAT_COLUMN_COUNT = FLOAT_COLUMNS.length
-/** Column number of every float column, by name. */
-export const FC: Readonly<Record<string, number>> = Object.fromEntries(FLOAT_COLUMNS.map((n, i) => [n, i]))
-
-const F_DEC = FC['balmerDecrement'], F_DEC_E = FC['balmerDecrementError'], F_EBV = FC['ebv'], F_EBV_E = FC['ebvError']
-const F_AV = FC['av'], F_AV_E = FC['avError']
-const F_FLUX0 = FC[`flux:${LINE_IDS[0]}`]
-const F_RATIO0 = FC[`ratio:${RATIO_KEYS[0]}`]
-const F_NII_KA03 = FC['nii.ka03'], F_NII_NEAR = FC['nii.nearestDistance'], F_SII_KE01 = FC['sii.ke01'], F_OI_KE01 = FC['oi.ke01']
-const F_NE_SII = FC['density.sii.ne'], F_NE_OII = FC['density.oii.ne']
-const F_TE_OIII = FC['te.oiii'], F_TE_NII = FC['te.nii']
-const F_Z0 = FC[`z.${METALLICITY_KEYS[0]}`]
-const F_DL = FC['sfr.dl'], F_LHA = FC['sfr.lHa']
-const F_BH = FC['bh.mass']
-
-// ── int8 output columns ────────────────────────────────────────────────────────────────────────
-/** Names of the Int8 output columns. */
-export const INT_COLUMNS: readonly string[] = [
-  'source', // 0 none, 1 Hα/Hβ, 2 Hγ/Hβ
-  ...LINE_IDS.map((l) => `state:${l}`), // LINE_* after thresholding
-  ...RATIO_KEYS.map((k) => `limit:${k}`), // RATIO_*
-  'class.nii', 'class.sii', 'class.oi', 'class.whan', 'class.overall', 'class.niiSubtype',
-  'nii.nearest', // 0 none, 1 ka03, 2 ke01
-  'density.sii', 'density.oii', // 0 ok, 1 low, 2 high, 3 not computed
-]
-/** Number of Int8 output columns, and the column number of each by name. */
-export const INT_COLUMN_COUNT = INT_COLUMNS.length
-export const IC: Readonly<Record<string, number>> = Object.fromEntries(INT_COLUMNS.map((n, i) => [n, i]))
-const I_SOURCE = IC['source'], I_STATE0 = IC[`state:${LINE_IDS[0]}`], I_LIMIT0 = IC[`limit:${RATIO_KEYS[0]}`]
-const I_NII = IC['class.nii'], I_SII = IC['class.sii'], I_OI = IC['class.oi'], I_WHAN = IC['class.whan']
-const I_OVERALL = IC['class.overall'], I_SUB = IC['class.niiSubtype'], I_NEAR = IC['nii.nearest']
-const I_DSII = IC['density.sii'], I_DOII = IC['density.oii']
-/** Density status code: the doublet was not measured (block null). */
-export const DENSITY_NOT_COMPUTED = 3
+// ── line and ratio indices (kernel column order = LINES, RATIO_KEYS) ────────────────────────────
+const HA = LINE_INDEX.halpha, HB = LINE_INDEX.hbeta, HG = LINE_INDEX.hgamma
+const O3_5007 = LINE_INDEX.oiii_5007, O3_4959 = LINE_INDEX.oiii_4959, O3_4363 = LINE_INDEX.oiii_4363
+const N2_6584 = LINE_INDEX.nii_6584, N2_6548 = LINE_INDEX.nii_6548, N2_5755 = LINE_INDEX.nii_5755
+const S2_6717 = LINE_INDEX.sii_6717, S2_6731 = LINE_INDEX.sii_6731, O1_6300 = LINE_INDEX.oi_6300
+const O2_3726 = LINE_INDEX.oii_3726, O2_3729 = LINE_INDEX.oii_3729, HA_BROAD = LINE_INDEX.halpha_broad
+const R_NII = __layout.RATIO_INDEX.niiHa, R_OIII = __layout.RATIO_INDEX.oiiiHb, R_SII = __layout.RATIO_INDEX.siiHa
+const R_OI = __layout.RATIO_INDEX.oiHa, R_SIID = __layout.RATIO_INDEX.siiDoublet, R_OIID = __layout.RATIO_INDEX.oiiDoublet
 
 /** Flag words per row: FLAG_WORDS fixed-flag words, then one word with the `below-min-snr` line bits. */
 export const FLAG_STRIDE = FLAG_WORDS + 1
@@ -132,24 +89,12 @@ const B = (name: string) => flagBit(name)
 const FB = {
   belowIntrinsic: B('balmer-below-intrinsic'), fromHgamma: B('balmer-from-hgamma'), noDecrement: B('no-balmer-decrement'),
   nonpositiveBalmer: B('nonpositive-flux:balmer'), crossing: B('curve-crossing-region'),
-  asymKa03: B('beyond-asymptote:nii-ka03'), asymKe01N: B('beyond-asymptote:nii-ke01'),
-  asymKe01S: B('beyond-asymptote:sii-ke01'), asymKe01O: B('beyond-asymptote:oi-ke01'),
-  missing: [B('missing-line:nii'), B('missing-line:sii'), B('missing-line:oi'), B('missing-line:whan')],
-  notDecisive: [B('limit-not-decisive:nii'), B('limit-not-decisive:sii'), B('limit-not-decisive:oi'), B('limit-not-decisive:whan')],
-  nonpositive: [B('nonpositive-flux:nii'), B('nonpositive-flux:sii'), B('nonpositive-flux:oi'), B('nonpositive-flux:whan')],
   whanNeedsEw: B('whan-needs-ew-halpha'), whanPassiveNeedsNii: B('whan-passive-needs-ew-nii'),
+  whanMissing: B('missing-line:whan'), whanNotDecisive: B('limit-not-decisive:whan'), whanNonpositive: B('nonpositive-flux:whan'),
   overallNeedsNii: B('overall-needs-nii'), overallWithoutSii: B('overall-without-sii'), overallWithoutOi: B('overall-without-oi'),
   overallNiiOnly: B('overall-from-nii-only'), subtypeNotDecisive: B('limit-not-decisive:nii-subtype'),
   metNotSf: B('metallicity-not-star-forming'), sfrNotSf: B('sfr-not-star-forming'), sfrNotDered: B('sfr-not-dereddened'),
   sfrNeedsHa: B('sfr-needs-halpha'), needsZ: B('luminosity-needs-redshift'),
-  densLow: [B('low-density-limit:sii'), B('low-density-limit:oii')],
-  densHigh: [B('high-density-limit:sii'), B('high-density-limit:oii')],
-  densNeeds: [B('density-needs-lines:sii'), B('density-needs-lines:oii')],
-  teOut: [B('te-out-of-range:oiii'), B('te-out-of-range:nii')],
-  teUpper: [B('te-upper-limit:oiii'), B('te-upper-limit:nii')],
-  teAssumed: [B('te-density-assumed:oiii'), B('te-density-assumed:nii')],
-  teFixed: [B('te-from-fixed-doublet-ratio:oiii'), B('te-from-fixed-doublet-ratio:nii')],
-  teNeeds: [B('te-needs-lines:oiii'), B('te-needs-lines:nii')],
   metOut: METALLICITY_KEYS.map((k) => B(`${k}-out-of-range`)),
   metNeeds: METALLICITY_KEYS.map((k) => B(`${k}-needs-detections`)),
   bhNeedsFwhm: B('black-hole-needs-fwhm'), bhNeedsZ: B('black-hole-needs-redshift'), bhLimit: B('black-hole-broad-halpha-limit'),
@@ -185,7 +130,7 @@ export function createKernelInput(n: number): KernelInput {
   }
 }
 
-/** Kernel output: row-major float, int8 and flag matrices. */
+/** Kernel output: row-major float, int8 and flag matrices (columns: `FLOAT`, `INT` of kernel-layout.ts). */
 export interface KernelOutput {
   n: number
   float: Float64Array
@@ -261,20 +206,125 @@ export interface KernelOptions {
   errors: boolean
 }
 
-// ── row scratch (the kernel is synchronous; one set of buffers suffices) ──────────────────────────
-const st = new Int8Array(LINE_COUNT)
-const fl = new Float64Array(LINE_COUNT)
-const rel = new Float64Array(LINE_COUNT) // σ/F of detected lines
-const dfl = new Float64Array(LINE_COUNT) // dereddened flux
-const rx = new Float64Array(6) // ratio values
-const rs = new Int8Array(6) // ratio states
-const rerr = new Float64Array(6)
-const coef = new Float64Array(4)
-const trel = new Float64Array(4)
-const trole = new Float64Array(4)
-const tk = new Float64Array(4)
-const dist = new Float64Array(3)
-const teSolution: TemperatureSolution = { temperatureK: null, neCm3: 0, densityAssumed: false }
+// ── the row context ──────────────────────────────────────────────────────────────────────────────
+
+/**
+ * One row's inputs after thresholding, the intermediate values later steps read (dust, ratios, the
+ * overall class, D_L) and where its outputs go. The kernel is synchronous, so one instance serves
+ * every row of every run and a row allocates nothing.
+ */
+class Row {
+  // the run
+  prep!: PreparedSettings
+  k: Float64Array = new Float64Array(LINE_COUNT)
+  thresholdSnr = true
+  withErrors = true
+  // where this row's outputs go: its slices of the three matrices start at fo, io and bo
+  float: Float64Array = new Float64Array(0)
+  int: Int8Array = new Int8Array(0)
+  flags: Uint32Array = new Uint32Array(0)
+  fo = 0
+  io = 0
+  bo = 0
+  // the row's inputs besides the lines
+  redshift = NaN
+  fluxUnit = 1
+  ewHalpha = NaN
+  ewNii = NaN
+  fwhmBroad = NaN
+  // lines after thresholding (LINES order)
+  readonly state = new Int8Array(LINE_COUNT)
+  /** observed flux, or the upper limit; NaN when absent */
+  readonly flux = new Float64Array(LINE_COUNT)
+  /** σ/F of detected lines */
+  readonly rel = new Float64Array(LINE_COUNT)
+  /** dereddened flux or limit; NaN for other states */
+  readonly dered = new Float64Array(LINE_COUNT)
+  // observed ratios (RATIO_KEYS order): value, RATIO_* state, first-order error
+  readonly ratio = new Float64Array(RATIO_COUNT)
+  readonly ratioState = new Int8Array(RATIO_COUNT)
+  readonly ratioError = new Float64Array(RATIO_COUNT)
+  // dust: the E(B−V) applied (≥ 0) and what its error depends on
+  source = 0
+  ebv = 0
+  /** 2.5/Δk of the Balmer pair when E(B−V) > 0 depends on the fluxes, else 0 */
+  dustC = 0
+  /** lines of the Balmer ratio (ROLE_DUST_NUMERATOR, ROLE_DUST_DENOMINATOR), −1 without one */
+  dustNumerator = -1
+  dustDenominator = -1
+  relD1 = 0
+  relD2 = 0
+  overall = CLASS_UNCLASSIFIED
+  luminosityDistance = NaN
+  // scratch: the terms of a linearised combination, a curve normal, a T_e solution
+  readonly coefficient = new Float64Array(4)
+  readonly termRelative = new Float64Array(4)
+  readonly termRole = new Float64Array(4)
+  readonly termK = new Float64Array(4)
+  readonly normal = new Float64Array(3)
+  readonly te: TemperatureSolution = { temperatureK: null, neCm3: 0, densityAssumed: false }
+
+  start(out: KernelOutput, prep: PreparedSettings, options: KernelOptions): void {
+    this.prep = prep
+    this.k = prep.k
+    this.thresholdSnr = options.thresholdSnr
+    this.withErrors = options.errors
+    this.float = out.float
+    this.int = out.int
+    this.flags = out.flags
+  }
+
+  /** Direct the outputs to output row o. */
+  at(o: number): void {
+    this.fo = o * FLOAT_COLUMN_COUNT
+    this.io = o * INT_COLUMN_COUNT
+    this.bo = o * FLAG_STRIDE
+  }
+
+  set(column: number, value: number): void {
+    this.float[this.fo + column] = value
+  }
+
+  setInt(column: number, value: number): void {
+    this.int[this.io + column] = value
+  }
+
+  flag(bit: number): void {
+    this.flags[this.bo + (bit >>> 5)] |= 1 << (bit & 31)
+  }
+
+  role(line: number): number {
+    return line === this.dustNumerator ? ROLE_DUST_NUMERATOR : line === this.dustDenominator ? ROLE_DUST_DENOMINATOR : ROLE_OTHER
+  }
+
+  /** Var(ln F_corr) of one dereddened line (shared/science/README.md §9). */
+  lineLogVariance(line: number): number {
+    return linearisedLogVarianceOfLine(this.rel[line], this.role(line), this.k[line], this.dustC, this.relD1, this.relD2)
+  }
+
+  /** Term j of a linearised combination: coefficient a on ln F_corr of one line. */
+  term(j: number, line: number, a: number): void {
+    this.coefficient[j] = a
+    this.termRelative[j] = this.rel[line]
+    this.termRole[j] = this.role(line)
+    this.termK[j] = this.k[line]
+  }
+
+  /** Term j on a summed pseudo-line with its own σ/F and k (never a dust line). */
+  sumTerm(j: number, a: number, relative: number, k: number): void {
+    this.coefficient[j] = a
+    this.termRelative[j] = relative
+    this.termRole[j] = ROLE_OTHER
+    this.termK[j] = k
+  }
+
+  /** Var of the combination of terms 0 … n−1 (shared/science/README.md §9). */
+  combinationLogVariance(n: number): number {
+    return linearisedLogVariance(n, this.coefficient, this.termRelative, this.termRole, this.termK, this.dustC, this.relD1, this.relD2)
+  }
+}
+
+const row = new Row()
 
 /**
  * Run the deterministic chain on input rows [start, end) into output rows [0, end − start) (see the
@@ -286,455 +336,640 @@ export function runKernel(
   const n = end - start
   if (!(n >= 0) || start < 0 || end > input.n) throw new RangeError(`runKernel: bad row range [${start}, ${end}) of ${input.n}`)
   if (out.n < n) throw new RangeError(`runKernel: output has ${out.n} rows, needs ${n}`)
-  const s = prep.settings
   out.float.fill(NaN, 0, n * FLOAT_COLUMN_COUNT)
   out.int.fill(0, 0, n * INT_COLUMN_COUNT)
   out.flags.fill(0, 0, n * FLAG_STRIDE)
-  for (let i = start; i < end; i++) kernelRow(input, out, prep, s, options, i, i - start)
+  const r = row
+  r.start(out, prep, options)
+  for (let i = start; i < end; i++) {
+    r.at(i - start)
+    kernelRow(r, input, i)
+  }
 }
 
-// √(a² + b²) without Math.hypot's overflow guards (slow in V8); the arguments here are O(1)
-function hypot2(a: number, b: number): number {
-  return Math.sqrt(a * a + b * b)
+// The chain for one row (shared/science/README.md §1–§9, in this order).
+function kernelRow(r: Row, input: KernelInput, i: number): void {
+  readRow(r, input, i)
+  dust(r)
+  deredden(r)
+  formRatio(r, RATIO_NII)
+  formRatio(r, RATIO_OIII)
+  formRatio(r, RATIO_SII)
+  formRatio(r, RATIO_OI)
+  formRatio(r, RATIO_SII_DOUBLET)
+  formRatio(r, RATIO_OII_DOUBLET)
+  classify(r)
+  distances(r)
+  const siiRatioForTe = density(r, DENSITY_SII)
+  density(r, DENSITY_OII)
+  temperature(r, TEMPERATURE_OIII, siiRatioForTe)
+  temperature(r, TEMPERATURE_NII, siiRatioForTe)
+  metallicity(r)
+  luminosity(r)
+  blackHole(r)
 }
 
-function setFlag(flags: Uint32Array, base: number, bit: number): void {
-  flags[base + (bit >>> 5)] |= 1 << (bit & 31)
-}
+// ── 1. line states (shared/science/README.md §9) ─────────────────────────────────────────────────
 
-function roleOf(line: number, d1: number, d2: number): number {
-  return line === d1 ? ROLE_DUST_NUMERATOR : line === d2 ? ROLE_DUST_DENOMINATOR : ROLE_OTHER
-}
-
-function kernelRow(input: KernelInput, out: KernelOutput, prep: PreparedSettings, s: DiagnosticSettings, options: KernelOptions, i: number, o: number): void {
-  const fo = o * FLOAT_COLUMN_COUNT
-  const io = o * INT_COLUMN_COUNT
-  const bo = o * FLAG_STRIDE
-  const F = out.float
-  const I = out.int
-  const FL = out.flags
-  const k = prep.k
-  const withErrors = options.errors
-
-  // 1. line states (shared/science/README.md §9)
+function readRow(r: Row, input: KernelInput, i: number): void {
+  const minSnr = r.prep.settings.minSnr
+  const threshold = r.thresholdSnr
+  const states = r.state
+  const flux = r.flux
+  const rel = r.rel
+  const stateColumns = INT.state
   let belowSnr = 0
-  const minSnr = s.minSnr
   for (let l = 0; l < LINE_COUNT; l++) {
     const kind = input.kind[l][i]
     let state = LINE_ABSENT
+    flux[l] = NaN
     if (kind === 1) {
       const v = input.value[l][i]
       const e = input.error[l][i]
-      if (options.thresholdSnr) {
-        if (v >= minSnr * e) {
+      if (threshold) {
+        if (isDetection(v, e, minSnr)) {
           state = LINE_DETECTED
-          fl[l] = v
+          flux[l] = v
           rel[l] = e / v
         } else {
           state = LINE_UPPER_LIMIT
-          fl[l] = minSnr * e
+          flux[l] = upperLimitFromError(e, minSnr)
           belowSnr |= 1 << l
         }
       } else if (v > 0) {
         state = LINE_DETECTED
-        fl[l] = v
+        flux[l] = v
         rel[l] = e / v
       } else {
         state = LINE_NONPOSITIVE
-        fl[l] = v
+        flux[l] = v
       }
     } else if (kind === 2) {
       state = LINE_UPPER_LIMIT
-      fl[l] = input.value[l][i]
+      flux[l] = input.value[l][i]
     }
-    st[l] = state
-    I[io + I_STATE0 + l] = state
+    states[l] = state
+    r.setInt(stateColumns[l], state)
   }
-  FL[bo + FLAG_WORDS] = belowSnr
+  r.flags[r.bo + FLAG_WORDS] = belowSnr
+  r.redshift = input.redshift[i]
+  r.fluxUnit = input.fluxUnit[i]
+  r.ewHalpha = input.ewHalpha[i]
+  r.ewNii = input.ewNii[i]
+  r.fwhmBroad = input.fwhmBroad[i]
+}
 
-  // 2. dust (shared/science/README.md §1.2)
-  let ebv = 0
-  let dustC = 0 // non-zero only when E(B−V) > 0 depends on the fluxes
-  let d1 = -1
-  let d2 = -1
-  let source = 0
-  let rawC = 0
+// ── 2. dust (shared/science/README.md §1.2) ──────────────────────────────────────────────────────
+
+function dust(r: Row): void {
+  const prep = r.prep
+  const k = r.k
+  const st = r.state
+  const fl = r.flux
+  const rel = r.rel
   let raw = NaN
+  let c = 0
+  r.source = 0
+  r.ebv = 0
+  r.dustC = 0
+  r.dustNumerator = -1
+  r.dustDenominator = -1
   if (st[HA] === LINE_DETECTED && st[HB] === LINE_DETECTED) {
-    const dec = fl[HA] / fl[HB]
-    raw = prep.cHaHb * Math.log10(dec / s.intrinsicBalmer)
-    rawC = prep.cHaHb
-    d1 = HA
-    d2 = HB
-    source = 1
-    F[fo + F_DEC] = dec
-    if (withErrors) F[fo + F_DEC_E] = dec * Math.sqrt(rel[HA] * rel[HA] + rel[HB] * rel[HB])
+    const decrement = fl[HA] / fl[HB]
+    raw = colourExcessFromBalmerRaw(decrement, prep.settings.intrinsicBalmer, k[HB], k[HA])
+    c = prep.cHaHb
+    r.dustNumerator = HA
+    r.dustDenominator = HB
+    r.source = 1
+    r.set(FLOAT.balmerDecrement, decrement)
+    if (r.withErrors) r.set(FLOAT.balmerDecrementError, decrement * relativeErrorOfRatio(rel[HA], rel[HB]))
   } else if (st[HA] !== LINE_DETECTED && st[HG] === LINE_DETECTED && st[HB] === LINE_DETECTED) {
     const ratio = fl[HG] / fl[HB]
-    raw = prep.cHgHb * Math.log10(INTRINSIC_HGAMMA_HBETA_CASE_B / ratio)
-    rawC = prep.cHgHb
-    d1 = HB
-    d2 = HG
-    source = 2
-    setFlag(FL, bo, FB.fromHgamma)
-    F[fo + F_DEC] = ratio
-    if (withErrors) F[fo + F_DEC_E] = ratio * Math.sqrt(rel[HG] * rel[HG] + rel[HB] * rel[HB])
+    raw = colourExcessFromHgammaRaw(ratio, INTRINSIC_HGAMMA_HBETA_CASE_B, k[HG], k[HB])
+    c = prep.cHgHb
+    r.dustNumerator = HB
+    r.dustDenominator = HG
+    r.source = 2
+    r.flag(FB.fromHgamma)
+    r.set(FLOAT.balmerDecrement, ratio)
+    if (r.withErrors) r.set(FLOAT.balmerDecrementError, ratio * relativeErrorOfRatio(rel[HG], rel[HB]))
   } else {
-    setFlag(FL, bo, FB.noDecrement)
-    if (st[HA] === LINE_NONPOSITIVE || st[HB] === LINE_NONPOSITIVE) setFlag(FL, bo, FB.nonpositiveBalmer)
+    r.flag(FB.noDecrement)
+    if (st[HA] === LINE_NONPOSITIVE || st[HB] === LINE_NONPOSITIVE) r.flag(FB.nonpositiveBalmer)
   }
-  I[io + I_SOURCE] = source
-  if (source !== 0) {
+  r.setInt(INT.source, r.source)
+  const d1 = r.dustNumerator
+  const d2 = r.dustDenominator
+  if (r.source !== 0) {
+    // below the intrinsic ratio: no correction, and the error of the unclipped estimate is kept
     if (raw >= 0) {
-      ebv = raw
-      dustC = rawC
-    } else {
-      ebv = 0
-      setFlag(FL, bo, FB.belowIntrinsic)
-    }
-    F[fo + F_EBV] = ebv
-    F[fo + F_AV] = s.rv * ebv
-    if (withErrors) {
-      const e = (rawC / LN10) * Math.sqrt(rel[d1] * rel[d1] + rel[d2] * rel[d2])
-      F[fo + F_EBV_E] = e
-      F[fo + F_AV_E] = s.rv * e
+      r.ebv = raw
+      r.dustC = c
+    } else r.flag(FB.belowIntrinsic)
+    const rv = prep.settings.rv
+    r.set(FLOAT.ebv, r.ebv)
+    r.set(FLOAT.av, rv * r.ebv)
+    if (r.withErrors) {
+      // the denominator line of the pair is the bluer one (Hβ of Hα/Hβ, Hγ of Hβ/Hγ)
+      const e = colourExcessError(k[d2], k[d1], rel[d2], rel[d1])
+      r.set(FLOAT.ebvError, e)
+      r.set(FLOAT.avError, rv * e)
     }
   }
-  const relD1 = d1 >= 0 ? rel[d1] : 0
-  const relD2 = d2 >= 0 ? rel[d2] : 0
+  r.relD1 = d1 >= 0 ? rel[d1] : 0
+  r.relD2 = d2 >= 0 ? rel[d2] : 0
+}
 
-  // 3. dereddened fluxes (shared/science/README.md §1.2, §9)
+// ── 3. dereddened fluxes (shared/science/README.md §1.2, §9) ────────────────────────────────────
+
+function deredden(r: Row): void {
+  const ebv = r.ebv
+  const states = r.state
+  const flux = r.flux
+  const dered = r.dered
+  const k = r.k
+  const withErrors = r.withErrors
+  const fluxColumns = FLOAT.flux
+  const errorColumns = FLOAT.fluxError
   for (let l = 0; l < LINE_COUNT; l++) {
-    const state = st[l]
+    const state = states[l]
     if (state === LINE_DETECTED || state === LINE_UPPER_LIMIT) {
-      const factor = ebv > 0 ? Math.exp(0.4 * LN10 * k[l] * ebv) : 1
-      const v = fl[l] * factor
-      dfl[l] = v
-      F[fo + F_FLUX0 + 2 * l] = v
-      if (withErrors && state === LINE_DETECTED) {
-        F[fo + F_FLUX0 + 2 * l + 1] = v * Math.sqrt(linearisedLogVarianceOfLine(rel[l], roleOf(l, d1, d2), k[l], dustC, relD1, relD2))
-      }
-    } else dfl[l] = NaN
-  }
-
-  // 4. observed ratios (public API `ratios`; shared/science/README.md §2.1)
-  ratio(R_NII, st[N2_6584], fl[N2_6584], rel[N2_6584], st[HA], fl[HA], rel[HA], true)
-  ratio(R_OIII, st[O3_5007], fl[O3_5007], rel[O3_5007], st[HB], fl[HB], rel[HB], true)
-  {
-    const sumState = stateOfSum(st[S2_6717], st[S2_6731])
-    const sum = fl[S2_6717] + fl[S2_6731]
-    const sumRel = sumState === LINE_DETECTED ? hypot2(rel[S2_6717] * fl[S2_6717], rel[S2_6731] * fl[S2_6731]) / sum : 0
-    ratio(R_SII, sumState, sum, sumRel, st[HA], fl[HA], rel[HA], true)
-  }
-  ratio(R_OI, st[O1_6300], fl[O1_6300], rel[O1_6300], st[HA], fl[HA], rel[HA], true)
-  ratio(R_SIID, st[S2_6717], fl[S2_6717], rel[S2_6717], st[S2_6731], fl[S2_6731], rel[S2_6731], false)
-  ratio(R_OIID, st[O2_3729], fl[O2_3729], rel[O2_3729], st[O2_3726], fl[O2_3726], rel[O2_3726], false)
-  for (let r = 0; r < 6; r++) {
-    I[io + I_LIMIT0 + r] = rs[r]
-    if (rs[r] !== RATIO_NONE) {
-      F[fo + F_RATIO0 + 2 * r] = rx[r]
-      if (withErrors && rs[r] === RATIO_EXACT) F[fo + F_RATIO0 + 2 * r + 1] = rerr[r]
-    }
-  }
-
-  // 5. classes (shared/science/README.md §2.3–2.5, §9)
-  const yS = rs[R_OIII]
-  const y = rx[R_OIII]
-  const nii = diagramClass(0, rs[R_NII], rx[R_NII], yS, y, FL, bo, N2_6584, HA, O3_5007, HB)
-  let subtype = CLASS_UNCLASSIFIED
-  if (nii !== CLASS_UNCLASSIFIED) {
-    const x = rx[R_NII]
-    if (x >= KA03.x0) setFlag(FL, bo, FB.asymKa03)
-    if (x >= KE01_NII.x0) setFlag(FL, bo, FB.asymKe01N)
-    if (nii === CLASS_STAR_FORMING && x < KA03_KE01_CROSSING_X && y >= KE01_NII.a / (x - KE01_NII.x0) + KE01_NII.c) {
-      setFlag(FL, bo, FB.crossing)
-    }
-    if (nii === CLASS_AGN) subtype = classProvenByLimits(niiSubtypeOfPoint(x, y), rs[R_NII], yS)
-  }
-  const sii = diagramClass(1, rs[R_SII], rx[R_SII], yS, y, FL, bo, S2_6717, HA, O3_5007, HB)
-  if (sii !== CLASS_UNCLASSIFIED && rx[R_SII] >= KE01_SII.x0) setFlag(FL, bo, FB.asymKe01S)
-  const oi = diagramClass(2, rs[R_OI], rx[R_OI], yS, y, FL, bo, O1_6300, HA, O3_5007, HB)
-  if (oi !== CLASS_UNCLASSIFIED && rx[R_OI] >= KE01_OI.x0) setFlag(FL, bo, FB.asymKe01O)
-  // WHAN
-  const ewHa = input.ewHalpha[i]
-  let whan = CLASS_UNCLASSIFIED
-  if (ewHa === ewHa) {
-    const ewNii = input.ewNii[i]
-    whan = whanClass(rx[R_NII], rs[R_NII], ewHa, ewNii)
-    if (ewHa < 0.5 && !(ewNii === ewNii)) setFlag(FL, bo, FB.whanPassiveNeedsNii)
-    if (whan === CLASS_UNCLASSIFIED) {
-      if (rs[R_NII] !== RATIO_NONE) setFlag(FL, bo, FB.notDecisive[3])
-      else setFlag(FL, bo, st[N2_6584] === LINE_NONPOSITIVE || st[HA] === LINE_NONPOSITIVE ? FB.nonpositive[3] : FB.missing[3])
-    }
-  } else setFlag(FL, bo, FB.whanNeedsEw)
-  const overall = overallClass(nii, sii, oi, subtype)
-  if (nii === CLASS_UNCLASSIFIED) setFlag(FL, bo, FB.overallNeedsNii)
-  else if (sii === CLASS_UNCLASSIFIED && oi === CLASS_UNCLASSIFIED) {
-    setFlag(FL, bo, FB.overallNiiOnly)
-    if (nii === CLASS_AGN && subtype === CLASS_UNCLASSIFIED) setFlag(FL, bo, FB.subtypeNotDecisive)
-  } else if (sii === CLASS_UNCLASSIFIED) setFlag(FL, bo, FB.overallWithoutSii)
-  else if (oi === CLASS_UNCLASSIFIED) setFlag(FL, bo, FB.overallWithoutOi)
-  I[io + I_NII] = nii
-  I[io + I_SII] = sii
-  I[io + I_OI] = oi
-  I[io + I_WHAN] = whan
-  I[io + I_OVERALL] = overall
-  I[io + I_SUB] = subtype
-
-  // distances (shared/science/README.md §2.6): only for measured (not limit) points
-  if (yS === RATIO_EXACT) {
-    const sy = rerr[R_OIII]
-    if (rs[R_NII] === RATIO_EXACT) {
-      const x = rx[R_NII]
-      const sx = rerr[R_NII]
-      const dKa = hyperbolaDistance(KA03, x, y, sx, sy, F, fo + F_NII_KA03, withErrors)
-      const dKe = hyperbolaDistance(KE01_NII, x, y, sx, sy, F, fo + F_NII_KA03 + 2, withErrors)
-      lineDistance(S07_NII, x, y, sx, sy, F, fo + F_NII_KA03 + 4, withErrors)
-      const nearKa = Math.abs(dKa) <= Math.abs(dKe)
-      I[io + I_NEAR] = nearKa ? 1 : 2
-      F[fo + F_NII_NEAR] = nearKa ? dKa : dKe
-    }
-    if (rs[R_SII] === RATIO_EXACT) {
-      hyperbolaDistance(KE01_SII, rx[R_SII], y, rerr[R_SII], sy, F, fo + F_SII_KE01, withErrors)
-      lineDistance(KE06_SII, rx[R_SII], y, rerr[R_SII], sy, F, fo + F_SII_KE01 + 2, withErrors)
-    }
-    if (rs[R_OI] === RATIO_EXACT) {
-      hyperbolaDistance(KE01_OI, rx[R_OI], y, rerr[R_OI], sy, F, fo + F_OI_KE01, withErrors)
-      lineDistance(KE06_OI, rx[R_OI], y, rerr[R_OI], sy, F, fo + F_OI_KE01 + 2, withErrors)
-    }
-  }
-
-  // 6. density from observed doublets (shared/science/README.md §3)
-  const siiRatioForTe = density(0, SANDERS16_SII, S2_6717, S2_6731, R_SIID, s.electronTemperature, F, fo + F_NE_SII, I, io + I_DSII, FL, bo, withErrors)
-  density(1, SANDERS16_OII, O2_3729, O2_3726, R_OIID, s.electronTemperature, F, fo + F_NE_OII, I, io + I_DOII, FL, bo, withErrors)
-
-  // 7. temperatures from dereddened fluxes (shared/science/README.md §4)
-  temperature(0, OIII_TEMPERATURE_MODEL, O3_5007, O3_4959, O3_4363, OIII_5007_TO_4959, siiRatioForTe, k, F, fo + F_TE_OIII, FL, bo, withErrors, dustC, d1, d2, relD1, relD2)
-  temperature(1, NII_TEMPERATURE_MODEL, N2_6584, N2_6548, N2_5755, NII_6584_TO_6548, siiRatioForTe, k, F, fo + F_TE_NII, FL, bo, withErrors, dustC, d1, d2, relD1, relD2)
-
-  // 8. metallicity, star-forming only (shared/science/README.md §5)
-  if (overall === CLASS_STAR_FORMING) {
-    metallicity(k, F, fo + F_Z0, FL, bo, withErrors, dustC, d1, d2, relD1, relD2)
-  } else setFlag(FL, bo, FB.metNotSf)
-
-  // 9. luminosity and SFR (shared/science/README.md §6)
-  const z = input.redshift[i]
-  let dl = NaN
-  if (z > 0) {
-    dl = prep.luminosityDistance(z)
-    F[fo + F_DL] = dl
-    if (st[HA] === LINE_DETECTED) {
-      const lHa = lineLuminosity(dfl[HA] * input.fluxUnit[i], dl)
-      F[fo + F_LHA] = lHa
-      F[fo + F_LHA + 2] = sfrKennicutt98(lHa)
-      F[fo + F_LHA + 4] = sfrKennicuttEvans12(lHa)
-      if (withErrors) {
-        const r = Math.sqrt(linearisedLogVarianceOfLine(rel[HA], roleOf(HA, d1, d2), k[HA], dustC, relD1, relD2))
-        F[fo + F_LHA + 1] = lHa * r
-        F[fo + F_LHA + 3] = sfrKennicutt98(lHa) * r
-        F[fo + F_LHA + 5] = sfrKennicuttEvans12(lHa) * r
-      }
-      if (source === 0) setFlag(FL, bo, FB.sfrNotDered)
-      if (overall !== CLASS_STAR_FORMING) setFlag(FL, bo, FB.sfrNotSf)
-    } else setFlag(FL, bo, FB.sfrNeedsHa)
-  } else setFlag(FL, bo, FB.needsZ)
-
-  // 10. black-hole mass from observed broad Hα (shared/science/README.md §7)
-  const sb = st[HA_BROAD]
-  if (sb === LINE_UPPER_LIMIT) setFlag(FL, bo, FB.bhLimit)
-  else if (sb === LINE_DETECTED) {
-    const fwhm = input.fwhmBroad[i]
-    if (!(fwhm > 0)) setFlag(FL, bo, FB.bhNeedsFwhm)
-    else if (!(dl > 0)) setFlag(FL, bo, FB.bhNeedsZ)
-    else {
-      const lb = lineLuminosity(fl[HA_BROAD] * input.fluxUnit[i], dl)
-      const m = blackHoleMassGreeneHo05(lb, fwhm)
-      F[fo + F_BH] = m
-      F[fo + F_BH + 1] = Math.log10(m)
-      if (withErrors) F[fo + F_BH + 2] = (GREENE_HO05.luminosityExponent * rel[HA_BROAD]) / LN10
-      F[fo + F_BH + 3] = lb
-    }
+      // E(B−V) = 0 needs no exp (rows without a usable decrement)
+      const v = flux[l] * (ebv > 0 ? dereddeningFactor(k[l], ebv) : 1)
+      dered[l] = v
+      r.set(fluxColumns[l], v)
+      if (withErrors && state === LINE_DETECTED) r.set(errorColumns[l], v * Math.sqrt(r.lineLogVariance(l)))
+    } else dered[l] = NaN
   }
 }
 
-// A ratio of two lines (or a sum and a line); writes rx/rs/rerr[r]. `logarithmic` for the diagram ratios.
-function ratio(r: number, sNum: number, fNum: number, relNum: number, sDen: number, fDen: number, relDen: number, logarithmic: boolean): void {
-  const status = ratioLimitStatus(sNum, sDen)
-  rs[r] = status
+// ── 4. observed ratios (public API `ratios`; shared/science/README.md §2.1, §9) ──────────────────
+
+/** A ratio of two lines, or of the sum of two lines over one line, and where it goes. */
+interface RatioSpec {
+  /** ratio index (RATIO_KEYS order) */
+  index: number
+  numerator: number
+  /** second line added to the numerator, or −1 */
+  plus: number
+  denominator: number
+  /** log10 (the diagram ratios) or linear (the doublets) */
+  logarithmic: boolean
+  /** FLOAT columns of the value and its error, INT column of the limit status */
+  value: number
+  error: number
+  limit: number
+}
+
+type RatioLines = Pick<RatioSpec, 'numerator' | 'plus' | 'denominator' | 'logarithmic'>
+// every spec is built by this one literal, so the steps see a single object shape
+const ratioSpec = (key: RatioKey, lines: RatioLines): RatioSpec => {
+  const index = __layout.RATIO_INDEX[key]
+  return {
+    index, numerator: lines.numerator, plus: lines.plus, denominator: lines.denominator, logarithmic: lines.logarithmic,
+    value: FLOAT.ratio[index], error: FLOAT.ratioError[index], limit: INT.limit[index],
+  }
+}
+const RATIO_NII = ratioSpec('niiHa', { numerator: N2_6584, plus: -1, denominator: HA, logarithmic: true })
+const RATIO_OIII = ratioSpec('oiiiHb', { numerator: O3_5007, plus: -1, denominator: HB, logarithmic: true })
+const RATIO_SII = ratioSpec('siiHa', { numerator: S2_6717, plus: S2_6731, denominator: HA, logarithmic: true })
+const RATIO_OI = ratioSpec('oiHa', { numerator: O1_6300, plus: -1, denominator: HA, logarithmic: true })
+const RATIO_SII_DOUBLET = ratioSpec('siiDoublet', { numerator: S2_6717, plus: -1, denominator: S2_6731, logarithmic: false })
+const RATIO_OII_DOUBLET = ratioSpec('oiiDoublet', { numerator: O2_3729, plus: -1, denominator: O2_3726, logarithmic: false })
+
+function formRatio(r: Row, spec: RatioSpec): void {
+  const st = r.state
+  const fl = r.flux
+  const rel = r.rel
+  const a = spec.numerator
+  const b = spec.plus
+  const d = spec.denominator
+  const q = spec.index
+  let numeratorState: number
+  let numerator: number
+  let numeratorRel = 0
+  if (b < 0) {
+    numeratorState = st[a]
+    numerator = fl[a]
+    numeratorRel = rel[a]
+  } else {
+    numeratorState = stateOfSum(st[a], st[b])
+    numerator = fl[a] + fl[b]
+    if (numeratorState === LINE_DETECTED) numeratorRel = relativeErrorOfSum(fl[a], rel[a], fl[b], rel[b])
+  }
+  const status = ratioLimitStatus(numeratorState, st[d])
+  r.ratioState[q] = status
+  r.setInt(spec.limit, status)
   if (status === RATIO_NONE) {
-    rx[r] = NaN
-    rerr[r] = NaN
+    r.ratio[q] = NaN
+    r.ratioError[q] = NaN
     return
   }
-  const q = fNum / fDen
-  rx[r] = logarithmic ? Math.log10(q) : q
-  const relQ = Math.sqrt(relNum * relNum + relDen * relDen)
-  rerr[r] = status === RATIO_EXACT ? (logarithmic ? relQ / LN10 : q * relQ) : NaN
+  const value = numerator / fl[d]
+  const x = spec.logarithmic ? Math.log10(value) : value
+  r.ratio[q] = x
+  r.set(spec.value, x)
+  if (status === RATIO_EXACT) {
+    const relative = relativeErrorOfRatio(numeratorRel, rel[d])
+    const e = spec.logarithmic ? log10Error(relative) : value * relative
+    r.ratioError[q] = e
+    if (r.withErrors) r.set(spec.error, e)
+  } else r.ratioError[q] = NaN
 }
 
-// Class of one diagram from (x, y) with limit states; sets the "why unclassified" flag.
-function diagramClass(
-  d: number, xS: number, x: number, yS: number, y: number, FL: Uint32Array, bo: number, l1: number, l2: number, l3: number, l4: number,
-): number {
-  if (xS === RATIO_NONE || yS === RATIO_NONE) {
-    const nonpositive = st[l1] === LINE_NONPOSITIVE || st[l2] === LINE_NONPOSITIVE || st[l3] === LINE_NONPOSITIVE ||
-      st[l4] === LINE_NONPOSITIVE || (d === 1 && st[S2_6731] === LINE_NONPOSITIVE)
-    setFlag(FL, bo, nonpositive ? FB.nonpositive[d] : FB.missing[d])
-    return CLASS_UNCLASSIFIED
+// ── 5. classes (shared/science/README.md §2.3–2.5, §9) ─────────────────────────────────────────
+
+/** One line-ratio diagram with y = log([O III]/Hβ). */
+interface DiagramSpec {
+  /** ratio index of x */
+  x: number
+  /** class of the point at face value (bpt.ts) */
+  classify: (x: number, y: number) => number
+  /** INT column of the class */
+  column: number
+  /** lines whose non-positive draw explains a missing class */
+  lines: readonly number[]
+  /** hyperbolas whose asymptote a classified point may lie beyond, and the flag bit for each */
+  asymptotes: readonly HyperbolaCurve[]
+  asymptoteFlags: readonly number[]
+  missingFlag: number
+  notDecisiveFlag: number
+  nonpositiveFlag: number
+}
+
+interface DiagramParts {
+  x: number
+  classify: (x: number, y: number) => number
+  column: number
+  lines: readonly number[]
+  /** the curves by the name their `beyond-asymptote:<diagram>-<curve>` flag uses */
+  asymptotes: Readonly<Record<string, HyperbolaCurve>>
+}
+// the flag bits follow from the diagram's key (shared/flags.ts)
+const diagramSpec = (key: 'nii' | 'sii' | 'oi', parts: DiagramParts): DiagramSpec => ({
+  x: parts.x, classify: parts.classify, column: parts.column, lines: parts.lines,
+  asymptotes: Object.values(parts.asymptotes),
+  asymptoteFlags: Object.keys(parts.asymptotes).map((curve) => B(`beyond-asymptote:${key}-${curve}`)),
+  missingFlag: B(`missing-line:${key}`), notDecisiveFlag: B(`limit-not-decisive:${key}`), nonpositiveFlag: B(`nonpositive-flux:${key}`),
+})
+const NII_DIAGRAM = diagramSpec('nii', {
+  x: R_NII, classify: classifyNiiPoint, column: INT.classNii, lines: [N2_6584, HA, O3_5007, HB], asymptotes: { ka03: KA03, ke01: KE01_NII },
+})
+const SII_DIAGRAM = diagramSpec('sii', {
+  x: R_SII, classify: classifySiiPoint, column: INT.classSii, lines: [S2_6717, HA, O3_5007, HB, S2_6731], asymptotes: { ke01: KE01_SII },
+})
+const OI_DIAGRAM = diagramSpec('oi', {
+  x: R_OI, classify: classifyOiPoint, column: INT.classOi, lines: [O1_6300, HA, O3_5007, HB], asymptotes: { ke01: KE01_OI },
+})
+
+// Class of one diagram from (x, y) with limit states; flags why a point is unclassified.
+function diagramClass(r: Row, spec: DiagramSpec): number {
+  const xState = r.ratioState[spec.x]
+  const yState = r.ratioState[R_OIII]
+  let cls = CLASS_UNCLASSIFIED
+  if (xState === RATIO_NONE || yState === RATIO_NONE) {
+    let nonpositive = false
+    for (let j = 0; j < spec.lines.length; j++) if (r.state[spec.lines[j]] === LINE_NONPOSITIVE) nonpositive = true
+    r.flag(nonpositive ? spec.nonpositiveFlag : spec.missingFlag)
+  } else {
+    const x = r.ratio[spec.x]
+    cls = classProvenByLimits(spec.classify(x, r.ratio[R_OIII]), xState, yState)
+    if (cls === CLASS_UNCLASSIFIED) r.flag(spec.notDecisiveFlag)
+    else for (let j = 0; j < spec.asymptotes.length; j++) if (x >= spec.asymptotes[j].x0) r.flag(spec.asymptoteFlags[j])
   }
-  const face = d === 0 ? classifyNiiPoint(x, y) : d === 1 ? classifySiiPoint(x, y) : classifyOiPoint(x, y)
-  const cls = classProvenByLimits(face, xS, yS)
-  if (cls === CLASS_UNCLASSIFIED) setFlag(FL, bo, FB.notDecisive[d])
+  r.setInt(spec.column, cls)
   return cls
 }
 
-function hyperbolaDistance(curve: HyperbolaCurve, x: number, y: number, sx: number, sy: number, F: Float64Array, at: number, withErrors: boolean): number {
-  const d = signedDistanceToHyperbola(curve, x, y, dist)
-  F[at] = d
-  if (withErrors) F[at + 1] = hypot2(dist[1] * sx, dist[2] * sy)
+function whanDiagram(r: Row): number {
+  const ewHalpha = r.ewHalpha
+  let whan = CLASS_UNCLASSIFIED
+  if (!(ewHalpha === ewHalpha)) r.flag(FB.whanNeedsEw)
+  else {
+    const xState = r.ratioState[R_NII]
+    whan = whanClass(r.ratio[R_NII], xState, ewHalpha, r.ewNii)
+    if (ewHalpha < WHAN_PASSIVE_MAX_EW && !(r.ewNii === r.ewNii)) r.flag(FB.whanPassiveNeedsNii)
+    if (whan === CLASS_UNCLASSIFIED) {
+      if (xState !== RATIO_NONE) r.flag(FB.whanNotDecisive)
+      else r.flag(r.state[N2_6584] === LINE_NONPOSITIVE || r.state[HA] === LINE_NONPOSITIVE ? FB.whanNonpositive : FB.whanMissing)
+    }
+  }
+  r.setInt(INT.classWhan, whan)
+  return whan
+}
+
+function classify(r: Row): void {
+  const nii = diagramClass(r, NII_DIAGRAM)
+  let subtype = CLASS_UNCLASSIFIED
+  if (nii !== CLASS_UNCLASSIFIED) {
+    const x = r.ratio[R_NII]
+    const y = r.ratio[R_OIII]
+    // left of the Ka03/Ke01 crossing, a star-forming point on or above Ke01 lies between them (§2.2)
+    if (nii === CLASS_STAR_FORMING && x < KA03_KE01_CROSSING_X && !isBelowHyperbola(KE01_NII, x, y)) r.flag(FB.crossing)
+    if (nii === CLASS_AGN) subtype = classProvenByLimits(niiSubtypeOfPoint(x, y), r.ratioState[R_NII], r.ratioState[R_OIII])
+  }
+  const sii = diagramClass(r, SII_DIAGRAM)
+  const oi = diagramClass(r, OI_DIAGRAM)
+  whanDiagram(r)
+  const overall = overallClass(nii, sii, oi, subtype)
+  if (nii === CLASS_UNCLASSIFIED) r.flag(FB.overallNeedsNii)
+  else if (sii === CLASS_UNCLASSIFIED && oi === CLASS_UNCLASSIFIED) {
+    r.flag(FB.overallNiiOnly)
+    if (nii === CLASS_AGN && subtype === CLASS_UNCLASSIFIED) r.flag(FB.subtypeNotDecisive)
+  } else if (sii === CLASS_UNCLASSIFIED) r.flag(FB.overallWithoutSii)
+  else if (oi === CLASS_UNCLASSIFIED) r.flag(FB.overallWithoutOi)
+  r.setInt(INT.classOverall, overall)
+  r.setInt(INT.niiSubtype, subtype)
+  r.overall = overall
+}
+
+// ── distances to the demarcation lines (shared/science/README.md §2.6): measured points only ────
+
+interface CurveDistance { curve: HyperbolaCurve; value: number; error: number }
+interface LineDistance { line: StraightLine; value: number; error: number }
+
+const NII_KA03: CurveDistance = { curve: KA03, value: FLOAT.niiKa03, error: FLOAT.niiKa03Error }
+const NII_KE01: CurveDistance = { curve: KE01_NII, value: FLOAT.niiKe01, error: FLOAT.niiKe01Error }
+const NII_S07: LineDistance = { line: S07_NII, value: FLOAT.niiS07, error: FLOAT.niiS07Error }
+const SII_KE01: CurveDistance = { curve: KE01_SII, value: FLOAT.siiKe01, error: FLOAT.siiKe01Error }
+const SII_KE06: LineDistance = { line: KE06_SII, value: FLOAT.siiKe06, error: FLOAT.siiKe06Error }
+const OI_KE01: CurveDistance = { curve: KE01_OI, value: FLOAT.oiKe01, error: FLOAT.oiKe01Error }
+const OI_KE06: LineDistance = { line: KE06_OI, value: FLOAT.oiKe06, error: FLOAT.oiKe06Error }
+
+// Distance of (ratio q, [O III]/Hβ) to a hyperbola, with its error along the normal.
+function curveDistance(r: Row, spec: CurveDistance, q: number): number {
+  const n = r.normal
+  const d = signedDistanceToHyperbola(spec.curve, r.ratio[q], r.ratio[R_OIII], n)
+  r.set(spec.value, d)
+  if (r.withErrors) r.set(spec.error, distanceErrorAlongNormal(n[1], n[2], r.ratioError[q], r.ratioError[R_OIII]))
   return d
 }
 
-function lineDistance(line: StraightLine, x: number, y: number, sx: number, sy: number, F: Float64Array, at: number, withErrors: boolean): void {
-  F[at] = signedDistanceToLine(line, x, y)
-  if (withErrors) F[at + 1] = hypot2(line.m * sx, sy) / Math.sqrt(1 + line.m * line.m)
+function lineDistance(r: Row, spec: LineDistance, q: number): void {
+  r.set(spec.value, signedDistanceToLine(spec.line, r.ratio[q], r.ratio[R_OIII]))
+  if (r.withErrors) r.set(spec.error, signedDistanceToLineError(spec.line, r.ratioError[q], r.ratioError[R_OIII]))
 }
 
+function distances(r: Row): void {
+  if (r.ratioState[R_OIII] !== RATIO_EXACT) return
+  if (r.ratioState[R_NII] === RATIO_EXACT) {
+    const dKa = curveDistance(r, NII_KA03, R_NII)
+    const dKe = curveDistance(r, NII_KE01, R_NII)
+    lineDistance(r, NII_S07, R_NII)
+    const nearKa = Math.abs(dKa) <= Math.abs(dKe)
+    r.setInt(INT.niiNearest, nearKa ? 1 : 2)
+    r.set(FLOAT.niiNearestDistance, nearKa ? dKa : dKe)
+  }
+  if (r.ratioState[R_SII] === RATIO_EXACT) {
+    curveDistance(r, SII_KE01, R_SII)
+    lineDistance(r, SII_KE06, R_SII)
+  }
+  if (r.ratioState[R_OI] === RATIO_EXACT) {
+    curveDistance(r, OI_KE01, R_OI)
+    lineDistance(r, OI_KE06, R_OI)
+  }
+}
+
+// ── 6. density from observed doublets (shared/science/README.md §3) ─────────────────────────────
+
+interface DensitySpec {
+  fit: DoubletFit
+  numerator: number
+  denominator: number
+  /** ratio index of the doublet */
+  ratio: number
+  /** FLOAT columns of n_e and its error, INT column of the status */
+  ne: number
+  neError: number
+  status: number
+  needsFlag: number
+  lowFlag: number
+  highFlag: number
+}
+
+type DensityParts = Omit<DensitySpec, 'needsFlag' | 'lowFlag' | 'highFlag'>
+// the flag bits follow from the ion (shared/flags.ts)
+const densitySpec = (ion: 'sii' | 'oii', p: DensityParts): DensitySpec => ({
+  fit: p.fit, numerator: p.numerator, denominator: p.denominator, ratio: p.ratio, ne: p.ne, neError: p.neError, status: p.status,
+  needsFlag: B(`density-needs-lines:${ion}`), lowFlag: B(`low-density-limit:${ion}`), highFlag: B(`high-density-limit:${ion}`),
+})
+const DENSITY_SII = densitySpec('sii', {
+  fit: SANDERS16_SII, numerator: S2_6717, denominator: S2_6731, ratio: R_SIID, ne: FLOAT.neSii, neError: FLOAT.neSiiError, status: INT.densitySii,
+})
+const DENSITY_OII = densitySpec('oii', {
+  fit: SANDERS16_OII, numerator: O2_3729, denominator: O2_3726, ratio: R_OIID, ne: FLOAT.neOii, neError: FLOAT.neOiiError, status: INT.densityOii,
+})
+
 // Returns the observed ratio usable for the T_e iteration (NaN unless within the fit's range).
-function density(
-  which: number, fit: DoubletFit, lineNum: number, lineDen: number, r: number, temperatureK: number,
-  F: Float64Array, at: number, I: Int8Array, iat: number, FL: Uint32Array, bo: number, withErrors: boolean,
-): number {
-  if (st[lineNum] !== LINE_DETECTED || st[lineDen] !== LINE_DETECTED) {
-    I[iat] = DENSITY_NOT_COMPUTED
-    if (st[lineNum] !== LINE_ABSENT || st[lineDen] !== LINE_ABSENT) setFlag(FL, bo, FB.densNeeds[which])
+function density(r: Row, spec: DensitySpec): number {
+  const st = r.state
+  if (st[spec.numerator] !== LINE_DETECTED || st[spec.denominator] !== LINE_DETECTED) {
+    r.setInt(spec.status, DENSITY_NOT_COMPUTED)
+    if (st[spec.numerator] !== LINE_ABSENT || st[spec.denominator] !== LINE_ABSENT) r.flag(spec.needsFlag)
     return NaN
   }
-  const R = rx[r]
-  const status = densityRangeStatus(fit, R)
-  I[iat] = status
+  const R = r.ratio[spec.ratio]
+  const status = densityRangeStatus(spec.fit, R)
+  r.setInt(spec.status, status)
   if (status !== DENSITY_OK) {
-    setFlag(FL, bo, status === 1 ? FB.densLow[which] : FB.densHigh[which])
+    r.flag(status === DENSITY_LOW_LIMIT ? spec.lowFlag : spec.highFlag)
     return NaN
   }
-  F[at] = electronDensityFromDoubletRatio(fit, R, temperatureK)
-  if (withErrors) F[at + 1] = densityRatioDerivative(fit, R, temperatureK) * rerr[r]
+  const t = r.prep.settings.electronTemperature
+  r.set(spec.ne, electronDensityFromDoubletRatio(spec.fit, R, t))
+  if (r.withErrors) r.set(spec.neError, densityRatioDerivative(spec.fit, R, t) * r.ratioError[spec.ratio])
   return R
 }
 
-function temperature(
-  which: number, model: TemperatureRatioModel, strong: number, weak: number, auroral: number, fixedRatio: number,
-  siiRatio: number, k: Float64Array, F: Float64Array, at: number, FL: Uint32Array, bo: number, withErrors: boolean,
-  dustC: number, d1: number, d2: number, relD1: number, relD2: number,
-): void {
+// ── 7. temperatures from dereddened fluxes (shared/science/README.md §4) ────────────────────────
+
+interface TemperatureSpec {
+  model: TemperatureRatioModel
+  strong: number
+  weak: number
+  auroral: number
+  /** fixed strong/weak ratio used when the weak line is missing */
+  strongToWeak: number
+  /** FLOAT columns of T_e, its error and the n_e used */
+  te: number
+  teError: number
+  neUsed: number
+  needsFlag: number
+  upperFlag: number
+  assumedFlag: number
+  fixedFlag: number
+  outFlag: number
+}
+
+type TemperatureParts = Omit<TemperatureSpec, 'needsFlag' | 'upperFlag' | 'assumedFlag' | 'fixedFlag' | 'outFlag'>
+// the flag bits follow from the ion (shared/flags.ts)
+const temperatureSpec = (ion: 'oiii' | 'nii', p: TemperatureParts): TemperatureSpec => ({
+  model: p.model, strong: p.strong, weak: p.weak, auroral: p.auroral, strongToWeak: p.strongToWeak, te: p.te, teError: p.teError,
+  neUsed: p.neUsed,
+  needsFlag: B(`te-needs-lines:${ion}`), upperFlag: B(`te-upper-limit:${ion}`), assumedFlag: B(`te-density-assumed:${ion}`),
+  fixedFlag: B(`te-from-fixed-doublet-ratio:${ion}`), outFlag: B(`te-out-of-range:${ion}`),
+})
+const TEMPERATURE_OIII = temperatureSpec('oiii', {
+  model: OIII_TEMPERATURE_MODEL, strong: O3_5007, weak: O3_4959, auroral: O3_4363, strongToWeak: OIII_5007_TO_4959,
+  te: FLOAT.teOiii, teError: FLOAT.teOiiiError, neUsed: FLOAT.teOiiiNeUsed,
+})
+const TEMPERATURE_NII = temperatureSpec('nii', {
+  model: NII_TEMPERATURE_MODEL, strong: N2_6584, weak: N2_6548, auroral: N2_5755, strongToWeak: NII_6584_TO_6548,
+  te: FLOAT.teNii, teError: FLOAT.teNiiError, neUsed: FLOAT.teNiiNeUsed,
+})
+
+function temperature(r: Row, spec: TemperatureSpec, siiRatio: number): void {
+  const st = r.state
+  const dfl = r.dered
+  const strong = spec.strong
+  const weak = spec.weak
+  const auroral = spec.auroral
   const sa = st[auroral]
   const ss = st[strong]
   if (sa === LINE_ABSENT && ss === LINE_ABSENT && st[weak] === LINE_ABSENT) return
   if (ss !== LINE_DETECTED || (sa !== LINE_DETECTED && sa !== LINE_UPPER_LIMIT)) {
-    setFlag(FL, bo, FB.teNeeds[which])
+    r.flag(spec.needsFlag)
     return
   }
   if (sa === LINE_UPPER_LIMIT) {
-    setFlag(FL, bo, FB.teUpper[which]) // the ratio is a lower limit, T an upper limit
+    r.flag(spec.upperFlag) // the ratio is a lower limit, T an upper limit
     return
   }
   let sum: number
   let sumRel: number
   let sumK: number
   if (st[weak] === LINE_DETECTED) {
-    const a = dfl[strong]
-    const b = dfl[weak]
-    sum = a + b
-    sumRel = hypot2(a * rel[strong], b * rel[weak]) / sum
-    sumK = (a * k[strong] + b * k[weak]) / sum
+    sum = dfl[strong] + dfl[weak]
+    sumRel = relativeErrorOfSum(dfl[strong], r.rel[strong], dfl[weak], r.rel[weak])
+    sumK = fluxWeightedK(dfl[strong], r.k[strong], dfl[weak], r.k[weak])
   } else {
-    setFlag(FL, bo, FB.teFixed[which])
-    sum = dfl[strong] * (1 + 1 / fixedRatio)
-    sumRel = rel[strong]
-    sumK = k[strong]
+    r.flag(spec.fixedFlag)
+    sum = doubletSumFromStrongLine(dfl[strong], spec.strongToWeak)
+    sumRel = r.rel[strong]
+    sumK = r.k[strong]
   }
-  const R = sum / dfl[auroral]
-  const sol = temperatureWithDensityIteration(model, R, siiRatio, teSolution)
-  if (sol.densityAssumed) setFlag(FL, bo, FB.teAssumed[which])
+  const sol = temperatureWithDensityIteration(spec.model, sum / dfl[auroral], siiRatio, r.te)
+  if (sol.densityAssumed) r.flag(spec.assumedFlag)
   if (sol.temperatureK === null) {
-    setFlag(FL, bo, FB.teOut[which])
+    r.flag(spec.outFlag)
     return
   }
-  F[at] = sol.temperatureK
-  F[at + 2] = sol.neCm3
-  if (withErrors) {
-    coef[0] = 1; trel[0] = sumRel; trole[0] = ROLE_OTHER; tk[0] = sumK
-    coef[1] = -1; trel[1] = rel[auroral]; trole[1] = ROLE_OTHER; tk[1] = k[auroral]
-    const sigmaLnR = Math.sqrt(linearisedLogVariance(2, coef, trel, trole, tk, dustC, relD1, relD2))
-    F[at + 1] = sigmaLnR / Math.abs(temperatureRatioLogSlope(model, sol.temperatureK, sol.neCm3))
+  r.set(spec.te, sol.temperatureK)
+  r.set(spec.neUsed, sol.neCm3)
+  if (r.withErrors) {
+    r.sumTerm(0, 1, sumRel, sumK)
+    r.term(1, auroral, -1)
+    r.set(spec.teError, temperatureError(spec.model, sol.temperatureK, sol.neCm3, Math.sqrt(r.combinationLogVariance(2))))
   }
 }
 
-function term(j: number, line: number, a: number, d1: number, d2: number, k: Float64Array): void {
-  coef[j] = a
-  trel[j] = rel[line]
-  trole[j] = roleOf(line, d1, d2)
-  tk[j] = k[line]
-}
+// ── 8. metallicity, star-forming only (shared/science/README.md §5) ─────────────────────────────
 
-function metallicity(
-  k: Float64Array, F: Float64Array, at: number, FL: Uint32Array, bo: number, withErrors: boolean,
-  dustC: number, d1: number, d2: number, relD1: number, relD2: number,
-): void {
+function metallicity(r: Row): void {
+  if (r.overall !== CLASS_STAR_FORMING) {
+    r.flag(FB.metNotSf)
+    return
+  }
+  const st = r.state
+  const dfl = r.dered
   const haveN2 = st[N2_6584] === LINE_DETECTED && st[HA] === LINE_DETECTED
   const haveO3N2 = haveN2 && st[O3_5007] === LINE_DETECTED && st[HB] === LINE_DETECTED
   const haveD16 = haveN2 && st[S2_6717] === LINE_DETECTED && st[S2_6731] === LINE_DETECTED
   let n2 = NaN, n2Sigma = NaN, o3n2 = NaN, o3n2Sigma = NaN, d16 = NaN, d16Sigma = NaN
   if (haveN2) {
-    n2 = Math.log10(dfl[N2_6584] / dfl[HA])
-    if (withErrors) {
-      term(0, N2_6584, 1, d1, d2, k)
-      term(1, HA, -1, d1, d2, k)
-      n2Sigma = Math.sqrt(linearisedLogVariance(2, coef, trel, trole, tk, dustC, relD1, relD2)) / LN10
+    n2 = n2Index(dfl[N2_6584], dfl[HA])
+    if (r.withErrors) {
+      r.term(0, N2_6584, 1)
+      r.term(1, HA, -1)
+      n2Sigma = log10Error(Math.sqrt(r.combinationLogVariance(2)))
     }
   }
   if (haveO3N2) {
-    o3n2 = Math.log10((dfl[O3_5007] / dfl[HB]) / (dfl[N2_6584] / dfl[HA]))
-    if (withErrors) {
-      term(0, O3_5007, 1, d1, d2, k)
-      term(1, HB, -1, d1, d2, k)
-      term(2, N2_6584, -1, d1, d2, k)
-      term(3, HA, 1, d1, d2, k)
-      o3n2Sigma = Math.sqrt(linearisedLogVariance(4, coef, trel, trole, tk, dustC, relD1, relD2)) / LN10
+    o3n2 = o3n2Index(dfl[O3_5007], dfl[HB], dfl[N2_6584], dfl[HA])
+    if (r.withErrors) {
+      r.term(0, O3_5007, 1)
+      r.term(1, HB, -1)
+      r.term(2, N2_6584, -1)
+      r.term(3, HA, 1)
+      o3n2Sigma = log10Error(Math.sqrt(r.combinationLogVariance(4)))
     }
   }
   if (haveD16) {
-    const s2 = dfl[S2_6717] + dfl[S2_6731]
-    d16 = Math.log10(dfl[N2_6584] / s2) + D16_NII_HA_WEIGHT * Math.log10(dfl[N2_6584] / dfl[HA])
-    if (withErrors) {
-      term(0, N2_6584, 1 + D16_NII_HA_WEIGHT, d1, d2, k)
-      coef[1] = -1
-      trel[1] = hypot2(dfl[S2_6717] * rel[S2_6717], dfl[S2_6731] * rel[S2_6731]) / s2
-      trole[1] = ROLE_OTHER
-      tk[1] = (dfl[S2_6717] * k[S2_6717] + dfl[S2_6731] * k[S2_6731]) / s2
-      term(2, HA, -D16_NII_HA_WEIGHT, d1, d2, k)
-      d16Sigma = Math.sqrt(linearisedLogVariance(3, coef, trel, trole, tk, dustC, relD1, relD2)) / LN10
+    const s1 = dfl[S2_6717]
+    const s2 = dfl[S2_6731]
+    d16 = n2s2haIndex(dfl[N2_6584], s1 + s2, dfl[HA])
+    if (r.withErrors) {
+      r.term(0, N2_6584, 1 + D16_NII_HA_WEIGHT)
+      r.sumTerm(1, -1, relativeErrorOfSum(s1, r.rel[S2_6717], s2, r.rel[S2_6731]), fluxWeightedK(s1, r.k[S2_6717], s2, r.k[S2_6731]))
+      r.term(2, HA, -D16_NII_HA_WEIGHT)
+      d16Sigma = log10Error(Math.sqrt(r.combinationLogVariance(3)))
     }
   }
   for (let m = 0; m < METALLICITY_CALIBRATIONS.length; m++) {
     const cal = METALLICITY_CALIBRATIONS[m]
     const idx = cal.index === 'n2' ? n2 : cal.index === 'o3n2' ? o3n2 : d16
     if (!(idx === idx)) {
-      setFlag(FL, bo, FB.metNeeds[m])
+      r.flag(FB.metNeeds[m])
       continue
     }
     if (!cal.inRange(idx)) {
-      setFlag(FL, bo, FB.metOut[m])
+      r.flag(FB.metOut[m])
       continue
     }
-    F[at + 2 * m] = cal.value(idx)
-    if (withErrors) {
+    r.set(FLOAT.z[m], cal.value(idx))
+    if (r.withErrors) {
       const sigma = cal.index === 'n2' ? n2Sigma : cal.index === 'o3n2' ? o3n2Sigma : d16Sigma
-      F[at + 2 * m + 1] = Math.abs(cal.slope(idx)) * sigma
+      r.set(FLOAT.zError[m], Math.abs(cal.slope(idx)) * sigma)
     }
   }
 }
 
-/** Float columns that are values (get Monte Carlo percentiles), as a 0/1 mask by column. */
-export const FLOAT_COLUMN_IS_VALUE: Uint8Array = Uint8Array.from(FLOAT_COLUMNS, (n) => (/Error(:|$)/.test(n) ? 0 : 1))
+// ── 9. luminosity and SFR (shared/science/README.md §6) ─────────────────────────────────────────
 
+function luminosity(r: Row): void {
+  const z = r.redshift
+  r.luminosityDistance = NaN
+  if (!(z > 0)) {
+    r.flag(FB.needsZ)
+    return
+  }
+  const dl = r.prep.luminosityDistance(z)
+  r.luminosityDistance = dl
+  r.set(FLOAT.luminosityDistance, dl)
+  if (r.state[HA] !== LINE_DETECTED) {
+    r.flag(FB.sfrNeedsHa)
+    return
+  }
+  const lHa = lineLuminosity(r.dered[HA] * r.fluxUnit, dl)
+  r.set(FLOAT.lHalpha, lHa)
+  r.set(FLOAT.sfrK98, sfrKennicutt98(lHa))
+  r.set(FLOAT.sfrKe12, sfrKennicuttEvans12(lHa))
+  if (r.withErrors) {
+    const relative = Math.sqrt(r.lineLogVariance(HA))
+    r.set(FLOAT.lHalphaError, lHa * relative)
+    r.set(FLOAT.sfrK98Error, sfrKennicutt98(lHa) * relative)
+    r.set(FLOAT.sfrKe12Error, sfrKennicuttEvans12(lHa) * relative)
+  }
+  if (r.source === 0) r.flag(FB.sfrNotDered)
+  if (r.overall !== CLASS_STAR_FORMING) r.flag(FB.sfrNotSf)
+}
+
+// ── 10. black-hole mass from observed broad Hα (shared/science/README.md §7) ─────────────────────
+
+function blackHole(r: Row): void {
+  const state = r.state[HA_BROAD]
+  if (state === LINE_UPPER_LIMIT) r.flag(FB.bhLimit)
+  else if (state === LINE_DETECTED) {
+    const fwhm = r.fwhmBroad
+    if (!(fwhm > 0)) r.flag(FB.bhNeedsFwhm)
+    else if (!(r.luminosityDistance > 0)) r.flag(FB.bhNeedsZ)
+    else {
+      const lBroad = lineLuminosity(r.flux[HA_BROAD] * r.fluxUnit, r.luminosityDistance)
+      const m = blackHoleMassGreeneHo05(lBroad, fwhm)
+      r.set(FLOAT.bhMass, m)
+      r.set(FLOAT.bhLog10Mass, Math.log10(m))
+      if (r.withErrors) r.set(FLOAT.bhLog10MassError, blackHoleLog10MassError(r.rel[HA_BROAD]))
+      r.set(FLOAT.bhLBroad, lBroad)
+    }
+  }
+}

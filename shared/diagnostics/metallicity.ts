@@ -49,6 +49,46 @@ export function n2s2haD16(y: number): number {
   return 8.77 + y + 0.45 * s * s * s * s * s
 }
 
+/** Weight of log([N II]/Hα) in the D16 index y (Dopita et al. 2016, Ap&SS 361, 61, eq. 1 — eq. no. from memory, shared/science/README.md §12). */
+export const D16_NII_HA_WEIGHT = 0.264
+
+/**
+ * N2 = log([N II]6584/Hα) (Pettini & Pagel 2004, MNRAS 348, L59; shared/science/README.md §5).
+ * @param nii6584  F([N II] 6584), dereddened when E(B−V) exists
+ * @param halpha   F(Hα), same unit
+ * @returns N2 in dex
+ * @example n2Index(10, 100) // -1
+ */
+export function n2Index(nii6584: number, halpha: number): number {
+  return Math.log10(nii6584 / halpha)
+}
+
+/**
+ * O3N2 = log(([O III]5007/Hβ)/([N II]6584/Hα)) (Pettini & Pagel 2004; shared/science/README.md §5).
+ * @param oiii5007  F([O III] 5007)
+ * @param hbeta     F(Hβ)
+ * @param nii6584   F([N II] 6584)
+ * @param halpha    F(Hα), all in one unit
+ * @returns O3N2 in dex
+ * @example o3n2Index(100, 100, 10, 100) // 1
+ */
+export function o3n2Index(oiii5007: number, hbeta: number, nii6584: number, halpha: number): number {
+  return Math.log10((oiii5007 / hbeta) / (nii6584 / halpha))
+}
+
+/**
+ * D16 index y = log([N II]6584/[S II]6717+6731) + 0.264 log([N II]6584/Hα) (Dopita et al. 2016,
+ * Ap&SS 361, 61, eq. 1 — eq. no. from memory, shared/science/README.md §5, §12).
+ * @param nii6584  F([N II] 6584)
+ * @param siiSum   F([S II] 6717) + F([S II] 6731)
+ * @param halpha   F(Hα), all in one unit
+ * @returns y in dex
+ * @example n2s2haIndex(30, 30, 100) // ≈ -0.138040
+ */
+export function n2s2haIndex(nii6584: number, siiSum: number, halpha: number): number {
+  return Math.log10(nii6584 / siiSum) + D16_NII_HA_WEIGHT * Math.log10(nii6584 / halpha)
+}
+
 /**
  * The N2 index log([N II]6584/Hα) → 12 + log(O/H) calibrations, all with their valid index ranges.
  * Values in dex (12 + log(O/H)); the indices are decimal logs of (dereddened) flux ratios.

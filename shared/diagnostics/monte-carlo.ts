@@ -1,22 +1,22 @@
 import { hashString, createRng, splitmix32 } from '../stats/rng.ts'
 import { percentilesBySelection } from '../stats/percentiles.ts'
 import { LINE_COUNT } from '../vocabulary/lines.ts'
-import { LINE_DETECTED, LINE_UPPER_LIMIT } from '../stats/limits.ts'
-import {
-  createKernelInput, createKernelOutput, FLOAT_COLUMN_COUNT, FLOAT_COLUMN_IS_VALUE, IC, INT_COLUMN_COUNT, runKernel,
-  type KernelInput, type KernelOutput, type PreparedSettings,
-} from './kernel.ts'
+import { LINE_DETECTED, LINE_UPPER_LIMIT, upperLimitFromError } from '../stats/limits.ts'
+import { createKernelInput, createKernelOutput, runKernel, type KernelInput, type KernelOutput, type PreparedSettings } from './kernel.ts'
+import { FLOAT_COLUMN_COUNT, FLOAT_COLUMN_IS_VALUE, INT, INT_COLUMN_COUNT } from './kernel-layout.ts'
 
 /** Monte Carlo summary of one galaxy: percentiles of every float column and class counts. */
 export interface MonteCarloSummary {
   draws: number
   /** p16, p50, p84 of float column c at 3c, 3c+1, 3c+2 (NaN when no draw was finite) */
   percentiles: Float64Array
-  /** fraction of draws in each class code, per class column: key `class.nii` … → Float64Array(11) */
-  classFractions: Record<string, Float64Array>
+  /** fraction of draws in each class code (index = CLASS_* code), per diagram */
+  classFractions: Record<ClassColumn, Float64Array>
 }
 
-const CLASS_COLUMNS = ['class.nii', 'class.sii', 'class.oi', 'class.whan', 'class.overall'] as const
+/** The class columns of the kernel whose Monte Carlo fractions are reported. */
+const CLASS_COLUMNS = { nii: INT.classNii, sii: INT.classSii, oi: INT.classOi, whan: INT.classWhan, overall: INT.classOverall } as const
+type ClassColumn = keyof typeof CLASS_COLUMNS
 
 /**
  * Seed of one galaxy's draws: the settings seed mixed with a hash of the galaxy id, so a galaxy gets
@@ -64,7 +64,7 @@ export function monteCarloGalaxy(
   const minSnr = prep.settings.minSnr
   const io = row * INT_COLUMN_COUNT
   for (let l = 0; l < LINE_COUNT; l++) {
-    const state = nominal.int[io + IC['state:halpha'] + l]
+    const state = nominal.int[io + INT.state[l]]
     const kind = input.kind[l]
     const value = input.value[l]
     const error = input.error[l]
@@ -75,7 +75,7 @@ export function monteCarloGalaxy(
       error.fill(e)
       for (let j = 0; j < draws; j++) value[j] = f + e * rng.nextNormal()
     } else if (state === LINE_UPPER_LIMIT) {
-      const u = nominalInput.kind[l][row] === 2 ? nominalInput.value[l][row] : minSnr * nominalInput.error[l][row]
+      const u = nominalInput.kind[l][row] === 2 ? nominalInput.value[l][row] : upperLimitFromError(nominalInput.error[l][row], minSnr)
       kind.fill(2)
       value.fill(u)
     } else kind.fill(0)
@@ -101,10 +101,9 @@ export function monteCarloGalaxy(
     percentiles[3 * c + 1] = triple[1]
     percentiles[3 * c + 2] = triple[2]
   }
-  const classFractions: Record<string, Float64Array> = {}
-  for (const name of CLASS_COLUMNS) {
+  const classFractions = {} as Record<ClassColumn, Float64Array>
+  for (const [name, ci] of Object.entries(CLASS_COLUMNS) as [ClassColumn, number][]) {
     const counts = new Float64Array(11)
-    const ci = IC[name]
     for (let j = 0; j < draws; j++) counts[out.int[j * INT_COLUMN_COUNT + ci]]++
     for (let c = 0; c < counts.length; c++) counts[c] /= draws
     classFractions[name] = counts

@@ -6,12 +6,15 @@ import { requireFinite, requirePositiveFinite, ScienceInputError } from '../flag
 import { METALLICITY_KEYS } from '../vocabulary/calibrations.ts'
 import { FLAG_WORDS, ROW_FLAGS, belowMinSnrFlag, ratioLimitFlag } from '../vocabulary/flags.ts'
 import { isLineId, LINE_COUNT, LINE_IDS, LINE_INDEX, type LineId } from '../vocabulary/lines.ts'
+import { RATIO_KEYS } from '../vocabulary/ratios.ts'
 import { LINE_DETECTED, LINE_UPPER_LIMIT, RATIO_LOWER, RATIO_UPPER } from '../stats/limits.ts'
 import { CLASS_CODE, className, DIAGRAM_CLASSES, CLASS_LINER, CLASS_SEYFERT, type ClassName, type NiiClass, type OverallClass, type SiiOiClass, type WhanClass } from '../vocabulary/classes.ts'
 import {
-  createKernelInput, createKernelOutput, DENSITY_NOT_COMPUTED, FC, FLAG_STRIDE, FLOAT_COLUMN_COUNT, FLOAT_COLUMN_IS_VALUE, IC,
-  INT_COLUMN_COUNT, prepareSettings, RATIO_KEYS, runKernel, type KernelInput, type KernelOutput, type PreparedSettings,
+  createKernelInput, createKernelOutput, FLAG_STRIDE, prepareSettings, runKernel, type KernelInput, type KernelOutput, type PreparedSettings,
 } from './kernel.ts'
+import {
+  DENSITY_NOT_COMPUTED, FLOAT, FLOAT_COLUMN_COUNT, FLOAT_COLUMN_IS_VALUE, INT, INT_COLUMN_COUNT, RATIO_INDEX,
+} from './kernel-layout.ts'
 import { galaxySeed, monteCarloGalaxy, type MonteCarloSummary } from './monte-carlo.ts'
 import { validateSettings } from './settings.ts'
 import type {
@@ -80,16 +83,25 @@ const EXTINCTION_FLAGS = new Set(['balmer-below-intrinsic', 'balmer-from-hgamma'
 const METALLICITY_FLAGS = new Set(['metallicity-not-star-forming', ...METALLICITY_KEYS.flatMap((k) => [`${k}-out-of-range`, `${k}-needs-detections`])])
 const SFR_FLAGS = new Set(['sfr-not-star-forming', 'sfr-not-dereddened', 'sfr-needs-halpha', 'luminosity-needs-redshift'])
 
-// column numbers resolved once (building names per galaxy would allocate strings in the hot loop)
-const COL_STATE = LINE_IDS.map((id) => IC[`state:${id}`])
-const COL_FLUX = LINE_IDS.map((id) => FC[`flux:${id}`])
-const COL_FLUX_ERROR = LINE_IDS.map((id) => FC[`fluxError:${id}`])
-const COL_RATIO = RATIO_KEYS.map((k) => FC[`ratio:${k}`])
-const COL_RATIO_ERROR = RATIO_KEYS.map((k) => FC[`ratioError:${k}`])
-const COL_RATIO_LIMIT = RATIO_KEYS.map((k) => IC[`limit:${k}`])
-const COL_METALLICITY = METALLICITY_KEYS.map((k) => FC[`z.${k}`])
-const COL_METALLICITY_ERROR = METALLICITY_KEYS.map((k) => FC[`z.${k}Error`])
 const METALLICITY_ERROR_KEYS = METALLICITY_KEYS.map((k) => `${k}Error`)
+
+// the result blocks' keys and the kernel columns they come from
+const NII_DISTANCE_COLUMNS: Readonly<Record<string, number>> = {
+  ka03: FLOAT.niiKa03, ka03Error: FLOAT.niiKa03Error, ke01: FLOAT.niiKe01, ke01Error: FLOAT.niiKe01Error,
+  s07: FLOAT.niiS07, s07Error: FLOAT.niiS07Error, nearestDistance: FLOAT.niiNearestDistance,
+}
+const SEYFERT_LINER_COLUMNS = {
+  sii: { ke01: FLOAT.siiKe01, ke01Error: FLOAT.siiKe01Error, ke06: FLOAT.siiKe06, ke06Error: FLOAT.siiKe06Error },
+  oi: { ke01: FLOAT.oiKe01, ke01Error: FLOAT.oiKe01Error, ke06: FLOAT.oiKe06, ke06Error: FLOAT.oiKe06Error },
+} as const
+const DENSITY_COLUMNS = {
+  sii: { status: INT.densitySii, ne: FLOAT.neSii, neError: FLOAT.neSiiError, ratio: RATIO_INDEX.siiDoublet },
+  oii: { status: INT.densityOii, ne: FLOAT.neOii, neError: FLOAT.neOiiError, ratio: RATIO_INDEX.oiiDoublet },
+} as const
+const TEMPERATURE_COLUMNS = {
+  oiii: { te: FLOAT.teOiii, teError: FLOAT.teOiiiError, neUsed: FLOAT.teOiiiNeUsed },
+  nii: { te: FLOAT.teNii, teError: FLOAT.teNiiError, neUsed: FLOAT.teNiiNeUsed },
+} as const
 
 class RowReader {
   readonly fo: number
@@ -137,15 +149,15 @@ function probabilities<T extends ClassName>(names: readonly T[], fractions: Floa
 function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelOutput, prep: PreparedSettings, mc: MonteCarloSummary | null): GalaxyResult {
   const r = new RowReader(out, i, mc)
   const flags = rowFlags(out, i)
-  const sourceCode = r.int(IC['source'])
+  const sourceCode = r.int(INT.source)
 
   const extinction: Record<string, unknown> = {}
-  r.put(extinction, 'balmerDecrement', FC['balmerDecrement'])
-  r.put(extinction, 'balmerDecrementError', FC['balmerDecrementError'])
-  const ebv = r.put(extinction, 'ebv', FC['ebv'])
-  r.put(extinction, 'ebvError', FC['ebvError'])
-  r.put(extinction, 'av', FC['av'])
-  r.put(extinction, 'avError', FC['avError'])
+  r.put(extinction, 'balmerDecrement', FLOAT.balmerDecrement)
+  r.put(extinction, 'balmerDecrementError', FLOAT.balmerDecrementError)
+  const ebv = r.put(extinction, 'ebv', FLOAT.ebv)
+  r.put(extinction, 'ebvError', FLOAT.ebvError)
+  r.put(extinction, 'av', FLOAT.av)
+  r.put(extinction, 'avError', FLOAT.avError)
   extinction.source = sourceCode === 1 ? 'halpha-hbeta' : sourceCode === 2 ? 'hgamma-hbeta' : null
   extinction.flags = flags.filter((f) => EXTINCTION_FLAGS.has(f))
 
@@ -153,16 +165,16 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
   for (let l = 0; l < LINE_COUNT; l++) {
     if (input.kind[l][i] === 0) continue
     const id = LINE_IDS[l]
-    const state = r.int(COL_STATE[l])
+    const state = r.int(INT.state[l])
     const entry: Record<string, unknown> = {}
     if (state === LINE_DETECTED) {
-      r.put(entry, 'flux', COL_FLUX[l])
-      r.put(entry, 'error', COL_FLUX_ERROR[l])
+      r.put(entry, 'flux', FLOAT.flux[l])
+      r.put(entry, 'error', FLOAT.fluxError[l])
       // A_λ = k(λ)·E(B−V): percentiles scale with those of E(B−V) (k > 0)
-      r.put(entry, 'aLambda', FC['ebv'], prep.k[l])
+      r.put(entry, 'aLambda', FLOAT.ebv, prep.k[l])
       if (ebv === null) entry.aLambda = null
     } else if (state === LINE_UPPER_LIMIT) {
-      r.put(entry, 'upperLimit', COL_FLUX[l])
+      r.put(entry, 'upperLimit', FLOAT.flux[l])
     } else continue
     dereddened[id] = entry as DereddenedLine
   }
@@ -172,9 +184,9 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
   const ratioLimits: Partial<Record<RatioKey, 'upper' | 'lower'>> = {}
   for (let k = 0; k < RATIO_KEYS.length; k++) {
     const key = RATIO_KEYS[k]
-    r.put(ratios, key, COL_RATIO[k])
-    ratioErrors[key] = r.num(COL_RATIO_ERROR[k])
-    const lim = r.int(COL_RATIO_LIMIT[k])
+    r.put(ratios, key, FLOAT.ratio[k])
+    ratioErrors[key] = r.num(FLOAT.ratioError[k])
+    const lim = r.int(INT.limit[k])
     if (lim === RATIO_UPPER || lim === RATIO_LOWER) {
       const kind = lim === RATIO_UPPER ? 'upper' : 'lower'
       ratioLimits[key] = kind
@@ -182,95 +194,98 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
     }
   }
 
-  const subtype = r.int(IC['class.niiSubtype'])
+  const subtype = r.int(INT.niiSubtype)
   const classes: ClassesResult = {
-    nii: className(r.int(IC['class.nii'])) as NiiClass,
-    sii: className(r.int(IC['class.sii'])) as SiiOiClass,
-    oi: className(r.int(IC['class.oi'])) as SiiOiClass,
-    whan: className(r.int(IC['class.whan'])) as WhanClass,
-    overall: className(r.int(IC['class.overall'])) as OverallClass,
+    nii: className(r.int(INT.classNii)) as NiiClass,
+    sii: className(r.int(INT.classSii)) as SiiOiClass,
+    oi: className(r.int(INT.classOi)) as SiiOiClass,
+    whan: className(r.int(INT.classWhan)) as WhanClass,
+    overall: className(r.int(INT.classOverall)) as OverallClass,
     niiSubtype: subtype === CLASS_SEYFERT ? 'seyfert' : subtype === CLASS_LINER ? 'liner' : null,
   }
   if (mc) {
     classes.classProbabilities = {
-      nii: probabilities(DIAGRAM_CLASSES.nii, mc.classFractions['class.nii']),
-      sii: probabilities(DIAGRAM_CLASSES.sii, mc.classFractions['class.sii']),
-      oi: probabilities(DIAGRAM_CLASSES.oi, mc.classFractions['class.oi']),
-      whan: probabilities(DIAGRAM_CLASSES.whan, mc.classFractions['class.whan']),
-      overall: probabilities(DIAGRAM_CLASSES.overall, mc.classFractions['class.overall']),
+      nii: probabilities(DIAGRAM_CLASSES.nii, mc.classFractions.nii),
+      sii: probabilities(DIAGRAM_CLASSES.sii, mc.classFractions.sii),
+      oi: probabilities(DIAGRAM_CLASSES.oi, mc.classFractions.oi),
+      whan: probabilities(DIAGRAM_CLASSES.whan, mc.classFractions.whan),
+      overall: probabilities(DIAGRAM_CLASSES.overall, mc.classFractions.overall),
     }
   }
 
   let nii: NiiDistances | null = null
-  const nearest = r.int(IC['nii.nearest'])
+  const nearest = r.int(INT.niiNearest)
   if (nearest !== 0) {
     const d: Record<string, unknown> = {}
-    for (const key of ['ka03', 'ka03Error', 'ke01', 'ke01Error', 's07', 's07Error']) r.put(d, key, FC[`nii.${key}`])
+    for (const key of ['ka03', 'ka03Error', 'ke01', 'ke01Error', 's07', 's07Error']) r.put(d, key, NII_DISTANCE_COLUMNS[key])
     d.nearest = nearest === 1 ? 'ka03' : 'ke01'
-    r.put(d, 'nearestDistance', FC['nii.nearestDistance'])
+    r.put(d, 'nearestDistance', NII_DISTANCE_COLUMNS.nearestDistance)
     nii = d as NiiDistances
   }
   const seyfertLiner = (diagram: 'sii' | 'oi'): SeyfertLinerDistances | null => {
-    if (r.num(FC[`${diagram}.ke01`]) === null) return null
+    const columns = SEYFERT_LINER_COLUMNS[diagram]
+    if (r.num(columns.ke01) === null) return null
     const d: Record<string, unknown> = {}
-    for (const key of ['ke01', 'ke01Error', 'ke06', 'ke06Error']) r.put(d, key, FC[`${diagram}.${key}`])
+    for (const [key, c] of Object.entries(columns)) r.put(d, key, c)
     d.nearest = 'ke01'
-    r.put(d, 'nearestDistance', FC[`${diagram}.ke01`])
+    r.put(d, 'nearestDistance', columns.ke01)
     return d as SeyfertLinerDistances
   }
 
-  const densityBlock = (which: 'sii' | 'oii', ratioKey: RatioKey): DensityResult | null => {
-    const status = r.int(IC[`density.${which}`])
+  const densityBlock = (which: 'sii' | 'oii'): DensityResult | null => {
+    const columns = DENSITY_COLUMNS[which]
+    const status = r.int(columns.status)
     if (status === DENSITY_NOT_COMPUTED) return null
     const d: Record<string, unknown> = {}
-    r.put(d, 'ne', FC[`density.${which}.ne`])
-    r.put(d, 'neError', FC[`density.${which}.neError`])
-    r.put(d, 'ratio', FC[`ratio:${ratioKey}`])
-    d.ratioError = r.num(FC[`ratioError:${ratioKey}`])
+    r.put(d, 'ne', columns.ne)
+    r.put(d, 'neError', columns.neError)
+    r.put(d, 'ratio', FLOAT.ratio[columns.ratio])
+    d.ratioError = r.num(FLOAT.ratioError[columns.ratio])
     d.flag = status === 1 ? 'low-density-limit' : status === 2 ? 'high-density-limit' : null
     return d as DensityResult
   }
 
   const temperatureBlock = (ion: 'oiii' | 'nii'): TemperatureResult | null => {
     const own = flags.filter((f) => f.startsWith('te-') && f.endsWith(`:${ion}`)).map((f) => f.slice(0, -(ion.length + 1)))
-    const te = r.num(FC[`te.${ion}`])
+    const columns = TEMPERATURE_COLUMNS[ion]
+    const te = r.num(columns.te)
     if (te === null && own.length === 0) return null
     const d: Record<string, unknown> = {}
-    r.put(d, 'te', FC[`te.${ion}`])
-    r.put(d, 'teError', FC[`te.${ion}Error`])
-    r.put(d, 'neUsed', FC[`te.${ion}.neUsed`])
+    r.put(d, 'te', columns.te)
+    r.put(d, 'teError', columns.teError)
+    r.put(d, 'neUsed', columns.neUsed)
     d.flags = own
     return d as TemperatureResult
   }
 
   const metallicity: Record<string, unknown> = {}
   for (let m = 0; m < METALLICITY_KEYS.length; m++) {
-    r.put(metallicity, METALLICITY_KEYS[m], COL_METALLICITY[m])
-    r.put(metallicity, METALLICITY_ERROR_KEYS[m], COL_METALLICITY_ERROR[m])
+    r.put(metallicity, METALLICITY_KEYS[m], FLOAT.z[m])
+    r.put(metallicity, METALLICITY_ERROR_KEYS[m], FLOAT.zError[m])
   }
   metallicity.flags = flags.filter((f) => METALLICITY_FLAGS.has(f))
 
   const kennicutt98 = prep.settings.sfrCalibration === 'kennicutt98'
   const sfr: Record<string, unknown> = {}
-  r.put(sfr, 'luminosityDistanceMpc', FC['sfr.dl'])
-  r.put(sfr, 'luminosityHalpha', FC['sfr.lHa'])
-  r.put(sfr, 'luminosityHalphaError', FC['sfr.lHaError'])
-  r.put(sfr, 'sfrHalpha', FC[kennicutt98 ? 'sfr.k98' : 'sfr.ke12'])
-  r.put(sfr, 'sfrHalphaError', FC[kennicutt98 ? 'sfr.k98Error' : 'sfr.ke12Error'])
-  r.put(sfr, 'sfrK98', FC['sfr.k98'])
-  r.put(sfr, 'sfrK98Error', FC['sfr.k98Error'])
-  r.put(sfr, 'sfrKe12', FC['sfr.ke12'])
-  r.put(sfr, 'sfrKe12Error', FC['sfr.ke12Error'])
+  r.put(sfr, 'luminosityDistanceMpc', FLOAT.luminosityDistance)
+  r.put(sfr, 'luminosityHalpha', FLOAT.lHalpha)
+  r.put(sfr, 'luminosityHalphaError', FLOAT.lHalphaError)
+  r.put(sfr, 'sfrHalpha', kennicutt98 ? FLOAT.sfrK98 : FLOAT.sfrKe12)
+  r.put(sfr, 'sfrHalphaError', kennicutt98 ? FLOAT.sfrK98Error : FLOAT.sfrKe12Error)
+  r.put(sfr, 'sfrK98', FLOAT.sfrK98)
+  r.put(sfr, 'sfrK98Error', FLOAT.sfrK98Error)
+  r.put(sfr, 'sfrKe12', FLOAT.sfrKe12)
+  r.put(sfr, 'sfrKe12Error', FLOAT.sfrKe12Error)
   sfr.imf = kennicutt98 ? 'salpeter' : 'kroupa'
   sfr.flags = flags.filter((f) => SFR_FLAGS.has(f))
 
   let blackHoleMass: BlackHoleResult | null = null
-  if (r.num(FC['bh.mass']) !== null) {
+  if (r.num(FLOAT.bhMass) !== null) {
     const d: Record<string, unknown> = {}
-    r.put(d, 'massSolar', FC['bh.mass'])
-    r.put(d, 'log10Mass', FC['bh.log10Mass'])
-    r.put(d, 'log10MassError', FC['bh.log10MassError'])
-    r.put(d, 'luminosityBroadHalpha', FC['bh.lBroad'])
+    r.put(d, 'massSolar', FLOAT.bhMass)
+    r.put(d, 'log10Mass', FLOAT.bhLog10Mass)
+    r.put(d, 'log10MassError', FLOAT.bhLog10MassError)
+    r.put(d, 'luminosityBroadHalpha', FLOAT.bhLBroad)
     d.fwhmKmPerS = input.fwhmBroad[i]
     d.flags = []
     blackHoleMass = d as BlackHoleResult
@@ -285,7 +300,7 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
     ratioLimits,
     classes,
     distances: { nii, sii: seyfertLiner('sii'), oi: seyfertLiner('oi') },
-    density: { sii: densityBlock('sii', 'siiDoublet'), oii: densityBlock('oii', 'oiiDoublet') },
+    density: { sii: densityBlock('sii'), oii: densityBlock('oii') },
     temperature: { oiii: temperatureBlock('oiii'), nii: temperatureBlock('nii') },
     metallicity: metallicity as MetallicityResult,
     sfr: sfr as SfrResult,

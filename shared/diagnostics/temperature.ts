@@ -20,6 +20,24 @@ export const OIII_TEMPERATURE_MODEL: TemperatureRatioModel = { coefficient: 7.9,
 /** Osterbrock & Ferland 2006, eq. 5.5: (j6548 + j6584)/j5755 = 8.23 exp(2.50×10⁴/T)/(1 + 4.4×10⁻³ n_e/T^½). */
 export const NII_TEMPERATURE_MODEL: TemperatureRatioModel = { coefficient: 8.23, exponentK: 2.5e4, densityCoefficient: 4.4e-3 }
 
+/** Fixed [O III] 5007/4959 used when 4959 is missing (Storey & Zeippen 2000, MNRAS 312, 813 — from memory, shared/science/README.md §4, §12). */
+export const OIII_5007_TO_4959 = 2.98
+/** Fixed [N II] 6584/6548 used when 6548 is missing (≈ 3.05, shared/science/README.md §4 — from memory, shared/science/README.md §12). */
+export const NII_6584_TO_6548 = 3.05
+
+/**
+ * The doublet sum of a temperature ratio from its stronger line alone, with the fixed intensity ratio
+ * of the doublet: F_strong (1 + 1/ratio) (flag `te-from-fixed-doublet-ratio:<…>`; shared/science/README.md §4).
+ *
+ * @param strongFlux   F(5007) or F(6584), any flux unit
+ * @param strongToWeak OIII_5007_TO_4959 or NII_6584_TO_6548
+ * @returns F(4959 + 5007) or F(6548 + 6584), same unit
+ * @example doubletSumFromStrongLine(298, OIII_5007_TO_4959) // ≈ 398
+ */
+export function doubletSumFromStrongLine(strongFlux: number, strongToWeak: number): number {
+  return strongFlux * (1 + 1 / strongToWeak)
+}
+
 /** Search range for T_e, K (shared/science/README.md §4, project convention). */
 export const TEMPERATURE_MIN_K = 5000
 export const TEMPERATURE_MAX_K = 30000
@@ -57,6 +75,21 @@ export function temperatureRatioLogSlope(model: TemperatureRatioModel, temperatu
   const s = Math.sqrt(temperatureK)
   const q = (model.densityCoefficient * neCm3) / s
   return -model.exponentK / (temperatureK * temperatureK) + (0.5 * q) / temperatureK / (1 + q)
+}
+
+/**
+ * First-order 1σ error of T_e from the error of ln R: σ_T = σ_lnR / |d ln R/dT| at the solution.
+ * Source: shared/science/README.md §4, §9 (first-order propagation through the inverse).
+ *
+ * @param model         temperature model
+ * @param temperatureK  the solution T_e, K
+ * @param neCm3         n_e used for it, cm⁻³
+ * @param sigmaLnRatio  σ of ln R (= σ_R/R), dimensionless
+ * @returns σ_T in K
+ * @example temperatureError(OIII_TEMPERATURE_MODEL, 1e4, 0, 0.0329) // ≈ 100.0 (B/T² = 3.29e-4 K⁻¹ at n_e = 0)
+ */
+export function temperatureError(model: TemperatureRatioModel, temperatureK: number, neCm3: number, sigmaLnRatio: number): number {
+  return sigmaLnRatio / Math.abs(temperatureRatioLogSlope(model, temperatureK, neCm3))
 }
 
 /**

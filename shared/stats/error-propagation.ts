@@ -41,6 +41,38 @@ export function errorOfSum(error1: number, error2: number): number {
   return Math.sqrt(error1 * error1 + error2 * error2)
 }
 
+/**
+ * Relative error of the sum of two independent fluxes, √((F₁ σ₁/F₁)² + (F₂ σ₂/F₂)²)/(F₁ + F₂), from
+ * each flux and its relative error (e.g. [S II] 6717 + 6731, [O III] 4959 + 5007).
+ *
+ * @param flux1      F₁ (flux unit)
+ * @param relative1  σ₁/F₁, dimensionless
+ * @param flux2      F₂ (same unit)
+ * @param relative2  σ₂/F₂, dimensionless
+ * @returns σ_sum/F_sum, dimensionless
+ * @example relativeErrorOfSum(3, 0.1, 1, 0.2) // ≈ 0.0901388
+ */
+export function relativeErrorOfSum(flux1: number, relative1: number, flux2: number, relative2: number): number {
+  const a = flux1 * relative1
+  const b = flux2 * relative2
+  return Math.sqrt(a * a + b * b) / (flux1 + flux2)
+}
+
+/**
+ * k(λ) of a summed pseudo-line: the flux-weighted mean (F₁k₁ + F₂k₂)/(F₁ + F₂), the first-order
+ * dependence of ln(F₁ + F₂) on E(B−V) (for `linearisedLogVariance`; derivation, common practice).
+ *
+ * @param flux1  F₁ (flux unit)
+ * @param k1     k(λ₁), mag/mag
+ * @param flux2  F₂ (same unit)
+ * @param k2     k(λ₂), mag/mag
+ * @returns k of the sum, mag/mag
+ * @example fluxWeightedK(3, 2.6, 1, 2.5) // ≈ 2.575
+ */
+export function fluxWeightedK(flux1: number, k1: number, flux2: number, k2: number): number {
+  return (flux1 * k1 + flux2 * k2) / (flux1 + flux2)
+}
+
 /** Role of a term in a dust-corrected combination: an ordinary line, or one of the two Balmer lines that set E(B−V). */
 export const ROLE_OTHER = 0
 export const ROLE_DUST_NUMERATOR = 1

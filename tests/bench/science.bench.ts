@@ -12,10 +12,12 @@ import { closeSync, mkdtempSync, openSync, rmSync, writeSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { dirname, join } from 'node:path'
 import { fileURLToPath } from 'node:url'
-import { createKernelOutput, FC, FLOAT_COLUMN_COUNT, IC, INT_COLUMN_COUNT, prepareSettings, runKernel, type KernelInput } from '../../shared/diagnostics/kernel.ts'
+import { createKernelOutput, prepareSettings, runKernel, type KernelInput } from '../../shared/diagnostics/kernel.ts'
+import { FLOAT, FLOAT_COLUMN_COUNT, INT, INT_COLUMN_COUNT } from '../../shared/diagnostics/kernel-layout.ts'
 import { galaxySeed, monteCarloGalaxy } from '../../shared/diagnostics/monte-carlo.ts'
 import { diagnoseMany } from '../../shared/diagnostics/pipeline.ts'
 import { DEFAULT_SETTINGS } from '../../shared/diagnostics/settings.ts'
+import { METALLICITY_KEYS } from '../../shared/vocabulary/calibrations.ts'
 import { LINE_COUNT, LINE_IDS, type LineId } from '../../shared/vocabulary/lines.ts'
 import type { GalaxyInput } from '../../shared/diagnostics/types.ts'
 import { syntheticGalaxies } from './synthetic.ts'
@@ -26,6 +28,7 @@ const CHUNK = 4096 // rows per kernel call: the output block (≈ 3 MB) stays in
 const settings = DEFAULT_SETTINGS
 const objectSettings = { ...DEFAULT_SETTINGS, allowNegative: true } // synthetic noise makes some weak lines negative
 const prep = prepareSettings(settings)
+const N2_PP04 = METALLICITY_KEYS.indexOf('n2Pp04')
 const fmt = (x: number) => Math.round(x).toLocaleString('en-US')
 
 console.log(`science bench: ${fmt(N)} synthetic galaxies, all 16 lines, node ${process.version}`)
@@ -37,8 +40,9 @@ console.log(`  synthetic data generated in ${((performance.now() - t) / 1000).to
 const out = createKernelOutput(CHUNK)
 const options = { thresholdSnr: true, errors: true }
 for (let w = 0; w < 5; w++) for (let s = 0; s < Math.min(N, 20_000); s += CHUNK) runKernel(input, out, prep, options, s, Math.min(N, s + CHUNK)) // JIT warm-up
-const classCounts: Record<string, number[]> = { nii: [], sii: [], oi: [], whan: [], overall: [] }
-for (const k of Object.keys(classCounts)) classCounts[k] = new Array(11).fill(0)
+const classColumns = { nii: INT.classNii, sii: INT.classSii, oi: INT.classOi, whan: INT.classWhan, overall: INT.classOverall }
+const classCounts: Record<string, number[]> = {}
+for (const k of Object.keys(classColumns)) classCounts[k] = new Array(11).fill(0)
 let ebvSum = 0, teSum = 0, teN = 0, zSum = 0, zN = 0
 let kernelSeconds = 0
 for (let s = 0; s < N; s += CHUNK) {
@@ -47,13 +51,13 @@ for (let s = 0; s < N; s += CHUNK) {
   runKernel(input, out, prep, options, s, e)
   kernelSeconds += (performance.now() - t) / 1000
   for (let i = 0; i < e - s; i++) {
-    for (const k of Object.keys(classCounts)) classCounts[k][out.int[i * INT_COLUMN_COUNT + IC[`class.${k}`]]]++
+    for (const [k, c] of Object.entries(classColumns)) classCounts[k][out.int[i * INT_COLUMN_COUNT + c]]++
     const fo = i * FLOAT_COLUMN_COUNT
-    const ebv = out.float[fo + FC.ebv]
+    const ebv = out.float[fo + FLOAT.ebv]
     if (ebv === ebv) ebvSum += ebv
-    const te = out.float[fo + FC['te.oiii']]
+    const te = out.float[fo + FLOAT.teOiii]
     if (te === te) { teSum += te; teN++ }
-    const z = out.float[fo + FC['z.n2Pp04']]
+    const z = out.float[fo + FLOAT.z[N2_PP04]]
     if (z === z) { zSum += z; zN++ }
   }
 }

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import type { z } from 'zod'
 import { DENSITY_FIT_MAX_CM3, DENSITY_FIT_MIN_CM3 } from '../../../shared/diagnostics/density.ts'
-import { RATIO_KEYS as KERNEL_RATIO_KEYS } from '../../../shared/diagnostics/kernel.ts'
+import { FLOAT_COLUMNS } from '../../../shared/diagnostics/kernel-layout.ts'
 import { METALLICITY_CALIBRATIONS } from '../../../shared/diagnostics/metallicity.ts'
 import { ASSUMED_DENSITY_CM3, TEMPERATURE_MAX_K, TEMPERATURE_MIN_K } from '../../../shared/diagnostics/temperature.ts'
 import { WHAN } from '../../../shared/diagnostics/whan.ts'
@@ -71,7 +71,7 @@ describe('zod schemas are built from the vocabulary', () => {
   })
 
   it('the science modules keyed by the same names', () => {
-    expect([...KERNEL_RATIO_KEYS]).toEqual([...RATIO_KEYS])
+    expect(FLOAT_COLUMNS.filter((c) => c.startsWith('ratio:')).map((c) => c.slice('ratio:'.length))).toEqual([...RATIO_KEYS])
     expect(METALLICITY_CALIBRATIONS.map((c) => c.key)).toEqual([...METALLICITY_KEYS])
     expect(Object.keys(EXTINCTION_RANGE_ANGSTROM)).toEqual([...EXTINCTION_LAWS])
     expect(SFR_CALIBRATION_LIST.every((c) => (IMFS as readonly string[]).includes(c.imf))).toBe(true)

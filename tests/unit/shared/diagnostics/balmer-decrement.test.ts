@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import {
-  colourExcessFromBalmer, colourExcessFromBalmerRaw, colourExcessFromHgammaRaw, dereddeningFactor, INTRINSIC_HALPHA_HBETA_AGN,
+  colourExcessError, colourExcessFromBalmer, colourExcessFromBalmerRaw, colourExcessFromHgammaRaw, dereddeningFactor, INTRINSIC_HALPHA_HBETA_AGN,
   INTRINSIC_HALPHA_HBETA_CASE_B, INTRINSIC_HGAMMA_HBETA_CASE_B,
 } from '../../../../shared/diagnostics/balmer-decrement.ts'
 import { extinctionK } from '../../../../shared/extinction/index.ts'
@@ -47,5 +47,17 @@ describe('colour excess from the Balmer decrement', () => {
   it('dereddening inverts reddening exactly', () => {
     // F_corr = F_obs 10^(0.4 k E) (shared/science/README.md §1.2): identity
     expect(dereddeningFactor(3.609, 0.3) * Math.pow(10, -0.4 * 3.609 * 0.3)).toBeCloseTo(1, 14)
+  })
+})
+
+describe('colourExcessError (shared/science/README.md §9)', () => {
+  it('is C/ln 10 times the relative error of the Balmer ratio', () => {
+    // σ_E = 2.5/(k_Hβ − k_Hα)/ln 10 · √((σα/Fα)² + (σβ/Fβ)²), shared/science/README.md §9; CCM89 R_V = 3.1 k of §1.4
+    // (python3-extinction 0.4.6): C = 2.328 (§1.2 table)
+    expect(colourExcessError(3.609, 2.535, 0.02, 0.01)).toBeCloseTo((2.328 / Math.LN10) * Math.hypot(0.02, 0.01), 4)
+    // and the numerical slope of E(B−V) in ln F(Hα) (first order; common practice)
+    const h = 1e-6
+    const dE = (colourExcessFromBalmerRaw(4 * Math.exp(h), 2.86, 3.609, 2.535) - colourExcessFromBalmerRaw(4 * Math.exp(-h), 2.86, 3.609, 2.535)) / (2 * h)
+    expect(colourExcessError(3.609, 2.535, 0, 0.03)).toBeCloseTo(Math.abs(dE) * 0.03, 9)
   })
 })

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest'
 import {
   hyperbolaY, isBelowHyperbola, KA03, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, kauffmann2003Line, kewley2001NiiLine,
   kewley2001OiLine, kewley2001SiiLine, S07_NII, signedDistanceToHyperbola, signedDistanceToLine, straightLineY,
+  distanceErrorAlongNormal, signedDistanceToLineError,
 } from '../../../../shared/diagnostics/demarcation.ts'
 
 describe('demarcation curves', () => {
@@ -70,5 +71,22 @@ describe('signed perpendicular distances (shared/science/README.md §2.6)', () =
     expect(signedDistanceToHyperbola(KA03, 0.1, -5)).toBeGreaterThan(0)
     expect(signedDistanceToHyperbola(KE01_SII, -1, -1)).toBeLessThan(0)
     expect(signedDistanceToLine(KE06_OI, -1, 1)).toBeGreaterThan(0)
+  })
+})
+
+describe('first-order errors of the distances (shared/science/README.md §2.6, §9)', () => {
+  it('match the numerical gradient of the distance', () => {
+    // σ_d² = (∂d/∂x σx)² + (∂d/∂y σy)² (first order, Bevington & Robinson 2003, ch. 3), gradient by central differences
+    const h = 1e-6
+    const grad = (f: (x: number, y: number) => number, x: number, y: number) =>
+      [(f(x + h, y) - f(x - h, y)) / (2 * h), (f(x, y + h) - f(x, y - h)) / (2 * h)]
+    const [lx, ly] = grad((x, y) => signedDistanceToLine(S07_NII, x, y), 0.3, 0.2)
+    expect(signedDistanceToLineError(S07_NII, 0.1, 0.05)).toBeCloseTo(Math.hypot(lx * 0.1, ly * 0.05), 9)
+    for (const [x, y] of [[0.6, 0], [-0.5515, -0.0267], [-1, 1.5]]) {
+      const n = new Float64Array(3)
+      signedDistanceToHyperbola(KE01_NII, x, y, n)
+      const [gx, gy] = grad((a, b) => signedDistanceToHyperbola(KE01_NII, a, b), x, y)
+      expect(distanceErrorAlongNormal(n[1], n[2], 0.1, 0.05), `${x},${y}`).toBeCloseTo(Math.hypot(gx * 0.1, gy * 0.05), 6)
+    }
   })
 })

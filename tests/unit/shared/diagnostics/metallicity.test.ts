@@ -1,5 +1,7 @@
 import { describe, expect, it } from 'vitest'
-import { METALLICITY_CALIBRATIONS, n2M13, n2Pp04, n2Pp04Cubic, n2s2haD16, o3n2M13, o3n2Pp04 } from '../../../../shared/diagnostics/metallicity.ts'
+import {
+  D16_NII_HA_WEIGHT, METALLICITY_CALIBRATIONS, n2Index, n2M13, n2Pp04, n2Pp04Cubic, n2s2haD16, n2s2haIndex, o3n2Index, o3n2M13, o3n2Pp04,
+} from '../../../../shared/diagnostics/metallicity.ts'
 
 const cal = (key: string) => METALLICITY_CALIBRATIONS.find((c) => c.key === key)!
 
@@ -50,5 +52,17 @@ describe('strong-line metallicities (shared/science/README.md §5 check values, 
       const x = -0.7
       expect(c.slope(x), c.key).toBeCloseTo((c.value(x + 1e-6) - c.value(x - 1e-6)) / 2e-6, 6)
     }
+  })
+})
+
+describe('strong-line indices (shared/science/README.md §5)', () => {
+  it('are the logarithms the calibrations are written in', () => {
+    // N2, O3N2: Pettini & Pagel 2004, MNRAS 348, L59; y: Dopita et al. 2016, Ap&SS 361, 61 with weight 0.264 (§5 table)
+    expect(n2Index(10, 100)).toBe(-1)
+    expect(o3n2Index(300, 100, 10, 100)).toBeCloseTo(Math.log10(30), 14)
+    expect(D16_NII_HA_WEIGHT).toBe(0.264)
+    expect(n2s2haIndex(30, 30, 100)).toBeCloseTo(0.264 * Math.log10(0.3), 14)
+    // §5 check: D16 y = 0 → 8.771, reached with [N II]/[S II] = 10^0.264 at N2 = −1
+    expect(n2s2haD16(n2s2haIndex(10, 10 / 10 ** 0.264, 100))).toBeCloseTo(8.771, 3)
   })
 })

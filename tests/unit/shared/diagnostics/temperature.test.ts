@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest'
+import { readFileSync } from 'node:fs'
 import {
-  NII_TEMPERATURE_MODEL, OIII_TEMPERATURE_MODEL, temperatureFromRatio, temperatureRatio, temperatureRatioLogSlope,
-  temperatureWithDensityIteration,
+  doubletSumFromStrongLine, NII_6584_TO_6548, NII_TEMPERATURE_MODEL, OIII_5007_TO_4959, OIII_TEMPERATURE_MODEL, temperatureError,
+  temperatureFromRatio, temperatureRatio, temperatureRatioLogSlope, temperatureWithDensityIteration,
 } from '../../../../shared/diagnostics/temperature.ts'
 import { electronDensityFromSiiRatio } from '../../../../shared/diagnostics/density.ts'
 
@@ -64,6 +65,31 @@ describe('T_e iteration start', () => {
     for (const [ratio, sii] of [[80, 0.6], [150, 1.0], [300, 1.3], [60, 0.5]]) {
       const fast = temperatureWithDensityIteration(OIII_TEMPERATURE_MODEL, ratio, sii).temperatureK as number
       expect(Math.abs(fast - plain(ratio, sii)), `R=${ratio} Rs=${sii}`).toBeLessThan(0.1)
+    }
+  })
+})
+
+describe('temperature helpers of the kernel (shared/science/README.md §4)', () => {
+  it('builds the doublet sum from the stronger line with the fixed ratios', () => {
+    // 5007/4959 = 2.98 (Storey & Zeippen 2000, MNRAS 312, 813) and 6584/6548 = 3.05 — both from memory (§4, §12)
+    expect(OIII_5007_TO_4959).toBe(2.98)
+    expect(NII_6584_TO_6548).toBe(3.05)
+    expect(doubletSumFromStrongLine(298, OIII_5007_TO_4959)).toBeCloseTo(398, 12)
+    expect(doubletSumFromStrongLine(305, NII_6584_TO_6548)).toBeCloseTo(405, 12)
+  })
+  it('gives σ_T = σ_lnR/|d ln R/dT|, the slope of scipy brentq T(R) (numerics.json)', () => {
+    // tests/fixtures/science/numerics.json (python3-scipy 1.10.1 brentq at n_e = 100 cm⁻³, 25 log-spaced ratios): the
+    // central difference dT/d ln R between neighbours; the spacing (factor ≈ 1.26) limits agreement to ≈ 3 % (§4, §9)
+    const fixture = JSON.parse(readFileSync(new URL('../../../fixtures/science/numerics.json', import.meta.url), 'utf8')) as {
+      temperature: Array<{ model: 'oiii' | 'nii'; neCm3: number; ratio: number[]; temperatureK: number[] }>
+    }
+    for (const c of fixture.temperature.filter((x) => x.neCm3 === 100)) {
+      const model = c.model === 'oiii' ? OIII_TEMPERATURE_MODEL : NII_TEMPERATURE_MODEL
+      for (let j = 1; j < c.ratio.length - 1; j++) {
+        const slope = Math.abs((c.temperatureK[j + 1] - c.temperatureK[j - 1]) / Math.log(c.ratio[j + 1] / c.ratio[j - 1]))
+        const sigma = temperatureError(model, c.temperatureK[j], 100, 0.01)
+        expect(Math.abs(sigma / (0.01 * slope) - 1), `${c.model} R ${c.ratio[j]}`).toBeLessThan(0.04)
+      }
     }
   })
 })

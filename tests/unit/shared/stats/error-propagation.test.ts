@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import {
-  errorOfSum, linearisedLogVariance, linearisedLogVarianceOfLine, log10Error, relativeErrorOfRatio, ROLE_DUST_DENOMINATOR,
+  errorOfSum, fluxWeightedK, linearisedLogVariance, linearisedLogVarianceOfLine, log10Error, relativeErrorOfRatio, relativeErrorOfSum, ROLE_DUST_DENOMINATOR,
   ROLE_DUST_NUMERATOR, ROLE_OTHER,
 } from '../../../../shared/stats/error-propagation.ts'
 
@@ -37,5 +37,16 @@ describe('first-order error propagation (shared/science/README.md §9)', () => {
     // Hβ itself, as dust denominator
     expect(linearisedLogVarianceOfLine(rel[2], ROLE_DUST_DENOMINATOR, kHb, C, rel[1], rel[2]))
       .toBeCloseTo(linearisedLogVariance(1, [1], [rel[2]], [ROLE_DUST_DENOMINATOR], [kHb], C, rel[1], rel[2]), 15)
+  })
+})
+
+describe('summed pseudo-lines (shared/science/README.md §9)', () => {
+  it('relative error and k of F₁ + F₂ are the first-order ones', () => {
+    // σ_sum = √(σ₁² + σ₂²) (§9, Bevington & Robinson 2003, ch. 3): σ = 0.3 and 0.2 on 3 + 1
+    expect(relativeErrorOfSum(3, 0.1, 1, 0.2)).toBeCloseTo(errorOfSum(0.3, 0.2) / 4, 15)
+    // d ln(F₁ 10^(0.4 k₁ E) + F₂ 10^(0.4 k₂ E))/dE at E = 0 is 0.4 ln 10 times the flux-weighted k (closed form, common practice)
+    const h = 1e-6
+    const lnSum = (e: number) => Math.log(3 * 10 ** (0.4 * 2.6 * e) + 1 * 10 ** (0.4 * 2.5 * e))
+    expect((lnSum(h) - lnSum(-h)) / (2 * h) / (0.4 * Math.LN10)).toBeCloseTo(fluxWeightedK(3, 2.6, 1, 2.5), 8)
   })
 })
