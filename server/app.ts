@@ -11,9 +11,10 @@ import { logger } from './lib/logger.ts'
 import { buildRoutes } from './routes/index.ts'
 import type { Mailer } from './lib/mailer.ts'
 import type { JobQueue } from './services/jobs.service.ts'
-import { configureCompute, configureDiagramWarmup } from './services/galaxies.service.ts'
 import type { ComputePool } from './compute/pool.ts'
 import { routeRegistry } from './http/route.ts'
+import { DiagramCache } from './services/diagram-cache.ts'
+import { galaxyContext, type GalaxyContext } from './services/galaxy-context.ts'
 
 export interface AppDeps {
   db: Db
@@ -23,14 +24,30 @@ export interface AppDeps {
   jobs?: JobQueue
   /** Worker threads for the science (server/compute/); without it the science runs on the event loop. */
   compute?: ComputePool
+  /**
+   * This app's diagram documents and warm-up timers (server/services/diagram-cache.ts): state of one
+   * app, never of the module. Give the one a recompute worker beside the app shares; made here when absent.
+   */
+  diagrams?: DiagramCache
   /** Serve the built client from dist/ (off in API tests). */
   serveClient?: boolean
 }
 
+/** What the routes receive: the deps with the per-app parts made and bundled for the galaxy services. */
+export interface RouteDeps extends AppDeps {
+  diagrams: DiagramCache
+  galaxy: GalaxyContext
+}
+
+/** The deps with a diagram cache of this app's own when none was given, and their galaxy context. */
+export function routeDeps(deps: AppDeps): RouteDeps {
+  const diagrams = deps.diagrams ?? new DiagramCache(deps.config.diagramWarmupMs)
+  return { ...deps, diagrams, galaxy: galaxyContext({ ...deps, diagrams }) }
+}
+
 /** The Express app; `routeRegistry` holds what its routes registered (the OpenAPI document is built from it). */
-export function createApp(deps: AppDeps) {
-  configureDiagramWarmup(deps.config.diagramWarmupMs)
-  configureCompute(deps.compute, { authenticated: deps.config.computeBudget, anonymous: deps.config.anonymousComputeBudget })
+export function createApp(appDeps: AppDeps) {
+  const deps = routeDeps(appDeps)
   const app = express()
   app.disable('x-powered-by')
   // only a configured proxy may say who the client is (X-Forwarded-For) and that it used TLS

@@ -9,6 +9,8 @@ import { startMailCatcher } from './lib/mail-catcher.ts'
 import { smtpMailer, type Mailer } from './lib/mailer.ts'
 import { createApp } from './app.ts'
 import { createComputePool } from './compute/pool.ts'
+import { DiagramCache } from './services/diagram-cache.ts'
+import { galaxyContext } from './services/galaxy-context.ts'
 import { logger } from './lib/logger.ts'
 import { startJobQueue, startRecomputeWorker } from './services/jobs.service.ts'
 import { expireStagedIntakes } from './services/intake.service.ts'
@@ -84,9 +86,12 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
     smtpUrl = catcher.url
   }
   const mailer = smtpMailer(smtpUrl)
+  // the compute threads and the diagram cache of this process's app, which its worker shares
+  const compute = createComputePool(config)
+  const diagrams = new DiagramCache(config.diagramWarmupMs)
   // one in-process worker; more can run as `npm run worker` against the same database
   const jobs = await startJobQueue(databaseUrl)
-  await startRecomputeWorker(jobs.boss, db)
+  await startRecomputeWorker(jobs.boss, galaxyContext({ db, config, compute, diagrams }))
 
   if (opts.seed) {
     const { seedDemo } = await import('./seed/demo.ts')
@@ -103,8 +108,7 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
   const sweeper = setInterval(sweep, 60 * 60 * 1000)
   sweeper.unref()
 
-  const compute = createComputePool(config)
-  const app = createApp({ db, config, mailer, jobs: jobs.queue, compute, serveClient: opts.serveClient })
+  const app = createApp({ db, config, mailer, jobs: jobs.queue, compute, diagrams, serveClient: opts.serveClient })
   const server = await new Promise<Server>((ok, fail) => {
     const s = app.listen(config.port, config.host, () => ok(s))
     s.once('error', (err: NodeJS.ErrnoException) => fail(err.code === 'EADDRINUSE'
@@ -121,6 +125,7 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
     await jobs.queue.stop().catch(() => {})
     // let queued mail reach the relay (or the catcher, which closes next), but never hang the stop
     await Promise.race([mailer.idle?.(), new Promise((ok) => setTimeout(ok, 5000).unref())])
+    diagrams.close()
     await compute.close()
     mailer.close()
     await catcher?.close()

@@ -1,6 +1,8 @@
 import { loadConfig } from '../config.ts'
 import { connect } from '../db/client.ts'
 import { startJobQueue, startRecomputeWorker } from '../services/jobs.service.ts'
+import { DiagramCache } from '../services/diagram-cache.ts'
+import { galaxyContext } from '../services/galaxy-context.ts'
 
 // `npm run worker`: a recompute worker in its own process (this machine or another) on DATABASE_URL.
 const config = loadConfig()
@@ -10,7 +12,8 @@ if (!config.databaseUrl) {
 }
 const db = connect(config.databaseUrl, 4)
 const { boss, queue } = await startJobQueue(config.databaseUrl)
-await startRecomputeWorker(boss, db)
+// the science on this thread and no diagram warm-up: the servers warm their own caches
+await startRecomputeWorker(boss, galaxyContext({ db, config, diagrams: new DiagramCache(0) }))
 console.log('recompute worker running; Ctrl-C stops it')
 const stop = async () => { await queue.stop(); await db.$client.end(); process.exit(0) }
 process.on('SIGINT', stop)

@@ -22,7 +22,7 @@ export interface ParseBodyTask {
   bytes: Uint8Array
   /**
    * Named wraps of the request hash: sha256(before + JSON.stringify(body) + after), as
-   * `requestHash` in server/services/galaxies.service.ts computes it on the event loop.
+   * `requestHash` in server/services/galaxy-ingest.service.ts computes it on the event loop.
    */
   hashes?: Record<string, readonly [string, string]>
 }

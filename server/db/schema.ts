@@ -3,6 +3,7 @@ import {
   bigint, bigserial, boolean, doublePrecision, index, integer, json, jsonb, pgEnum, pgTable, primaryKey,
   real, smallint, text, timestamp, uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core'
+import { RESULTS_COLUMNS } from '../../shared/results/storage.ts'
 
 const createdAt = () => timestamp({ withTimezone: true }).notNull().defaultNow()
 
@@ -202,6 +203,15 @@ export const galaxyVersions = pgTable('galaxy_versions', {
 }, (t) => [index('galaxy_versions_galaxy').on(t.galaxyId), index('galaxy_versions_intake').on(t.intakeId, t.galaxyId)])
 
 /**
+ * The copies of result fields beside each result (class codes, ratios, limit bits, …): one column
+ * per stored field of shared/results/registry.ts (the limit fields share the `limits` bit field).
+ */
+const resultCopies = Object.fromEntries(RESULTS_COLUMNS.map((c) => {
+  const column = c.type === 'real' ? real(c.column) : smallint(c.column)
+  return [c.column, c.notNull ? column.notNull().default(0) : column]
+})) as Record<string, ReturnType<typeof real> | ReturnType<typeof smallint>>
+
+/**
  * Everything derived for a galaxy under one assumptions revision and one method version. The full
  * result is JSON; the columns beside it are copies for filtering, sorting and the diagram endpoint.
  */
@@ -211,22 +221,7 @@ export const results = pgTable('results', {
   revision: integer().notNull(),
   methodVersion: text().notNull(),
   computedAt: createdAt(),
-  classOverall: smallint(),
-  classNii: smallint(),
-  classSii: smallint(),
-  classOi: smallint(),
-  classWhan: smallint(),
-  xNii: real(), xSii: real(), xOi: real(), yOiii: real(),
-  xNiiErr: real(), xSiiErr: real(), xOiErr: real(), yOiiiErr: real(),
-  /** Bit field of limits: see server/services/result-columns.ts. */
-  limits: smallint().notNull().default(0),
-  ewHalpha: real(),
-  snrMin: real(),
-  ebv: real(), ebvError: real(), av: real(),
-  neSii: real(), neOii: real(), teOiii: real(),
-  n2Pp04: real(), o3n2Pp04: real(),
-  sfrHalpha: real(),
-  flagCount: smallint().notNull().default(0),
+  ...resultCopies,
   /** The full result as `json` text (lz4-compressed by migration 0001): written in bulk, read whole. */
   result: json().notNull(),
 }, (t) => [

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import type { AppDeps } from '../app.ts'
+import type { RouteDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route, type Routes } from '../http/route.ts'
 import { assumptionsService } from '../services/assumptions.service.ts'
@@ -13,8 +13,8 @@ const RevisionSchema = z.object({
   createdBy: z.object({ id: z.string().nullable(), name: z.string().nullable() }).nullable(),
 }).meta({ id: 'AssumptionsRevision' })
 
-export function assumptionsRoutes(r: Routes, deps: AppDeps) {
-  const assumptions = assumptionsService(deps.db, deps.jobs)
+export function assumptionsRoutes(r: Routes, deps: RouteDeps) {
+  const assumptions = assumptionsService(deps.galaxy, deps.jobs)
   const tag = 'Assumptions'
   route(r, { method: 'get', path: '/projects/:projectId/assumptions', operationId: 'getAssumptions', tag, summary: 'Current assumptions and every revision', access: 'viewer', params: ProjectPathSchema,
     responses: { 200: { description: 'revisions, newest first', schema: z.object({ current: RevisionSchema, resultsRevision: z.number().int(), revisions: z.array(RevisionSchema) }) } } },

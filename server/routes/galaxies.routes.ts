@@ -1,13 +1,17 @@
 import type { NextFunction, Request, Response } from 'express'
 import { z } from 'zod'
-import type { AppDeps } from '../app.ts'
+import type { RouteDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route, type Routes } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
-import { binaryDiagram, galaxiesService, gzippedDiagram, ingestBatch, requestHash, writingGalaxies } from '../services/galaxies.service.ts'
+import { galaxiesService } from '../services/galaxy-queries.service.ts'
+import { ingestBatch, requestHash } from '../services/galaxy-ingest.service.ts'
+import { diagramDocument, writingGalaxies } from '../services/diagrams.service.ts'
+import { binaryDiagram, gzippedDiagram } from '../services/diagram-cache.ts'
 import { BatchRequestSchema, MAX_GALAXIES_PER_REQUEST } from '../../shared/schemas/galaxy.schema.ts'
 import { GalaxyListQuerySchema, DiagramQuerySchema } from '../../shared/schemas/query.schema.ts'
 import { BatchResponseSchema, GalaxyPathSchema, GalaxyRevisionPathSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
+import { GalaxyDetailSchema, GalaxyPageSchema } from '../../shared/results/responses.ts'
 import { OnExistingSchema } from '../../shared/schemas/intake.schema.ts'
 import { DIAGRAM_COLUMNS_TYPE } from '../../shared/diagram-columns.ts'
 import { DiagramColumnsSchema } from '../../shared/schemas/diagram.schema.ts'
@@ -36,7 +40,7 @@ export function galaxyCountLimit(req: Request, _res: Response, next: NextFunctio
   next()
 }
 
-export function galaxiesRoutes(r: Routes, deps: AppDeps) {
+export function galaxiesRoutes(r: Routes, deps: RouteDeps) {
   const galaxies = galaxiesService(deps.db)
   const tag = 'Galaxies'
 
@@ -54,19 +58,19 @@ export function galaxiesRoutes(r: Routes, deps: AppDeps) {
     // another onExisting is another request: a resend with the same key and body but, say, merge must not replay a replace
     const hash = bodyHashes ? bodyHashes[query.onExisting]
       : requestHash(query.onExisting === 'replace' ? req.body : { body: req.body, onExisting: query.onExisting })
-    const out = await writingGalaxies(deps.db, params.projectId, () => ingestBatch(deps.db, requireAuth(req), params.projectId, body.galaxies, key, hash, query.onExisting))
+    const out = await writingGalaxies(deps.galaxy, params.projectId, () => ingestBatch(deps.galaxy, requireAuth(req), params.projectId, body.galaxies, key, hash, query.onExisting))
     if (out.replay) res.setHeader('Idempotent-Replayed', 'true')
     res.json(out.body)
   })
 
   route(r, {
     method: 'get', path: '/projects/:projectId/galaxies', operationId: 'listGalaxies', tag, access: 'viewer', summary: 'A page of galaxies with results (filters, sort, cursor)',
-    params: ProjectPathSchema, query: GalaxyListQuerySchema, responses: { 200: { description: 'a page; pass nextCursor as cursor for the next' } },
+    params: ProjectPathSchema, query: GalaxyListQuerySchema, responses: { 200: { description: 'a page; pass nextCursor as cursor for the next', schema: GalaxyPageSchema } },
   }, async (_req, res, { params, query }) => { res.json(await galaxies.list(params.projectId, query)) })
 
   route(r, {
     method: 'get', path: '/projects/:projectId/galaxies/:galaxyId', operationId: 'getGalaxy', tag, access: 'viewer', summary: 'One galaxy: inputs, results, flags, intake history, revisions',
-    params: GalaxyPathSchema, responses: { 200: { description: 'the galaxy' } },
+    params: GalaxyPathSchema, responses: { 200: { description: 'the galaxy', schema: GalaxyDetailSchema } },
   }, async (_req, res, { params }) => { res.json(await galaxies.getOne(params.projectId, params.galaxyId)) })
 
   route(r, {
@@ -84,7 +88,7 @@ export function galaxiesRoutes(r: Routes, deps: AppDeps) {
     params: ProjectPathSchema, query: DiagramQuerySchema,
     responses: { 200: { description: 'columnar arrays', schema: DiagramColumnsSchema, alternatives: [{ contentType: DIAGRAM_COLUMNS_TYPE, description: 'the same columns in binary: "RGD1", a u32 header length, a JSON header (revision, count, ids, classNames, column table) and little-endian Float32 / Int8 columns at 4-byte boundaries (shared/diagram-columns.ts); ask with Accept' }] } },
   }, async (req, res, { params, query }) => {
-    const doc = await galaxies.diagram(params.projectId, query)
+    const doc = await diagramDocument(deps.galaxy, params.projectId, query)
     const binary = req.accepts(['application/json', DIAGRAM_COLUMNS_TYPE]) === DIAGRAM_COLUMNS_TYPE
     // each representation has its own validator, so a cache never answers one with the other
     res.setHeader('ETag', binary ? doc.etag.replace(/^"d/, '"b') : doc.etag)

@@ -1,6 +1,6 @@
 import express, { Router } from 'express'
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit'
-import type { AppDeps } from '../app.ts'
+import type { RouteDeps } from '../app.ts'
 import { authenticate, guardFor } from '../http/auth.ts'
 import { HttpProblem } from '../http/problem.ts'
 import { jsonBodies } from '../http/bulk-body.ts'
@@ -21,7 +21,7 @@ export const JSON_LIMIT = '32mb'
 export const AUTH_JSON_LIMIT = '16kb'
 
 /** Every /api route of one app; `registry` receives their specs (OpenAPI, bulk bodies). */
-export function buildRoutes(deps: AppDeps, registry: RouteRegistry): Router {
+export function buildRoutes(deps: RouteDeps, registry: RouteRegistry): Router {
   const router = Router()
   const v1: Routes = { router: Router(), guard: guardFor(deps.db), registry }
   router.use(openapiRoutes(registry))

@@ -4,7 +4,7 @@ import { randomUUID } from 'node:crypto'
 import { mkdirSync } from 'node:fs'
 import { join } from 'node:path'
 import { z } from 'zod'
-import type { AppDeps } from '../app.ts'
+import type { RouteDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route, type Routes } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
@@ -37,8 +37,8 @@ const RecordSchema = z.object({
   lines: GalaxyInputSchema.shape.lines, ew: GalaxyInputSchema.shape.ew.unwrap().nullable(), fwhm: GalaxyInputSchema.shape.fwhm.unwrap().nullable(),
 })
 
-export function intakeRoutes(r: Routes, deps: AppDeps) {
-  const intake = intakeService(deps.db, deps.mailer, deps.config.dataDir, deps.config.appUrl, deps.config.largeIntakeRows,
+export function intakeRoutes(r: Routes, deps: RouteDeps) {
+  const intake = intakeService(deps.galaxy, deps.mailer, deps.config.dataDir, deps.config.appUrl, deps.config.largeIntakeRows,
     { maxRows: deps.config.intakeMaxRows, inlineRows: deps.config.intakeInlineRows })
   const dir = join(deps.config.dataDir, 'uploads')
   mkdirSync(dir, { recursive: true })

@@ -6,6 +6,7 @@ import { forbidden } from '../http/problem.ts'
 import { accountsService } from '../services/accounts.service.ts'
 import { projectsService } from '../services/projects.service.ts'
 import { overview } from '../services/overview.service.ts'
+import { ProjectOverviewSchema } from '../../shared/results/responses.ts'
 import {
   InvitationCreateSchema, InvitationPathSchema, IntakeSchema, ListOf, MemberPathSchema, ProjectCreateSchema, ProjectPathSchema,
   ProjectSchema, ProjectUpdateSchema, RoleChangeSchema, RoleSchema,
@@ -47,7 +48,7 @@ export function projectsRoutes(r: Routes, deps: AppDeps) {
   async (req, res, { params: p }) => { await projects.remove(requireAuth(req), p.projectId); res.status(204).end() })
 
   route(r, { method: 'get', path: '/projects/:projectId/overview', operationId: 'getProjectOverview', tag, summary: 'Counts per class, histograms, latest intakes', access: 'viewer', params,
-    responses: { 200: { description: 'overview' } } },
+    responses: { 200: { description: 'overview', schema: ProjectOverviewSchema } } },
   async (req, res, { params: p }) => { res.json(await overview(deps.db, p.projectId, req.projectRole!)) })
 
   route(r, { method: 'get', path: '/projects/:projectId/intakes', operationId: 'listIntakes', tag: 'Intake', summary: 'Intake history', access: 'viewer', params,

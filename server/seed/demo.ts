@@ -4,21 +4,22 @@ import type { Db } from '../db/client.ts'
 import { intakes, memberships, projects, seedRuns, users, assumptionRevisions } from '../db/schema.ts'
 import { SettingsSchema } from '../../shared/schemas/galaxy.schema.ts'
 import { BCRYPT_COST } from '../services/accounts.service.ts'
-import { computeAll, writeGalaxies } from '../services/galaxies.service.ts'
+import { computeAll, writeGalaxies } from '../services/galaxy-ingest.service.ts'
+import { inProcessCompute, type ComputePool } from '../compute/pool.ts'
 import { DEMO_ACCOUNTS } from './demo-accounts.ts'
 import { generateLanternSurvey } from './lantern.ts'
 
 export const DEMO_PROJECT_NAME = 'Lantern Nuclei Survey'
 
 /** Seeds the invented demo project and accounts once per database (a second run does nothing). */
-export async function seedDemo(db: Db, log: (m: string) => void = () => {}) {
+export async function seedDemo(db: Db, log: (m: string) => void = () => {}, compute: ComputePool = inProcessCompute()) {
   const [done] = await db.select().from(seedRuns).where(eq(seedRuns.name, 'lantern-demo'))
   if (done) return false
   const started = Date.now()
   const hashes = await Promise.all(DEMO_ACCOUNTS.map((a) => bcrypt.hash(a.password, BCRYPT_COST)))
   const galaxies = generateLanternSurvey().map(({ population: _p, ...g }) => g)
   const settings = SettingsSchema.parse({})
-  const results = await computeAll(galaxies, settings)
+  const results = await computeAll(compute, galaxies, settings)
   await db.transaction(async (tx) => {
     await tx.execute(sql`lock table seed_runs in exclusive mode`)
     const [again] = await tx.select().from(seedRuns).where(eq(seedRuns.name, 'lantern-demo'))

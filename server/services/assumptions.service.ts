@@ -1,17 +1,18 @@
 import { desc, eq } from 'drizzle-orm'
-import type { Db } from '../db/client.ts'
 import { assumptionRevisions, jobs, projects, users } from '../db/schema.ts'
 import type { Auth } from '../http/auth.ts'
 import { SettingsSchema } from '../../shared/schemas/galaxy.schema.ts'
 import { parseRequest } from '../http/parse-request.ts'
 import { audit } from './audit.ts'
 import { dispatchJob, jobDto, type JobQueue } from './jobs.service.ts'
+import type { GalaxyContext } from './galaxy-context.ts'
 
 function revisionDto(r: typeof assumptionRevisions.$inferSelect, by: { id: string | null; name: string | null }) {
   return { revision: r.revision, settings: SettingsSchema.parse(r.settings), note: r.note, createdAt: r.createdAt.toISOString(), createdBy: by.id ? by : null }
 }
 
-export function assumptionsService(db: Db, queue: JobQueue | undefined) {
+export function assumptionsService(ctx: GalaxyContext, queue: JobQueue | undefined) {
+  const { db } = ctx
   return {
     async list(projectId: string) {
       const rows = await db.select({ r: assumptionRevisions, name: users.name }).from(assumptionRevisions)
@@ -34,7 +35,7 @@ export function assumptionsService(db: Db, queue: JobQueue | undefined) {
         await audit(tx, { action: 'assumptions-changed', actorUserId: auth.user.id, projectId, target: `revision ${revision}`, details: { settings, note } })
         return { rev, job }
       })
-      await dispatchJob(db, queue, out.job) // no queue: it runs in this process
+      await dispatchJob(ctx, queue, out.job) // no queue: it runs in this process
       return { revision: revisionDto(out.rev, { id: auth.user.id, name: auth.user.name }), job: jobDto(out.job) }
     },
   }

@@ -12,8 +12,11 @@ import type { Mailer } from '../lib/mailer.ts'
 import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
 import { IntakeOptionsSchema, type IntakeCounts, type IntakeOptions, type IntakeProblem } from '../../shared/schemas/intake.schema.ts'
 import {
-  anyKey, bumpDataVersion, computeAll, negativeFluxErrors, revisionsToCompute, upsertResults, writeIntakeChunk, writingGalaxies, type RevisionPlan,
-} from './galaxies.service.ts'
+  anyKey, bumpDataVersion, computeAll, negativeFluxErrors, revisionsToCompute, upsertResults, writeIntakeChunk, type RevisionPlan,
+} from './galaxy-ingest.service.ts'
+import { writingGalaxies } from './diagrams.service.ts'
+import type { GalaxyContext } from './galaxy-context.ts'
+import type { ComputePool } from '../compute/pool.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import { CSV_PARSE_OPTIONS, columnFor, rowToGalaxy, suggestMapping } from './csv-rows.ts'
 import { dispatchJob, errorText, jobDto, registerJobRunner, reportProgress, runJob, type JobLease } from './jobs.service.ts'
@@ -226,7 +229,7 @@ interface IntakeJobParams { intakeId: string; options: unknown }
  * Computes the galaxies this intake wrote under revisions that appeared (or finished recomputing)
  * while its transaction was open: the recompute that made them could not see rows not yet committed.
  */
-async function computeIntakeUnder(tx: Tx, projectId: string, intakeId: string, plans: RevisionPlan[]) {
+async function computeIntakeUnder(tx: Tx, pool: ComputePool, projectId: string, intakeId: string, plans: RevisionPlan[]) {
   let lastId = 0
   for (;;) {
     const rows = (await tx.execute<{ id: number; key: string; redshift: number | null; flux_unit: number; input: Pick<GalaxyInputDto, 'lines' | 'ew' | 'fwhm'> }>(sql`
@@ -235,7 +238,7 @@ async function computeIntakeUnder(tx: Tx, projectId: string, intakeId: string, p
     if (!rows.length) return
     const inputs: GalaxyInputDto[] = rows.map((r) => ({ id: r.key, ...(r.redshift !== null ? { redshift: r.redshift } : {}), fluxUnit: r.flux_unit, ...r.input }))
     for (const p of plans) {
-      const out = await computeAll(inputs, p.settings)
+      const out = await computeAll(pool, inputs, p.settings)
       await upsertResults(tx, projectId, p.revision, rows.map((r, i) => resultRow(r.id, inputs[i], out[i])), false)
     }
     lastId = rows[rows.length - 1].id
@@ -248,18 +251,19 @@ async function computeIntakeUnder(tx: Tx, projectId: string, intakeId: string, p
  * everything back, so no part of an intake is ever visible; progress is written outside the
  * transaction for the dashboard. The intake and the job are marked done in the same transaction.
  */
-async function runIntakeJob(lease: JobLease, job: typeof jobs.$inferSelect, db: Db) {
+async function runIntakeJob(lease: JobLease, job: typeof jobs.$inferSelect, galaxy: GalaxyContext) {
+  const { db } = galaxy
   const { intakeId, options } = job.params as IntakeJobParams
   const opts = IntakeOptionsSchema.parse(options)
   const [i] = await db.select().from(intakes).where(eq(intakes.id, intakeId))
   if (!i || i.status !== 'committing' || !i.filePath) throw new Error(`the intake is ${i?.status ?? 'gone'}`)
   const projectId = i.projectId
   const counts = zeroCounts()
-  const out = await writingGalaxies(db, projectId, () => lease.db.transaction(async (tx) => {
+  const out = await writingGalaxies(galaxy, projectId, () => lease.db.transaction(async (tx) => {
     const [locked] = await tx.select().from(intakes).where(eq(intakes.id, intakeId)).for('update')
     if (locked.status !== 'committing') throw new Error(`the intake is ${locked.status}`)
     const revisions = await revisionsToCompute(tx, projectId)
-    const ctx = { projectId, intakeId, onExisting: opts.onExisting, revisions, bumpVersion: false }
+    const ctx = { compute: galaxy.compute, projectId, intakeId, onExisting: opts.onExisting, revisions, bumpVersion: false }
     const res = await pass(tx, projectId, i.filePath!, opts, revisions[0].settings, {
       write: async (gals, rows) => addCounts(counts, await writeIntakeChunk(tx, { ...ctx, where: (k) => `/rows/${rows[k]}` }, gals)),
       progress: (done) => reportProgress(db, job.id, { done }),
@@ -269,7 +273,7 @@ async function runIntakeJob(lease: JobLease, job: typeof jobs.$inferSelect, db: 
     await tx.select({ id: projects.id }).from(projects).where(eq(projects.id, projectId)).for('update')
     const now = await revisionsToCompute(tx, projectId)
     const missing = now.filter((r) => !revisions.some((x) => x.revision === r.revision))
-    if (missing.length) await computeIntakeUnder(tx, projectId, intakeId, missing)
+    if (missing.length) await computeIntakeUnder(tx, galaxy.compute, projectId, intakeId, missing)
     await bumpDataVersion(tx, projectId)
     const [done] = await tx.update(intakes).set({
       status: 'committed', rowsTotal: res.total, rowsAccepted: res.total, rowsRejected: 0, revision: now[0].revision, finishedAt: sql`now()`,
@@ -314,7 +318,8 @@ registerJobRunner('intake', {
   },
 })
 
-export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: string, largeIntakeRows: number, limits: { maxRows: number; inlineRows: number } = { maxRows: 1_000_000, inlineRows: 10_000 }) {
+export function intakeService(galaxy: GalaxyContext, mailer: Mailer, dataDir: string, appUrl: string, largeIntakeRows: number, limits: { maxRows: number; inlineRows: number } = { maxRows: 1_000_000, inlineRows: 10_000 }) {
+  const { db } = galaxy
   const uploads = join(dataDir, 'uploads')
   configureIntakeJobs({ mailer, appUrl, largeIntakeRows })
 
@@ -387,11 +392,11 @@ export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: s
       })
       const by = { id: auth.user.id, name: auth.user.name }
       if (i.rowsTotal > limits.inlineRows) {
-        await dispatchJob(db, undefined, job)
+        await dispatchJob(galaxy, undefined, job)
         const [now] = await db.select().from(intakes).where(eq(intakes.id, intakeId))
         return { status: 202 as const, body: { intake: intakeDto(now, by), job: jobDto(job) } }
       }
-      await runJob(db, job.id)
+      await runJob(galaxy, job.id)
       const [done] = await db.select().from(intakes).where(eq(intakes.id, intakeId))
       const [j] = await db.select().from(jobs).where(eq(jobs.id, job.id))
       return { status: 200 as const, body: { intake: intakeDto(done, by), ...(done.report as IntakeCounts), job: jobDto(j) } }
@@ -413,7 +418,7 @@ export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: s
       const [i] = await db.select().from(intakes).where(and(eq(intakes.id, intakeId), eq(intakes.projectId, projectId)))
       if (!i) throw notFound('intake')
       if (i.rowsAccepted <= limits.inlineRows) {
-        const out = await writingGalaxies(db, projectId, () => db.transaction((tx) => undoIntake(tx, by, projectId, intakeId)))
+        const out = await writingGalaxies(galaxy, projectId, () => db.transaction((tx) => undoIntake(tx, galaxy.compute, by, projectId, intakeId)))
         return { status: 200 as const, body: { intake: intakeDto(out.intake, i.userId ? { id: i.userId, name: out.byName } : null), restored: out.restored, removed: out.removed } }
       }
       const job = await db.transaction(async (tx) => {
@@ -424,7 +429,7 @@ export function intakeService(db: Db, mailer: Mailer, dataDir: string, appUrl: s
         const [j] = await tx.insert(jobs).values({ projectId, kind: 'undo', status: 'queued', total: i.rowsAccepted, createdBy: by.id, params: { intakeId, by } }).returning()
         return j
       })
-      await dispatchJob(db, undefined, job)
+      await dispatchJob(galaxy, undefined, job)
       const [byRow] = i.userId ? await db.select({ name: users.name }).from(users).where(eq(users.id, i.userId)) : []
       return { status: 202 as const, body: { intake: intakeDto(i, i.userId ? { id: i.userId, name: byRow?.name ?? null } : null), job: jobDto(job) } }
     },
@@ -478,7 +483,7 @@ async function undoChecks(tx: Tx, projectId: string, intakeId: string, lock: boo
  * and every stored result of a restored galaxy is computed again from the restored inputs.
  * Refused (409) when a later intake has changed any of its galaxies: undo that one first.
  */
-async function undoIntake(tx: Tx, by: { id: string; name: string | null }, projectId: string, intakeId: string, progress?: (n: number) => Promise<void>) {
+async function undoIntake(tx: Tx, pool: ComputePool, by: { id: string; name: string | null }, projectId: string, intakeId: string, progress?: (n: number) => Promise<void>) {
   const { intake: i, created } = await undoChecks(tx, projectId, intakeId, true)
   await tx.execute(sql`
     update galaxies g set redshift = v.redshift, ra = v.ra, dec = v.dec, flux_unit = v.flux_unit, input = v.input,
@@ -486,7 +491,7 @@ async function undoIntake(tx: Tx, by: { id: string; name: string | null }, proje
     from galaxy_versions v where v.intake_id = ${intakeId}::uuid and v.galaxy_id = g.id`)
   await tx.execute(sql`delete from galaxies where id in (select galaxy_id from galaxy_intakes where intake_id = ${intakeId}::uuid and change = 'created')`)
   await progress?.(created)
-  const restored = await recomputeRestored(tx, projectId, intakeId, (n) => progress?.(created + n))
+  const restored = await recomputeRestored(tx, pool, projectId, intakeId, (n) => progress?.(created + n))
   await tx.delete(galaxyVersions).where(eq(galaxyVersions.intakeId, intakeId))
   await tx.delete(galaxyIntakes).where(eq(galaxyIntakes.intakeId, intakeId))
   await bumpDataVersion(tx, projectId)
@@ -502,17 +507,17 @@ async function undoIntake(tx: Tx, by: { id: string; name: string | null }, proje
 registerJobRunner('undo', {
   continues: false, // one transaction: after a crash nothing of it was kept
   inProcess: true,
-  async run(lease, job, db) {
+  async run(lease, job, galaxy) {
     const { intakeId, by } = job.params as { intakeId: string; by: { id: string; name: string | null } }
-    await writingGalaxies(db, job.projectId, () => lease.db.transaction(async (tx) => {
-      await undoIntake(tx, by, job.projectId, intakeId, (n) => reportProgress(db, job.id, { done: n }))
+    await writingGalaxies(galaxy, job.projectId, () => lease.db.transaction(async (tx) => {
+      await undoIntake(tx, galaxy.compute, by, job.projectId, intakeId, (n) => reportProgress(galaxy.db, job.id, { done: n }))
       await tx.update(jobs).set({ status: 'done', done: job.total, finishedAt: sql`now()`, heartbeatAt: sql`now()` }).where(eq(jobs.id, job.id))
     }))
   },
 })
 
 /** Every stored result of the galaxies an undo restored, computed again from the restored inputs. */
-async function recomputeRestored(tx: Tx, projectId: string, intakeId: string, progress?: (n: number) => Promise<void> | undefined): Promise<number> {
+async function recomputeRestored(tx: Tx, pool: ComputePool, projectId: string, intakeId: string, progress?: (n: number) => Promise<void> | undefined): Promise<number> {
   const revs = (await tx.execute<{ revision: number }>(sql`select distinct r.revision from results r
     where r.galaxy_id in (select galaxy_id from galaxy_versions where intake_id = ${intakeId}::uuid) order by 1`)).rows
   const plans = await Promise.all(revs.map((r) => revisionSettings(tx, projectId, r.revision)))
@@ -533,7 +538,7 @@ async function recomputeRestored(tx: Tx, projectId: string, intakeId: string, pr
     for (const p of plans) {
       const ids = have.get(p.revision)
       if (!ids?.size) continue
-      const out = await computeAll(inputs, p.settings)
+      const out = await computeAll(pool, inputs, p.settings)
       const resultRows = rows.flatMap((r, k) => (ids.has(r.id) ? [resultRow(r.id, inputs[k], out[k])] : []))
       await upsertResults(tx, projectId, p.revision, resultRows, false)
     }

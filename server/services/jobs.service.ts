@@ -8,7 +8,9 @@ import { galaxies, jobs, projects } from '../db/schema.ts'
 import { notFound } from '../http/problem.ts'
 import { logger } from '../lib/logger.ts'
 import { revisionSettings } from './projects.service.ts'
-import { computeRows, upsertResultsJson, warmDiagramSoon } from './galaxies.service.ts'
+import { computeRows, upsertResultsJson } from './galaxy-ingest.service.ts'
+import { warmDiagramSoon } from './diagrams.service.ts'
+import type { GalaxyContext } from './galaxy-context.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 
 export const RECOMPUTE_QUEUE = 'recompute'
@@ -110,8 +112,8 @@ async function leaseAlive(lease: JobLease) {
 // ---- running jobs -------------------------------------------------------------------------------
 
 export interface JobRunner {
-  /** Does the work; throws to fail the job. The job row is `running` when it starts. */
-  run(lease: JobLease, job: JobRow, db: Db): Promise<void>
+  /** Does the work; throws to fail the job. The job row is `running` when it starts. `ctx.db` is the app's pool, not the lease. */
+  run(lease: JobLease, job: JobRow, ctx: GalaxyContext): Promise<void>
   /** Whether this process can run it (an intake job needs the staged file on this machine's disk). */
   runnableHere?(job: JobRow, db: Db): Promise<boolean>
   /** Called when the job fails (after its row says so), e.g. to reopen an intake. */
@@ -139,7 +141,8 @@ export function errorText(err: unknown): string {
  * as resumed and continues (see `JobRunner.continues`). `finalAttempt: false` leaves a failure
  * queued for the queue's retry.
  */
-export async function runJob(db: Db, jobId: string, opts: { finalAttempt?: boolean } = {}): Promise<'ran' | 'busy' | 'finished'> {
+export async function runJob(ctx: GalaxyContext, jobId: string, opts: { finalAttempt?: boolean } = {}): Promise<'ran' | 'busy' | 'finished'> {
+  const { db } = ctx
   const lease = await takeLease(db, jobId)
   if (!lease) return 'busy'
   let job: JobRow | undefined
@@ -152,7 +155,7 @@ export async function runJob(db: Db, jobId: string, opts: { finalAttempt?: boole
       status: 'running', heartbeatAt: sql`now()`,
       ...(job.status === 'running' ? resumedSet(runner, job) : {}),
     }).where(eq(jobs.id, jobId)).returning()
-    await runner.run(lease, started, db)
+    await runner.run(lease, started, ctx)
     return 'ran'
   } catch (err) {
     if (!job || !(await leaseAlive(lease))) throw err // another worker resumes it
@@ -174,10 +177,10 @@ const resumedSet = (runner: JobRunner, job: JobRow) => ({
 })
 
 /** Starts a job: through the queue when there is one (and the kind allows), else in this process. */
-export async function dispatchJob(db: Db, queue: JobQueue | undefined, job: Pick<JobRow, 'id' | 'kind'>) {
+export async function dispatchJob(ctx: GalaxyContext, queue: JobQueue | undefined, job: Pick<JobRow, 'id' | 'kind'>) {
   const runner = runners.get(job.kind)
   if (queue && !runner?.inProcess) { await queue.enqueue(job.kind, { jobId: job.id }); return }
-  runJob(db, job.id).catch((err) => logger.error({ err: errorText(err), jobId: job.id }, `${job.kind} job failed`))
+  runJob(ctx, job.id).catch((err) => logger.error({ err: errorText(err), jobId: job.id }, `${job.kind} job failed`))
 }
 
 /**
@@ -186,7 +189,8 @@ export async function dispatchJob(db: Db, queue: JobQueue | undefined, job: Pick
  * worker, which continues from the last committed chunk. Called at start-up and every 30 s, so a
  * surviving process also resumes the jobs of a crashed peer. Returns the ids resumed.
  */
-export async function resumeOrphanedJobs(db: Db, queue?: JobQueue): Promise<string[]> {
+export async function resumeOrphanedJobs(ctx: GalaxyContext, queue?: JobQueue): Promise<string[]> {
+  const { db } = ctx
   const open = await db.select().from(jobs).where(inArray(jobs.status, ['queued', 'running'])).orderBy(asc(jobs.createdAt))
   const resumed: string[] = []
   for (const job of open) {
@@ -212,17 +216,17 @@ export async function resumeOrphanedJobs(db: Db, queue?: JobQueue): Promise<stri
     }
     logger.info({ jobId: job.id, kind: job.kind, done: job.done, total: job.total }, 'resuming a job whose worker had gone')
     resumed.push(job.id)
-    await dispatchJob(db, queue, job)
+    await dispatchJob(ctx, queue, job)
   }
   return resumed
 }
 
 /** Sweeps for orphaned jobs now and every 30 s, until `stop`. */
-export function watchOrphanedJobs(db: Db, queue?: JobQueue) {
+export function watchOrphanedJobs(ctx: GalaxyContext, queue?: JobQueue) {
   let stopped = false
   const sweep = () => {
     if (stopped) return
-    resumeOrphanedJobs(db, queue).catch((err) => { if (!stopped) logger.warn({ err: errorText(err) }, 'looking for orphaned jobs failed') })
+    resumeOrphanedJobs(ctx, queue).catch((err) => { if (!stopped) logger.warn({ err: errorText(err) }, 'looking for orphaned jobs failed') })
   }
   sweep()
   const timer = setInterval(sweep, SWEEP_MS)
@@ -243,7 +247,8 @@ export async function reportProgress(db: Db, jobId: string, set: { done: number;
  * resumed job continues after the last committed chunk; results are upserted, so a repeated chunk
  * only overwrites what it wrote.
  */
-async function recompute(lease: JobLease, job: JobRow, db: Db) {
+async function recompute(lease: JobLease, job: JobRow, ctx: GalaxyContext) {
+  const { db } = ctx
   const { settings } = await revisionSettings(db, job.projectId, job.revision!)
   let lastId = job.lastId, done = job.done
   const [{ n }] = await db.select({ n: sql<number>`count(*)::int` }).from(galaxies)
@@ -257,7 +262,7 @@ async function recompute(lease: JobLease, job: JobRow, db: Db) {
       id: r.key, ...(r.redshift !== null ? { redshift: r.redshift } : {}), fluxUnit: r.fluxUnit, ...(r.input as Pick<GalaxyInputDto, 'lines' | 'ew' | 'fwhm'>),
     }))
     // the compute threads also serialise the stored rows: the event loop only joins strings
-    const results = await computeRows(inputs, settings)
+    const results = await computeRows(ctx.compute, inputs, settings)
     done += rows.length
     lastId = rows[rows.length - 1].id
     await lease.db.transaction(async (tx) => {
@@ -269,7 +274,7 @@ async function recompute(lease: JobLease, job: JobRow, db: Db) {
     await tx.update(projects).set({ resultsRevision: sql`greatest(${projects.resultsRevision}, ${job.revision})` }).where(eq(projects.id, job.projectId))
     await tx.update(jobs).set({ status: 'done', done, total: done, finishedAt: sql`now()` }).where(eq(jobs.id, job.id))
   })
-  warmDiagramSoon(db, job.projectId)
+  warmDiagramSoon(ctx, job.projectId)
 }
 
 registerJobRunner('recompute', { run: recompute, continues: true })
@@ -278,11 +283,11 @@ registerJobRunner('recompute', { run: recompute, continues: true })
  * Subscribes this process as a worker of the recompute queue, and resumes — now and every 30 s —
  * the jobs whose worker has gone (a crash, a restart: see `resumeOrphanedJobs`).
  */
-export async function startRecomputeWorker(boss: PgBoss, db: Db) {
+export async function startRecomputeWorker(boss: PgBoss, ctx: GalaxyContext) {
   await boss.work<{ jobId: string }>(RECOMPUTE_QUEUE, { pollingIntervalSeconds: 1, batchSize: 1, includeMetadata: true }, async ([job]) => {
-    await runJob(db, job.data.jobId, { finalAttempt: job.retryCount >= job.retryLimit })
+    await runJob(ctx, job.data.jobId, { finalAttempt: job.retryCount >= job.retryLimit })
   })
-  const watch = watchOrphanedJobs(db, bossQueue(boss))
+  const watch = watchOrphanedJobs(ctx, bossQueue(boss))
   boss.once('stopped', () => watch.stop())
   return watch
 }

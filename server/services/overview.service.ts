@@ -1,8 +1,14 @@
 import { sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import type { Role } from '../http/auth.ts'
-import { DIAGRAM_CLASSES, CLASS_DIAGRAMS } from '../../shared/vocabulary/classes.ts'
+import { DIAGRAM_CLASSES } from '../../shared/vocabulary/classes.ts'
 import { projectsService } from './projects.service.ts'
+import { RESULT_FIELDS } from '../../shared/results/registry.ts'
+
+/** The fields the overview draws a histogram of (shared/results/registry.ts `histogram`). */
+const HISTOGRAM_FIELDS = RESULT_FIELDS.filter((f) => f.histogram && f.stored?.table === 'results')
+/** Counts per class of each class field. */
+const CLASS_FIELDS = RESULT_FIELDS.filter((f) => f.kind === 'class')
 
 /** Equal-width histogram of a results column computed in SQL (width_bucket). */
 async function histogram(db: Db, projectId: string, revision: number, column: string, lo: number, hi: number, bins: number, log = false) {
@@ -21,20 +27,23 @@ export async function overview(db: Db, projectId: string, role: Role) {
   const project = await projects.get(projectId, role)
   const revision = project.resultsRevision
   const classCounts: Record<string, Record<string, number>> = {}
-  for (const d of CLASS_DIAGRAMS) {
-    const col = sql.raw(`class_${d}`)
+  for (const f of CLASS_FIELDS) {
+    const d = f.diagram!
+    const col = sql.raw(f.stored!.column)
     const rows = await db.execute<{ c: number; n: number }>(sql`select ${col} as c, count(*)::int as n from results where project_id = ${projectId}::uuid and revision = ${revision} group by 1`)
     classCounts[d] = Object.fromEntries(DIAGRAM_CLASSES[d].map((name) => [name, 0]))
     for (const { c, n } of rows.rows) classCounts[d][DIAGRAM_CLASSES[d][c] ?? 'unclassified'] += n
+  }
+  const histograms: Record<string, Awaited<ReturnType<typeof histogram>>> = {}
+  for (const f of HISTOGRAM_FIELDS) {
+    const h = f.histogram!
+    histograms[f.key] = await histogram(db, projectId, revision, f.stored!.column, h.lo, h.hi, h.bins, h.log)
   }
   return {
     project,
     revision,
     classCounts,
-    histograms: {
-      ebv: await histogram(db, projectId, revision, 'ebv', 0, 1.5, 30),
-      neSii: await histogram(db, projectId, revision, 'ne_sii', 0, 4, 32, true),
-    },
+    histograms,
     latestIntakes: await projects.intakes(projectId, 5),
   }
 }

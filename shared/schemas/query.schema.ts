@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { DIAGRAM_CLASSES } from '../vocabulary/classes.ts'
 import { positiveInt4, textLine } from './text.ts'
+import { CLASS_FILTERS, RANGE_KEYS, SORT_KEYS, type ClassParam } from '../results/registry.ts'
 
 /** Query-string list: repeated parameter or comma-separated. */
 const list = <const T extends readonly string[]>(values: T) =>
@@ -9,8 +10,8 @@ const list = <const T extends readonly string[]>(values: T) =>
 
 const num = z.coerce.number().refine(Number.isFinite, 'must be a finite number')
 
-export const RANGE_FIELD_NAMES = ['redshift', 'ebv', 'av', 'neSii', 'neOii', 'teOiii', 'n2Pp04', 'o3n2Pp04', 'sfrHalpha',
-  'niiHa', 'oiiiHb', 'siiHa', 'oiHa', 'ewHalpha', 'snrMin'] as const
+/** `?range=` fields: the registry's fields with `range` (shared/results/registry.ts). */
+export const RANGE_FIELD_NAMES = RANGE_KEYS
 
 const DECIMAL = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/
 
@@ -31,26 +32,30 @@ const RangeSchema = textLine().max(200).transform((s, ctx) => {
     ctx.addIssue({ code: 'custom', message: 'range must be field:min:max with finite decimal numbers (either may be empty)' })
     return z.NEVER
   }
-  return { field: field as (typeof RANGE_FIELD_NAMES)[number], min: lo, max: hi }
+  return { field, min: lo, max: hi }
 })
 
+const classList = (names: readonly [string, ...string[]]) => list(names)
+/** One list of class names per class field of the registry (`class`, `classNii`, …). */
+const classFilters = Object.fromEntries(CLASS_FILTERS.map((c) => {
+  const names = classList(DIAGRAM_CLASSES[c.diagram])
+  return [c.param, c.param === 'class' ? names.meta({ description: 'overall class(es), comma-separated or repeated' }) : names]
+})) as Record<ClassParam, ReturnType<typeof classList>>
+
 export const GalaxyFilterSchema = z.object({
-  class: list(DIAGRAM_CLASSES.overall).meta({ description: 'overall class(es), comma-separated or repeated' }),
-  classNii: list(DIAGRAM_CLASSES.nii),
-  classSii: list(DIAGRAM_CLASSES.sii),
-  classOi: list(DIAGRAM_CLASSES.oi),
-  classWhan: list(DIAGRAM_CLASSES.whan),
+  ...classFilters,
   q: textLine().max(120).optional().meta({ description: 'text contained in the galaxy ID' }),
   zMin: num.optional(),
   zMax: num.optional(),
   minSnr: num.optional().meta({ description: 'minimum S/N of both Hα and Hβ' }),
   range: z.preprocess((v) => (v === undefined ? undefined : Array.isArray(v) ? v : [v]), z.array(RangeSchema).optional())
-    .meta({ description: 'field:min:max, repeatable; either bound may be empty' }),
+    .meta({ description: `field:min:max, repeatable; either bound may be empty. Fields: ${RANGE_FIELD_NAMES.join(', ')}` }),
   revision: positiveInt4().optional().meta({ description: 'assumptions revision (default: the latest complete one)' }),
 })
 export type GalaxyFilter = z.output<typeof GalaxyFilterSchema>
 
-export const SORT_FIELD_NAMES = ['id', 'redshift', 'ebv', 'av', 'neSii', 'teOiii', 'n2Pp04', 'o3n2Pp04', 'sfrHalpha', 'niiHa', 'oiiiHb', 'siiHa', 'oiHa', 'flagCount', 'classOverall'] as const
+/** `?sort=` fields (and `-field` for descending): the registry's fields with `sort`. */
+export const SORT_FIELD_NAMES = SORT_KEYS
 
 export const GalaxyListQuerySchema = GalaxyFilterSchema.extend({
   limit: z.coerce.number().int().min(1).max(1000).default(50),

@@ -9,7 +9,7 @@ import { fieldErrors } from '../../server/http/parse-request.ts'
 import { BULK_INLINE_BYTES, bulkValue } from '../../server/http/bulk-body.ts'
 import { parseBodyTask } from '../../server/compute/parse-body.task.ts'
 import { BATCH_HASHES } from '../../server/routes/galaxies.routes.ts'
-import { requestHash } from '../../server/services/galaxies.service.ts'
+import { requestHash } from '../../server/services/galaxy-ingest.service.ts'
 
 /**
  * Bulk bodies (diagnostics, batch) above BULK_INLINE_BYTES are parsed, validated and hashed on a

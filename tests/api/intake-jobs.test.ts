@@ -191,12 +191,12 @@ describe('jobs whose worker has gone', () => {
     const worker = new pg.Client({ connectionString: t.databaseUrl })
     await worker.connect()
     await worker.query('select pg_advisory_lock($1, hashtext($2))', [0x52474a42, jobId])
-    expect(await resumeOrphanedJobs(t.db)).toEqual([])
+    expect(await resumeOrphanedJobs(t.galaxy)).toEqual([])
     expect((await get(`/jobs/${jobId}`)).body).toMatchObject({ status: 'running', resumeCount: 0 })
     // … until it dies: its session ends, the lock goes with it
     await worker.end()
 
-    expect(await resumeOrphanedJobs(t.db)).toEqual([jobId])
+    expect(await resumeOrphanedJobs(t.galaxy)).toEqual([jobId])
     const marked = (await get(`/jobs/${jobId}`)).body
     expect(marked).toMatchObject({ resumeCount: 1, resumedFrom: 2000 })
     expect(marked.resumedAt).not.toBeNull()
@@ -218,11 +218,11 @@ describe('jobs whose worker has gone', () => {
     const [{ id: jobId }] = await q(`insert into jobs (project_id, kind, status, total, done, params, heartbeat_at)
       values ($1, 'intake', 'running', 4500, 4000, $2, now() - interval '1 minute') returning id`, [projectId, JSON.stringify({ intakeId, options })])
     expect(await count('RES-')).toBe(0)
-    expect(await resumeOrphanedJobs(t.db)).toEqual([jobId])
+    expect(await resumeOrphanedJobs(t.galaxy)).toEqual([jobId])
     const { job } = await follow(jobId)
     expect(job).toMatchObject({ status: 'done', done: 4500, resumeCount: 1, resumedFrom: 0, intakeId })
     expect(await count('RES-')).toBe(4500)
     expect((await get(`/intakes/${intakeId}`)).body).toMatchObject({ status: 'committed', rowsAccepted: 4500 })
-    expect(await resumeOrphanedJobs(t.db)).toEqual([]) // nothing left to resume
+    expect(await resumeOrphanedJobs(t.galaxy)).toEqual([]) // nothing left to resume
   })
 })

@@ -9,12 +9,16 @@ import { outboxMessages } from '../../server/db/schema.ts'
 import { freshDatabaseUrl } from './db.ts'
 import { startJobQueue, startRecomputeWorker } from '../../server/services/jobs.service.ts'
 import { createComputePool, type ComputePool } from '../../server/compute/pool.ts'
+import { DiagramCache } from '../../server/services/diagram-cache.ts'
+import { galaxyContext, type GalaxyContext } from '../../server/services/galaxy-context.ts'
 
 export interface TestApp {
   app: ReturnType<typeof createApp>
   db: Db
   databaseUrl: string
   compute: ComputePool
+  /** the app's galaxy context (database, compute threads, diagram cache), which its recompute worker shares */
+  galaxy: GalaxyContext
   /** every captured message, once the mail queue has delivered what it holds */
   mails: () => Promise<Array<typeof outboxMessages.$inferSelect>>
   close: () => Promise<void>
@@ -39,16 +43,18 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { job
   const smtp = smtpDelivery(catcher.url)
   const mailer = queuedMailer(opts.delivery ? opts.delivery(smtp.deliver) : smtp.deliver, { onClose: smtp.close })
   const config = loadConfig({ ...process.env, JWT_SECRET: 'test-secret-not-for-production', APP_URL: 'http://127.0.0.1:8080', AUTH_RATE_LIMIT: '1000', DIAGRAM_WARMUP_MS: '0', ...env })
-  const jobs = opts.jobs ? await startJobQueue(databaseUrl) : undefined
-  if (jobs) await startRecomputeWorker(jobs.boss, db)
   // the runtime's worker threads, so the tests exercise the same path as the server
   const compute = createComputePool(config)
-  const app = createApp({ db, config, mailer, jobs: jobs?.queue, compute })
+  const diagrams = new DiagramCache(config.diagramWarmupMs)
+  const galaxy = galaxyContext({ db, config, compute, diagrams })
+  const jobs = opts.jobs ? await startJobQueue(databaseUrl) : undefined
+  if (jobs) await startRecomputeWorker(jobs.boss, galaxy)
+  const app = createApp({ db, config, mailer, jobs: jobs?.queue, compute, diagrams })
   const mails = async () => { await mailer.idle(); return db.select().from(outboxMessages).orderBy(outboxMessages.id) }
   mailboxes.set(app, mails)
   return {
-    app, db, databaseUrl, compute, mails,
-    close: async () => { mailboxes.delete(app); await jobs?.queue.stop(); await compute.close(); await mailer.idle(); mailer.close(); await catcher.close(); await db.$client.end() },
+    app, db, databaseUrl, compute, galaxy, mails,
+    close: async () => { mailboxes.delete(app); await jobs?.queue.stop(); diagrams.close(); await compute.close(); await mailer.idle(); mailer.close(); await catcher.close(); await db.$client.end() },
   }
 }
 
