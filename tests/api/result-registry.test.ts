@@ -5,7 +5,7 @@ import { Ajv2020 } from 'ajv/dist/2020.js'
 import { signedInAgent, startTestApp, type TestApp } from '../helpers/app.ts'
 import { galaxy } from '../helpers/fixtures.ts'
 import { generateLanternSurvey } from '../../server/seed/lantern.ts'
-import { CLASS_NAMES } from '../../shared/schemas/classes.ts'
+import { DIAGRAM_CLASSES } from '../../shared/vocabulary/classes.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 import { RESULT_FIELDS, type ResultField } from '../../shared/results/registry.ts'
 import { EXPORT_COLUMNS } from '../../shared/results/export-columns.ts'
@@ -69,7 +69,7 @@ describe('storage', () => {
         const src = { galaxy: { key: row.key, ...pick(FROM_SENT.get(row.key)!) }, input: row.input, result: row.result }
         const v = rawValue(f, src)
         const where = `${f.key} of ${row.key}`
-        if (f.kind === 'class') expect(CLASS_NAMES[f.diagram!][row.v as number], where).toBe(v ?? 'unclassified')
+        if (f.kind === 'class') expect(DIAGRAM_CLASSES[f.diagram!][row.v as number], where).toBe(v ?? 'unclassified')
         else if (f.kind === 'flags') expect(row.v, where).toBe((v as string[]).length)
         else if (f.kind === 'limit') expect([((row.v as number) & f.stored!.bits!.upper) !== 0, ((row.v as number) & f.stored!.bits!.lower) !== 0], where).toEqual([v === 'upper', v === 'lower'])
         else if (f.kind === 'text') expect(row.v, where).toBe(v)
@@ -162,7 +162,7 @@ describe('list filters and sort', () => {
     for (const f of RESULT_FIELDS.filter((x) => x.classParam)) {
       const rows = await stored(f)
       const counts = new Map<string, number>()
-      for (const r of rows) { const n = CLASS_NAMES[f.diagram!][r.v as number]; counts.set(n, (counts.get(n) ?? 0) + 1) }
+      for (const r of rows) { const n = DIAGRAM_CLASSES[f.diagram!][r.v as number]; counts.set(n, (counts.get(n) ?? 0) + 1) }
       const [name, n] = [...counts].sort((a, b) => b[1] - a[1])[0]
       const res = await get('/galaxies', { [f.classParam!]: name, limit: 1000 })
       expect([res.status, res.body.total], f.key).toEqual([200, n])
@@ -189,8 +189,7 @@ describe('OpenAPI', () => {
       let node = summary
       for (const k of f.list!) { expect(node.properties, f.key).toHaveProperty(k); node = node.properties[k] }
     }
-    // formats (uuid, date-time) are not checked here: ajv ships without them, and the shapes are what this test is about
-    const ajv = new Ajv2020({ strict: false, allErrors: true, validateFormats: false })
+    const ajv = new Ajv2020({ strict: false, allErrors: true }).addFormat('uuid', /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i)
     const check = async (docPath: string, path: string) => {
       const res = await get(path)
       expect(res.status, path).toBe(200)

@@ -2,10 +2,10 @@ import { describe, expect, it } from 'vitest'
 import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import { getTableConfig } from 'drizzle-orm/pg-core'
-import { CLASS_NAMES } from '../../../shared/schemas/classes.ts'
+import { DIAGRAM_CLASSES } from '../../../shared/vocabulary/classes.ts'
 import type { GalaxyInputDto } from '../../../shared/schemas/galaxy.schema.ts'
 import { GalaxyFilterSchema, GalaxyListQuerySchema, RANGE_FIELD_NAMES, SORT_FIELD_NAMES } from '../../../shared/schemas/query.schema.ts'
-import { diagnoseMany, type GalaxyResult } from '../../../shared/science.ts'
+import { diagnoseMany, type GalaxyInput, type GalaxyResult } from '../../../shared/science.ts'
 import { SettingsSchema } from '../../../shared/schemas/galaxy.schema.ts'
 import { FIELD_GROUPS, LIST_ORDER, RESULT_FIELDS, resultField } from '../../../shared/results/registry.ts'
 import { EXPORT_COLUMNS } from '../../../shared/results/export-columns.ts'
@@ -30,7 +30,7 @@ const g: GalaxyInputDto = {
 /** The same with [O III] not detected: an upper limit on the ratio's numerator. */
 const limited: GalaxyInputDto = { ...g, id: 'REG-2', lines: { ...g.lines, oiii_5007: { upperLimit: 9 } } }
 const settings = SettingsSchema.parse({})
-const [r, rLimited] = diagnoseMany([g, limited], settings) as GalaxyResult[]
+const [r, rLimited] = diagnoseMany([g, limited] as GalaxyInput[], settings) as GalaxyResult[]
 
 describe('the registry itself', () => {
   it('keys and export names are unique, and every field is exported or says why not', () => {
@@ -87,8 +87,8 @@ describe('storage', () => {
     expect(row.ew_halpha).toBe(24.5) // the input as given
     expect(row.limits).toBe(0)
     expect(row.flag_count).toBe(r.flags.length)
-    for (const d of Object.keys(CLASS_NAMES) as Array<keyof typeof CLASS_NAMES>) {
-      expect(CLASS_NAMES[d][row[`class_${d}`] as number]).toBe(r.classes[d]) // the code is the index (shared/schemas/classes.ts)
+    for (const d of Object.keys(DIAGRAM_CLASSES) as Array<keyof typeof DIAGRAM_CLASSES>) {
+      expect(DIAGRAM_CLASSES[d][row[`class_${d}`] as number]).toBe(r.classes[d]) // the code is the index (shared/vocabulary/classes.ts)
     }
     expect(row.ebv).toBe(r.extinction.ebv)
     expect(row.ne_sii).toBe(r.density.sii!.ne)
@@ -139,7 +139,7 @@ describe('lists', () => {
     for (const k of RANGE_FIELD_NAMES) expect(GalaxyFilterSchema.parse({ range: `${k}:1:2` }).range).toEqual([{ field: k, min: 1, max: 2 }])
     expect(GalaxyFilterSchema.safeParse({ range: 'teNii:1:2' }).success).toBe(false)
     for (const f of RESULT_FIELDS.filter((x) => x.classParam)) {
-      const name = CLASS_NAMES[f.diagram!][0]
+      const name = DIAGRAM_CLASSES[f.diagram!][0]
       expect((GalaxyFilterSchema.parse({ [f.classParam!]: name }) as Record<string, unknown>)[f.classParam!]).toEqual([name])
     }
   })
@@ -171,7 +171,7 @@ describe('OpenAPI (the committed openapi/openapi.json, which tests/api/openapi.t
     }
     for (const k of SORT_FIELD_NAMES) expect(param('sort').schema.enum).toEqual(expect.arrayContaining([k, `-${k}`]))
     for (const k of RANGE_FIELD_NAMES) expect(param('range').schema.description).toContain(k)
-    for (const f of RESULT_FIELDS.filter((x) => x.classParam)) expect(param(f.classParam!).schema.items.enum, f.key).toEqual([...CLASS_NAMES[f.diagram!]])
+    for (const f of RESULT_FIELDS.filter((x) => x.classParam)) expect(param(f.classParam!).schema.items.enum, f.key).toEqual([...DIAGRAM_CLASSES[f.diagram!]])
   })
 
   it('the list, the detail and the overview answer with named schemas', () => {
