@@ -113,14 +113,24 @@ export function voigtK(x: number, y: number): number {
 }
 
 /**
- * Scaled complementary error function erfcx(x) = exp(x²) erfc(x) = w(ix) for x ≥ 0.
+ * Scaled complementary error function erfcx(x) = exp(x²) erfc(x) = w(ix) for x ≥ 0. On the imaginary
+ * axis Z = (L − x)/(L + x) is real, so the series is a real polynomial (and the continued fraction a
+ * real one): the same approximation as `faddeeva`, at a quarter of the cost.
  *
  * @param x  ≥ 0
  * @example erfcx(0) // ≈ 1.0000000000
  */
 export function erfcx(x: number): number {
-  faddeevaInto(0, x, scratch)
-  return scratch[0]
+  if (x >= 6) {
+    let t = x
+    for (let k = FRACTION_DEPTH; k >= 1; k--) t = x + (0.5 * k) / t
+    return INV_SQRT_PI / t
+  }
+  const q = 1 / (L + x)
+  const z = (L - x) * q
+  let p = A[N]
+  for (let n = N - 1; n >= 1; n--) p = p * z + A[n]
+  return q * (2 * p * q + INV_SQRT_PI)
 }
 
 /**

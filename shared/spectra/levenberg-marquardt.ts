@@ -102,7 +102,11 @@ function dampedStep(alpha: Float64Array, beta: Float64Array, free: Uint8Array, l
   const a = new Matrix(m, m)
   const b = new Matrix(m, 1)
   for (let r = 0; r < m; r++) {
-    for (let c = 0; c < m; c++) a.set(r, c, alpha[idx[r] * k + idx[c]] * d[r] * d[c])
+    for (let c = r + 1; c < m; c++) {
+      const v = alpha[idx[r] * k + idx[c]] * d[r] * d[c]
+      a.set(r, c, v)
+      a.set(c, r, v)
+    }
     a.set(r, r, 1 + lambda)
     b.set(r, 0, beta[idx[r]] * d[r])
   }
@@ -123,7 +127,14 @@ export function covarianceFromAlpha(alpha: Float64Array, k: number): Float64Arra
   if (m === 0) return cov
   const d = idx.map((j) => 1 / Math.sqrt(alpha[j * k + j]))
   const a = new Matrix(m, m)
-  for (let r = 0; r < m; r++) for (let c = 0; c < m; c++) a.set(r, c, alpha[idx[r] * k + idx[c]] * d[r] * d[c])
+  for (let r = 0; r < m; r++) {
+    a.set(r, r, 1)
+    for (let c = r + 1; c < m; c++) {
+      const v = alpha[idx[r] * k + idx[c]] * d[r] * d[c]
+      a.set(r, c, v)
+      a.set(c, r, v)
+    }
+  }
   const chol = new CholeskyDecomposition(a)
   const inv = chol.isPositiveDefinite() ? chol.solve(Matrix.eye(m)) : pseudoInverse(a, 1e-12)
   for (let r = 0; r < m; r++) for (let c = 0; c < m; c++) cov[idx[r] * k + idx[c]] = inv.get(r, c) * d[r] * d[c]

@@ -129,8 +129,8 @@ export interface SpectrumModel {
   problem: LeastSquaresProblem
   /** starting vector: side-band continua, fluxes 0, kinematics at the middle of the usual range */
   initial(): Float64Array
-  /** solve the linear parameters (continua, fluxes, equivalent widths) for the kinematics in p; returns χ² */
-  solveLinear(p: Float64Array): number
+  /** solve the linear parameters (continua, fluxes, equivalent widths) for the kinematics in p, in every window or only in those of one group; returns χ² of those windows */
+  solveLinear(p: Float64Array, group?: number): number
   chi2(p: Float64Array): number
   evaluate(p: Float64Array, out: Float64Array): void
 }
@@ -196,8 +196,8 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
   windows.forEach((w, wi) => {
     for (const line of w.lines) {
       if (line.parent) continue
-      for (let k = 0; k < config.components; k++) fluxParam.set(fluxKey(line.id, k), add(`${line.id}.f${k}`, -Infinity, Infinity, w.start, w.end))
-      if (line.id === 'halpha' && broadGroup >= 0) fluxParam.set(fluxKey('halpha', -1), add('halpha_broad.f', -Infinity, Infinity, w.start, w.end))
+      for (let k = 0; k < config.components; k++) fluxParam.set(fluxKey(line.id, k), add(`${line.id}.f${k}`, 0, Infinity, w.start, w.end))
+      if (line.id === 'halpha' && broadGroup >= 0) fluxParam.set(fluxKey('halpha', -1), add('halpha_broad.f', 0, Infinity, w.start, w.end))
     }
     for (const line of w.lines) {
       const owner = line.parent ?? line.id
@@ -215,8 +215,8 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
   let ewParam: { d2: number; d1: number } | null = null
   if (nadWindow >= 0) {
     const w = windows[nadWindow]
-    const d2 = add('nad.d2', -Infinity, Infinity, w.start, w.end)
-    const d1 = add('nad.d1', -Infinity, Infinity, w.start, w.end)
+    const d2 = add('nad.d2', 0, Infinity, w.start, w.end)
+    const d1 = add('nad.d1', 0, Infinity, w.start, w.end)
     ewParam = { d2, d1 }
     for (const a of w.absorption) {
       terms.push({ window: nadWindow, group: absGroup, param: a.key === 'd2' ? d2 : d1, mult: 1, absorption: true,
@@ -229,6 +229,9 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
   for (const w of windows) for (let j = w.start; j < w.end; j++) t[j] = (lambda[j] - w.mid) / w.half
   const termsOfGroup = groups.map((_, gi) => terms.filter((tm) => tm.group === gi))
   const termsOfWindow = windows.map((_, wi) => terms.filter((tm) => tm.window === wi))
+  /** the linear parameters of each window: c₀, c₁, then its flux / EW parameters; and each term's slot among them */
+  const linearParams = windows.map((_, wi) => [continuum[wi][0], continuum[wi][1], ...new Set(termsOfWindow[wi].map((tm) => tm.param))])
+  const ownSlot = windows.map((_, wi) => termsOfWindow[wi].map((tm) => linearParams[wi].indexOf(tm.param)))
 
   const profileInto = (tm: Term, v: number, s: number, g: number, out: Float64Array): void => {
     const w = windows[tm.window]
@@ -252,7 +255,12 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     const gr = groups[gi]
     return [p[gr.v], p[gr.s], gr.g >= 0 ? p[gr.g] : 0]
   }
+  const lastP = new Float64Array(k).fill(NaN)
   const profiles = (p: Float64Array): void => {
+    let same = true
+    for (let j = 0; j < k; j++) if (p[j] !== lastP[j]) { same = false; break }
+    if (same) return
+    lastP.set(p)
     for (const tm of terms) {
       const [v, s, g] = kin(p, tm.group)
       profileInto(tm, v, s, g, tm.buf)
@@ -263,8 +271,9 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     for (const tm of termsOfWindow[wi]) if (tm.absorption) a += p[tm.param] * tm.buf[j]
     return a
   }
-  const assemble = (p: Float64Array, out: Float64Array): void => {
-    windows.forEach((w, wi) => {
+  const assembleWindow = (p: Float64Array, wi: number, out: Float64Array): void => {
+    {
+      const w = windows[wi]
       const [i0, i1] = continuum[wi]
       const c0 = p[i0]
       const c1 = p[i1]
@@ -276,7 +285,10 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
         const b = tm.buf
         for (let j = w.start; j < w.end; j++) out[j] += f * b[j]
       }
-    })
+    }
+  }
+  const assemble = (p: Float64Array, out: Float64Array): void => {
+    for (let wi = 0; wi < windows.length; wi++) assembleWindow(p, wi, out)
   }
   const evaluate = (p: Float64Array, out: Float64Array): void => {
     profiles(p)
@@ -302,6 +314,44 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       }
     }
   }
+  const dCentre = new Float64Array(n)
+  const dSigma = new Float64Array(n)
+  /** ∂m/∂v and ∂m/∂σ of a Gaussian group in closed form (chain rule through λ_c and σ_λ). */
+  const gaussianGroupColumns = (p: Float64Array, gi: number, cols: Float64Array[]): void => {
+    const gr = groups[gi]
+    const cv = cols[gr.v]
+    const cs = cols[gr.s]
+    cv.fill(0, gr.start, gr.end)
+    cs.fill(0, gr.start, gr.end)
+    const v = p[gr.v]
+    const sv = p[gr.s]
+    for (const tm of termsOfGroup[gi]) {
+      const w = windows[tm.window]
+      const dlcdv = tm.expected / C
+      const lc = tm.expected * (1 + v / C)
+      const sl = (lc * sv) / C
+      const sigma = Math.sqrt(sl * sl + tm.sigmaInst * tm.sigmaInst)
+      gaussianPixels(lo, hi, w.start, w.end, lc, sigma, scratch, dCentre, dSigma)
+      const dsdv = ((sv / C) * (sv / C) * lc * dlcdv) / sigma
+      const dsds = ((lc / C) * (lc / C) * sv) / sigma
+      if (tm.absorption) {
+        const [i0, i1] = continuum[tm.window]
+        const amp = p[tm.param]
+        for (let j = w.start; j < w.end; j++) {
+          const f = -(p[i0] + p[i1] * t[j]) * amp
+          cv[j] += f * (dCentre[j] * dlcdv + dSigma[j] * dsdv)
+          cs[j] += f * dSigma[j] * dsds
+        }
+      } else {
+        const f = p[tm.param] * tm.mult
+        for (let j = w.start; j < w.end; j++) {
+          cv[j] += f * (dCentre[j] * dlcdv + dSigma[j] * dsdv)
+          cs[j] += f * dSigma[j] * dsds
+        }
+      }
+    }
+  }
+  const fluxParams = [...new Set(terms.map((tm) => tm.param))]
   const jacobian = (p: Float64Array, _m: Float64Array, cols: Float64Array[]): void => {
     profiles(p)
     windows.forEach((w, wi) => {
@@ -315,7 +365,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
         a1[j] = t[j] * damp
       }
     })
-    for (const idx of new Set(terms.map((tm) => tm.param))) cols[idx].fill(0, start[idx], end[idx])
+    for (const idx of fluxParams) cols[idx].fill(0, start[idx], end[idx])
     for (const tm of terms) {
       const w = windows[tm.window]
       const col = cols[tm.param]
@@ -328,6 +378,10 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       }
     }
     groups.forEach((gr, gi) => {
+      if (gr.kind === 'absorption' || config.profile === 'gaussian') {
+        gaussianGroupColumns(p, gi, cols)
+        return
+      }
       const base = kin(p, gi)
       for (let q = 0; q < 3; q++) {
         const idx = q === 0 ? gr.v : q === 1 ? gr.s : gr.g
@@ -374,41 +428,86 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     }
     return p
   }
-  const solveLinear = (p: Float64Array): number => {
-    profiles(p)
-    windows.forEach((w, wi) => {
+  const solveLinear = (p: Float64Array, group?: number): number => {
+    const chosen = group === undefined ? windows.map((_, wi) => wi) : [...new Set(termsOfGroup[group].map((tm) => tm.window))]
+    lastP.fill(NaN)
+    for (const wi of chosen) for (const tm of termsOfWindow[wi]) {
+      const [v, s, g] = kin(p, tm.group)
+      profileInto(tm, v, s, g, tm.buf)
+    }
+    let total = 0
+    for (const wi of chosen) {
+      const w = windows[wi]
       const own = termsOfWindow[wi]
-      const params = [continuum[wi][0], continuum[wi][1], ...new Set(own.map((tm) => tm.param))]
+      const params = linearParams[wi]
       const m = params.length
-      const basis = params.map(() => new Float64Array(w.end - w.start))
+      const slot = ownSlot[wi]
+      const bj = new Float64Array(m)
+      const na = new Float64Array(m * m)
+      const nb = new Float64Array(m)
       const c0 = w.continuum0
       const c1 = w.continuum1
       for (let j = w.start; j < w.end; j++) {
-        basis[0][j - w.start] = 1
-        basis[1][j - w.start] = t[j]
-      }
-      for (const tm of own) {
-        const b = basis[params.indexOf(tm.param)]
-        for (let j = w.start; j < w.end; j++) b[j - w.start] += tm.absorption ? -(c0 + c1 * t[j]) * tm.buf[j] : tm.mult * tm.buf[j]
+        bj.fill(0)
+        bj[0] = 1
+        bj[1] = t[j]
+        for (let q = 0; q < own.length; q++) {
+          const tm = own[q]
+          bj[slot[q]] += tm.absorption ? -(c0 + c1 * t[j]) * tm.buf[j] : tm.mult * tm.buf[j]
+        }
+        const wt = pixels.weight[j]
+        const yj = pixels.y[j]
+        for (let r = 0; r < m; r++) {
+          const br = wt * bj[r]
+          if (br === 0) continue
+          nb[r] += br * yj
+          for (let c = r; c < m; c++) na[r * m + c] += br * bj[c]
+        }
       }
       const a = new Matrix(m, m)
       const rhs = new Matrix(m, 1)
       for (let r = 0; r < m; r++) {
-        let s = 0
-        for (let j = w.start; j < w.end; j++) s += pixels.weight[j] * basis[r][j - w.start] * pixels.y[j]
-        rhs.set(r, 0, s)
+        rhs.set(r, 0, nb[r])
         for (let c = r; c < m; c++) {
-          let sum = 0
-          for (let j = w.start; j < w.end; j++) sum += pixels.weight[j] * basis[r][j - w.start] * basis[c][j - w.start]
-          a.set(r, c, sum)
-          a.set(c, r, sum)
+          a.set(r, c, na[r * m + c])
+          a.set(c, r, na[r * m + c])
         }
       }
-      const chol = new CholeskyDecomposition(a)
-      const x = chol.isPositiveDefinite() ? chol.solve(rhs) : pseudoInverse(a).mmul(rhs)
-      for (let r = 0; r < m; r++) p[params[r]] = x.get(r, 0)
-    })
-    return chi2(p)
+      // fluxes and equivalent widths are ≥ 0: drop the most negative one and solve again (active set)
+      const active = params.map(() => true)
+      for (let pass = 0; pass < m; pass++) {
+        const x = solveSubset(a, rhs, active)
+        let worst = -1
+        for (let r = 2; r < m; r++) if (active[r] && x[r] < 0 && (worst < 0 || x[r] < x[worst])) worst = r
+        if (worst < 0) {
+          for (let r = 0; r < m; r++) p[params[r]] = active[r] ? x[r] : 0
+          break
+        }
+        active[worst] = false
+      }
+      assembleWindow(p, wi, modelBuf)
+      for (let j = w.start; j < w.end; j++) {
+        const r = pixels.y[j] - modelBuf[j]
+        total += pixels.weight[j] * r * r
+      }
+    }
+    return total
   }
   return { config, pixels, names, groups, continuum, fluxParam, ewParam, problem, initial, solveLinear, chi2, evaluate }
+}
+
+/** Solve the rows and columns of a marked in `active` (others 0): Cholesky, else the SVD pseudo-inverse. */
+function solveSubset(a: Matrix, rhs: Matrix, active: boolean[]): number[] {
+  const idx = active.flatMap((on, i) => (on ? [i] : []))
+  const sub = new Matrix(idx.length, idx.length)
+  const b = new Matrix(idx.length, 1)
+  idx.forEach((r, i) => {
+    b.set(i, 0, rhs.get(r, 0))
+    idx.forEach((c, j) => sub.set(i, j, a.get(r, c)))
+  })
+  const chol = new CholeskyDecomposition(sub)
+  const x = chol.isPositiveDefinite() ? chol.solve(b) : pseudoInverse(sub).mmul(b)
+  const out = active.map(() => 0)
+  idx.forEach((r, i) => { out[r] = x.get(i, 0) })
+  return out
 }

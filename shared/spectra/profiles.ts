@@ -120,13 +120,15 @@ export function gaussianMass(a: number, b: number): number {
   return 1 - tail(a) - tail(b)
 }
 
-/** Standardised distance beyond which a Gaussian pixel holds less than 1e-30 of the line. */
-const GAUSS_CUT = 11.5
+/** Standardised distance beyond which a Gaussian pixel holds less than 1e-15 of the line (Φ(−8) = 6e-16). */
+const GAUSS_CUT = 8
 
 /**
  * Mean of a unit-area Gaussian over each pixel [lo[j], hi[j]) for j in [j0, j1), written to out[j].
  * Exact through the error function (shared/science/README.md §13.3); a tail value is shared with
- * the next pixel when the pixels touch.
+ * the next pixel when the pixels touch. With `dCentre` and `dSigma` also the derivatives of each
+ * mean with respect to the centre and σ: (φ(u_a) − φ(u_b))/(σΔ) and (u_a φ(u_a) − u_b φ(u_b))/(σΔ),
+ * φ the unit normal density, u the standardised edges (closed form).
  *
  * @param lo      lower pixel edges (Å)
  * @param hi      upper pixel edges (Å)
@@ -138,23 +140,37 @@ const GAUSS_CUT = 11.5
  */
 export function gaussianPixels(
   lo: ArrayLike<number>, hi: ArrayLike<number>, j0: number, j1: number, centre: number, sigma: number, out: Float64Array,
+  dCentre?: Float64Array, dSigma?: Float64Array,
 ): void {
   const inv = 1 / sigma
+  const derivatives = dCentre !== undefined && dSigma !== undefined
   let lastEdge = NaN
   let lastTail = 0
+  let lastPhi = 0
   for (let j = j0; j < j1; j++) {
     const a = lo[j]
     const ua = (a - centre) * inv
     const ub = (hi[j] - centre) * inv
     if (ub < -GAUSS_CUT || ua > GAUSS_CUT) {
       out[j] = 0
+      if (derivatives) dCentre[j] = dSigma[j] = 0
       lastEdge = NaN
       continue
     }
-    const ta = a === lastEdge ? lastTail : tail(ua)
+    const shared = a === lastEdge
+    const ta = shared ? lastTail : tail(ua)
     const tb = tail(ub)
     const mass = ua >= 0 ? ta - tb : ub <= 0 ? tb - ta : 1 - ta - tb
-    out[j] = mass / (hi[j] - a)
+    const scale = 1 / (hi[j] - a)
+    out[j] = mass * scale
+    if (derivatives) {
+      const pa = shared ? lastPhi : Math.exp(-0.5 * ua * ua) / SQRT_2PI
+      const pb = Math.exp(-0.5 * ub * ub) / SQRT_2PI
+      const f = scale * inv
+      dCentre[j] = (pa - pb) * f
+      dSigma[j] = (ua * pa - ub * pb) * f
+      lastPhi = pb
+    }
     lastEdge = hi[j]
     lastTail = tb
   }
