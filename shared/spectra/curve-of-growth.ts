@@ -33,7 +33,7 @@ export const TAU0_CONSTANT = SQRT_PI * ELECTRON_RADIUS_CM * C_CM * 1e-13
  * @param f           oscillator strength
  * @param lambdaAngstrom  rest wavelength (Å)
  * @returns N (cm⁻²)
- * @example linearColumnDensity(0.1, 0.6408, 5891.58) // ≈ 5.079e11 (shared/science/README.md §14)
+ * @example linearColumnDensity(0.1, 0.6408, 5891.58) // ≈ 5.078e11 (shared/science/README.md §14)
  */
 export function linearColumnDensity(ewAngstrom: number, f: number, lambdaAngstrom: number): number {
   return (LINEAR_COG_CONSTANT * ewAngstrom) / (f * lambdaAngstrom * lambdaAngstrom)
@@ -113,7 +113,7 @@ export const TAU0_RANGE = Object.freeze([1e-6, 1e8] as const)
 /**
  * Optically thin doublet ratio W_strong/W_weak = f_s λ_s² / (f_w λ_w²).
  *
- * @example linearDoubletRatio({ strong: { f: 0.6408, lambdaAngstrom: 5891.58 }, weak: { f: 0.3201, lambdaAngstrom: 5897.55 } }) // ≈ 1.9979
+ * @example linearDoubletRatio({ strong: { f: 0.6408, lambdaAngstrom: 5891.58 }, weak: { f: 0.3201, lambdaAngstrom: 5897.55 } }) // ≈ 1.9978
  */
 export function linearDoubletRatio(d: Doublet): number {
   return (d.strong.f * d.strong.lambdaAngstrom ** 2) / (d.weak.f * d.weak.lambdaAngstrom ** 2)

@@ -7,7 +7,7 @@ export type { FitOutcome } from './fit.ts'
 export type * from './types.ts'
 export { erf, erfc, erfcx, faddeeva, voigtK, WEIDEMAN_TERMS } from './faddeeva.ts'
 export {
-  FWHM_PER_SIGMA, gaussianFwhm, gaussianMass, gaussianPixels, gaussianProfile, lorentzianFwhm, lorentzianPixels, lorentzianProfile, pixelEdges,
+  FWHM_PER_SIGMA, gaussianFwhm, gaussianMass, gaussianPixels, gaussianProfile, lorentzianFwhm, lorentzianPixels, lorentzianProfile, pixelBounds,
   voigtFwhm, voigtPixels, voigtProfile,
 } from './profiles.ts'
 export { AIR_VACUUM_MIN_ANGSTROM, airToVacuum, refractiveIndexAir, vacuumToAir } from './air-vacuum.ts'

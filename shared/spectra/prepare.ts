@@ -11,7 +11,7 @@ import {
   type FitLineId, type LineComplex,
 } from './lines.ts'
 import type { AbsorptionLine, FitPixels, FitWindow, WindowLine } from './model.ts'
-import { pixelEdges } from './profiles.ts'
+import { pixelBounds } from './profiles.ts'
 import { hasResolution, instrumentalSigmaAngstrom } from './resolution.ts'
 import type { SpectrumInput } from './types.ts'
 import { isCovered, isSpanCovered, sidebandContinuum } from './windows.ts'
@@ -52,8 +52,8 @@ export function prepareSpectrum(s: SpectrumInput): PreparedSpectrum {
     sigma[i] = sg
     good[i] = Number.isFinite(flux[i]) && Number.isFinite(sg) && sg > 0 ? 1 : 0
   }
-  const edges = pixelEdges(lambda)
-  return { n, lambda, lo: edges.subarray(0, n), hi: edges.subarray(1, n + 1), flux, sigma, good }
+  const { lo, hi } = pixelBounds(lambda)
+  return { n, lambda, lo, hi, flux, sigma, good }
 }
 
 /** Rest wavelength of a line in the spectrum's medium (the table is in air; README §0, §13.4). */

@@ -43,7 +43,7 @@ const w = new Float64Array(2)
  * Voigt profile of unit area: a Gaussian of σ convolved with a Lorentzian of HWHM γ (scipy's
  * `voigt_profile(x, sigma, gamma)` convention). γ = 0 gives the Gaussian.
  *
- * @example voigtProfile(0, 1, 1) // ≈ 0.2087092 (scipy.special.voigt_profile(0, 1, 1))
+ * @example voigtProfile(0, 1, 1) // ≈ 0.20870928052 (scipy.special.voigt_profile(0, 1, 1))
  */
 export function voigtProfile(x: number, sigma: number, gamma: number): number {
   if (gamma <= 0) return gaussianProfile(x, sigma)
@@ -82,26 +82,44 @@ export function voigtFwhm(sigma: number, gamma: number): number {
   return 0.5346 * fl + Math.sqrt(0.2166 * fl * fl + fg * fg)
 }
 
+/** A gap between pixel centres wider than this many times both neighbouring gaps is a hole in the spectrum. */
+export const GAP_FACTOR = 1.5
+
 /**
- * Pixel edges from pixel centres: midpoints between neighbours, the outer edges half a spacing out
- * (common practice for a spectrum given by its centres).
+ * Lower and upper pixel edges from pixel centres: midpoints between neighbours, the outer edges half a
+ * spacing out (common practice for a spectrum given by its centres). Where the spacing jumps by more
+ * than 1.5× both neighbouring spacings (pixels left out of the file), the pixels on either side keep
+ * the half spacing of their other side instead of stretching across the hole (project choice).
  *
  * @param centres  strictly increasing pixel centres (Å)
- * @returns n + 1 edges
- * @example Array.from(pixelEdges([1, 2, 4])) // [0.5, 1.5, 3, 5]
+ * @returns lower and upper edges (Å)
+ * @example const b = pixelBounds([1, 2, 3, 10, 11, 12]); [b.hi[2], b.lo[3]] // [3.5, 9.5]
  */
-export function pixelEdges(centres: ArrayLike<number>): Float64Array {
+export function pixelBounds(centres: ArrayLike<number>): { lo: Float64Array; hi: Float64Array } {
   const n = centres.length
-  const e = new Float64Array(n + 1)
+  const lo = new Float64Array(n)
+  const hi = new Float64Array(n)
   if (n === 1) {
-    e[0] = centres[0] - 0.5
-    e[1] = centres[0] + 0.5
-    return e
+    lo[0] = centres[0] - 0.5
+    hi[0] = centres[0] + 0.5
+    return { lo, hi }
   }
-  for (let i = 1; i < n; i++) e[i] = 0.5 * (centres[i - 1] + centres[i])
-  e[0] = centres[0] - (e[1] - centres[0])
-  e[n] = centres[n - 1] + (centres[n - 1] - e[n - 1])
-  return e
+  const gap = (i: number): number => centres[i + 1] - centres[i]
+  for (let i = 0; i < n - 1; i++) {
+    const d = gap(i)
+    const left = i > 0 ? gap(i - 1) : NaN
+    const right = i + 1 < n - 1 ? gap(i + 1) : NaN
+    const hole = (left > 0 || right > 0) && !(d <= GAP_FACTOR * left) && !(d <= GAP_FACTOR * right)
+    if (hole) {
+      hi[i] = centres[i] + 0.5 * (left > 0 ? left : right)
+      lo[i + 1] = centres[i + 1] - 0.5 * (right > 0 ? right : left)
+    } else {
+      hi[i] = lo[i + 1] = centres[i] + 0.5 * d
+    }
+  }
+  lo[0] = centres[0] - (hi[0] - centres[0])
+  hi[n - 1] = centres[n - 1] + (centres[n - 1] - lo[n - 1])
+  return { lo, hi }
 }
 
 /** Gaussian tail mass beyond u (standardised, u in units of σ) on u's own side: ½ erfc(|u|/√2). */

@@ -12,7 +12,7 @@ import { centralOpticalDepth, equivalentWidth } from './curve-of-growth.ts'
 import { FIT_LINE_AIR_ANGSTROM, NAD, TIED_LINES, type FitLineId } from './lines.ts'
 import type { ProfileKind } from './model.ts'
 import { restWavelength } from './prepare.ts'
-import { gaussianPixels, lorentzianPixels, pixelEdges, voigtPixels } from './profiles.ts'
+import { gaussianPixels, lorentzianPixels, pixelBounds, voigtPixels } from './profiles.ts'
 import { instrumentalSigmaAngstrom } from './resolution.ts'
 import type { Resolution, SpectrumInput } from './types.ts'
 
@@ -71,9 +71,7 @@ export function syntheticSpectrum(o: SyntheticOptions): SyntheticSpectrum {
   const n = Math.floor((o.wavelength.end - o.wavelength.start) / o.wavelength.step + 1e-9) + 1
   const lambda = new Float64Array(n)
   for (let i = 0; i < n; i++) lambda[i] = o.wavelength.start + i * o.wavelength.step
-  const edges = pixelEdges(lambda)
-  const lo = edges.subarray(0, n)
-  const hi = edges.subarray(1, n + 1)
+  const { lo, hi } = pixelBounds(lambda)
   const pivot = o.continuum.pivot ?? 0.5 * (lambda[0] + lambda[n - 1])
   const cont = new Float64Array(n)
   for (let i = 0; i < n; i++) cont[i] = o.continuum.level * (1 + ((o.continuum.slope ?? 0) * (lambda[i] - pivot)) / 1000)
