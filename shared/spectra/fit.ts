@@ -425,7 +425,7 @@ function nadResult(q: Quantities, err: Map<string, number>, colErr: { logN: numb
   return dropNonFinite(r)
 }
 
-/** He I 5876 and Na I D2 overlap when their centres lie within 3 (σ_HeI + σ_D2) (project choice, README §14). */
+/** He I 5876 and Na I D2 overlap when their centres lie within 2 (σ_HeI + σ_D2), observed (project choice, README §14). */
 function heliumBlended(o: FitOutcome, q: Quantities, hei: DetectedLine): boolean {
   const w = o.model.pixels.windows.find((x) => x.absorption.length > 0)
   const line = w?.lines.find((l) => l.id === 'hei_5876')
@@ -437,7 +437,7 @@ function heliumBlended(o: FitOutcome, q: Quantities, hei: DetectedLine): boolean
   const ld = d2.expectedAngstrom * (1 + (q.get('nad.velocity') as number) / C)
   const sInst = lineSigmaInstKmPerS(d2)
   const sd = (ld * Math.sqrt(o.p[abs.s] ** 2 + sInst ** 2)) / C
-  return Math.abs(lh - ld) < 3 * (sh + sd)
+  return Math.abs(lh - ld) < 2 * (sh + sd)
 }
 
 /** Add a fixed rest-frame absorption EW back to the narrow Balmer lines (README §13.9). */
