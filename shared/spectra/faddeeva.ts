@@ -3,8 +3,8 @@
  * functions that follow from it.
  *
  * Algorithm: Weideman 1994, "Computation of the complex error function", SIAM J. Numer. Anal. 31,
- * 1497, eq. (3.13) with the coefficients of his §3 computed by a discrete cosine sum at start-up
- * (his optimal L = √(N/√2), N = 32 terms): w(z) ≈ 2 p(Z)/(L − iz)² + π^(−1/2)/(L − iz) with
+ * 1497: his rational series with the coefficients computed at start-up by the discrete cosine sum his
+ * paper gives as an FFT (his optimal L = √(N/√2), N = 32 terms; section numbers from memory): w(z) ≈ 2 p(Z)/(L − iz)² + π^(−1/2)/(L − iz) with
  * Z = (L + iz)/(L − iz). For |z| ≥ 6 the Laplace continued fraction is used instead
  * (Abramowitz & Stegun 1964, eq. 7.1.14 — equation number from memory; the choice of Gautschi 1970,
  * SIAM J. Numer. Anal. 7, 187, for large |z|), 16 levels deep: Weideman's absolute error (≈ 2e-15)
@@ -14,7 +14,7 @@
  * line profile needs.
  */
 
-/** Terms of the rational series (Weideman 1994 §3: N = 32 gives about 12–13 correct digits). */
+/** Terms of the rational series (N = 32: |Δw|/|w| ≤ 3e-13 against scipy's wofz, shared/science/README.md §13.2). */
 export const WEIDEMAN_TERMS = 32
 
 const N = WEIDEMAN_TERMS
@@ -26,7 +26,7 @@ const FAR_SQUARED = 36
 const FRACTION_DEPTH = 16
 
 /**
- * a₁ … a_N of Weideman 1994 §3: a_n = (1/4N) Σ_{k=−2N+1}^{2N−1} f(t_k) cos(π k n / 2N), with
+ * a₁ … a_N of Weideman 1994: a_n = (1/4N) Σ_{k=−2N+1}^{2N−1} f(t_k) cos(π k n / 2N), with
  * t_k = L tan(θ_k/2), θ_k = π k/2N and f(t) = exp(−t²)(L² + t²) — the real part of his FFT written out.
  */
 function weidemanCoefficients(): Float64Array {

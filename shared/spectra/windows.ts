@@ -67,7 +67,7 @@ const CLIP_PASSES = 5
 /**
  * Straight-line continuum through the side bands of a window by weighted least squares with iterative
  * 3σ clipping, σ the larger of 1 and the robust scatter 1.4826·MAD of the normalised residuals
- * (common practice; the 1.4826 MAD scale: Rousseeuw & Croux 1993, JASA 88, 1273). Falls back to all
+ * (common practice; 1.4826 makes the MAD a σ for normal noise). Falls back to all
  * pixels when fewer than 4 side-band pixels exist.
  *
  * @param lambda    pixel centres (Å)
