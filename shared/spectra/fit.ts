@@ -11,7 +11,7 @@
  */
 import { galaxySeed } from '../diagnostics/monte-carlo.ts'
 import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
-import type { LineId } from '../lines/index.ts'
+import type { LineId } from '../vocabulary/lines.ts'
 import { percentiles16_50_84 } from '../stats/percentiles.ts'
 import { createRng } from '../stats/rng.ts'
 import { airToVacuum } from './air-vacuum.ts'

@@ -2,13 +2,13 @@
  * The lines a spectrum fit measures, grouped into complexes fitted in one window each, and the
  * Na I D doublet (shared/science/README.md §13.5, §14).
  *
- * Rest wavelengths are in air: the 15 narrow contract lines from shared/lines/index.ts (NIST values;
+ * Rest wavelengths are in air: the 15 narrow contract lines from shared/vocabulary/lines.ts (NIST values;
  * README §0), He I 5876 and Na I D from the same database as usually quoted (from memory; README §12).
- * Fixed doublet ratios are those of the diagnostics kernel (`OIII_5007_TO_4959`, `NII_6584_TO_6548`;
+ * Fixed doublet ratios are those of the T_e diagnostics (`OIII_5007_TO_4959`, `NII_6584_TO_6548` in temperature.ts;
  * README §4, §12).
  */
-import { AIR_WAVELENGTH_ANGSTROM, type LineId } from '../lines/index.ts'
-import { NII_6584_TO_6548, OIII_5007_TO_4959 } from '../diagnostics/kernel.ts'
+import { AIR_WAVELENGTH_ANGSTROM, type LineId } from '../vocabulary/lines.ts'
+import { NII_6584_TO_6548, OIII_5007_TO_4959 } from '../diagnostics/temperature.ts'
 
 /** Emission lines a fit reports: the narrow contract lines plus He I 5876 (fitted beside Na I D). */
 export type FitLineId = Exclude<LineId, 'halpha_broad'> | 'hei_5876'

@@ -1,5 +1,5 @@
 /** Inputs and results of a spectrum fit (shared/science/README.md §13, §14). */
-import type { LineId } from '../lines/index.ts'
+import type { LineId } from '../vocabulary/lines.ts'
 import type { ProfileKind } from './model.ts'
 
 /** The instrumental line-spread function (Gaussian): exactly one field. */

@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import { airToVacuum, refractiveIndexAir, vacuumToAir } from '../../../../shared/spectra/index.ts'
-import { AIR_WAVELENGTH_ANGSTROM } from '../../../../shared/lines/index.ts'
+import { AIR_WAVELENGTH_ANGSTROM } from '../../../../shared/vocabulary/lines.ts'
 
 /**
  * Air ↔ vacuum with the IAU refractive index of Morton 2000, ApJS 130, 403 (shared/science/README.md
