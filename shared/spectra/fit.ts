@@ -9,6 +9,7 @@
  * (Schwarz 1978, Ann. Stat. 6, 461) when it lowers BIC by more than 10 and is itself detected →
  * quantities and their errors (covariance, or a seeded Monte Carlo of refits) → the result.
  */
+import { describeFlag, flagName } from '../vocabulary/flags.ts'
 import { galaxySeed } from '../diagnostics/monte-carlo.ts'
 import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
 import type { LineId } from '../vocabulary/lines.ts'
@@ -43,7 +44,7 @@ export const BIC_THRESHOLD = 10
 export const BALMER_LINES: readonly FitLineId[] = ['halpha', 'hbeta', 'hgamma', 'hdelta']
 
 /** Stellar Na I D caution (shared/science/README.md §14). */
-export const NAD_NOTE = 'Na I D includes interstellar and stellar (photospheric) absorption; without a stellar-population model the stellar part is not removed, so EW and N are upper bounds on the gas.'
+export const NAD_NOTE = describeFlag('stellar-absorption-not-separated').text
 
 /** Fill in defaults. */
 export function resolveFitOptions(o: FitOptions = {}): ResolvedFitOptions {
@@ -295,7 +296,7 @@ export function fitSpectrum(spectrum: SpectrumInput, options: FitOptions = {}, c
   }
   if (setup.pixels.windows.length === 0) return result
   const best = chooseModel(setup, opts, minSnr)
-  if (!best.converged) flags.push('fit-not-converged')
+  if (!best.converged) flags.push(flagName('fit-not-converged'))
   const zf = setup.zFactor
   const q = quantities(best.model, best.p, zf)
   let err = quantityErrors(best.model, best.p, best.covariance, zf, q)
@@ -314,7 +315,7 @@ export function fitSpectrum(spectrum: SpectrumInput, options: FitOptions = {}, c
   for (const [id, line] of lineInfo) {
     const r = lineResult(id, q, err, minSnr, lineSigmaInstKmPerS(line), setup.hasInstrument, best.model.config.components)
     result.lines[id] = r
-    if (r.detected && setup.hasInstrument && r.sigmaIntrinsic === 0) flags.push(`unresolved:${id}`)
+    if (r.detected && setup.hasInstrument && r.sigmaIntrinsic === 0) flags.push(flagName('unresolved', id))
   }
   if (best.model.config.broad) {
     const ha = lineInfo.get('halpha')
@@ -328,7 +329,7 @@ export function fitSpectrum(spectrum: SpectrumInput, options: FitOptions = {}, c
   if (best.model.ewParam) {
     result.absorption.nad = nadResult(q, err, nadErr, minSnr)
     const hei = result.lines.hei_5876
-    if (hei?.detected && heliumBlended(best, q, hei)) flags.push('blended:hei_5876')
+    if (hei?.detected && heliumBlended(best, q, hei)) flags.push(flagName('blended', 'hei_5876'))
   }
   for (const [id, r] of Object.entries(result.lines)) {
     if (id === 'hei_5876') continue
@@ -398,14 +399,14 @@ function dropNonFinite<T extends object>(r: T): T {
 function nadResult(q: Quantities, err: Map<string, number>, colErr: { logN: number | null; b: number | null } | null, minSnr: number): NadResult {
   const ew = q.get('nad.ew') as number
   const ewError = err.get('nad.ew') as number
-  const flags = ['stellar-absorption-not-separated']
+  const flags = [flagName('stellar-absorption-not-separated')]
   if (!(ew > 0 && ewError > 0 && ew / ewError >= minSnr)) return { detected: false, ewUpperLimit: (minSnr > 0 ? minSnr : 1) * ewError, flags, note: NAD_NOTE }
   const ewD2 = q.get('nad.ewD2') as number
   const ewD1 = q.get('nad.ewD1') as number
   const col = nadColumn(ewD2, ewD1)
-  if (col.regime === 'linear') flags.push('doublet-ratio-linear')
-  else if (col.regime === 'saturated') flags.push('doublet-ratio-saturated')
-  else if (col.regime === 'undefined') flags.push('doublet-ratio-undefined')
+  if (col.regime === 'linear') flags.push(flagName('doublet-ratio-linear'))
+  else if (col.regime === 'saturated') flags.push(flagName('doublet-ratio-saturated'))
+  else if (col.regime === 'undefined') flags.push(flagName('doublet-ratio-undefined'))
   const r: NadResult = {
     detected: true, ew, ewError, ewD2, ewD2Error: err.get('nad.ewD2') as number, ewD1, ewD1Error: err.get('nad.ewD1') as number,
     velocity: q.get('nad.velocity') as number, velocityError: err.get('nad.velocity') as number, flags, note: NAD_NOTE,
@@ -460,7 +461,7 @@ function applyBalmerAbsorption(result: SpectrumFitResult, o: FitOutcome, ewAbs: 
       any = true
     }
   })
-  if (any) flags.push('balmer-absorption-corrected')
+  if (any) flags.push(flagName('balmer-absorption-corrected'))
 }
 
 /**

@@ -7,14 +7,14 @@
  * Fixed doublet ratios are those of the T_e diagnostics (`OIII_5007_TO_4959`, `NII_6584_TO_6548` in temperature.ts;
  * README §4, §12).
  */
-import { AIR_WAVELENGTH_ANGSTROM, type LineId } from '../vocabulary/lines.ts'
+import { AIR_WAVELENGTH_ANGSTROM, FIT_ONLY_LINES, type LineId } from '../vocabulary/lines.ts'
 import { NII_6584_TO_6548, OIII_5007_TO_4959 } from '../diagnostics/temperature.ts'
 
 /** Emission lines a fit reports: the narrow contract lines plus He I 5876 (fitted beside Na I D). */
 export type FitLineId = Exclude<LineId, 'halpha_broad'> | 'hei_5876'
 
-/** He I 5876 (air, Å): NIST multiplet as usually quoted (from memory, shared/science/README.md §12). */
-export const HEI_5876_AIR_ANGSTROM = 5875.62
+/** He I 5876 (air, Å), from the line vocabulary (shared/vocabulary/lines.ts). */
+export const HEI_5876_AIR_ANGSTROM = FIT_ONLY_LINES[0].airAngstrom
 
 /** Rest air wavelength (Å) of every line a fit can report. */
 export const FIT_LINE_AIR_ANGSTROM: Readonly<Record<FitLineId, number>> = {

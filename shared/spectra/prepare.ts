@@ -3,6 +3,7 @@
  * coverage of every line, the window of each covered complex with its side-band continuum
  * (shared/science/README.md §13.4, §13.5).
  */
+import { flagName } from '../vocabulary/flags.ts'
 import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
 import { ScienceInputError } from '../flags.ts'
 import { airToVacuum } from './air-vacuum.ts'
@@ -90,18 +91,18 @@ export function setupFit(spec: PreparedSpectrum, input: SpectrumInput, wantBroad
   const zf = 1 + input.redshift
   const flags: string[] = []
   const hasInstrument = hasResolution(input.resolution)
-  if (!hasInstrument) flags.push('no-instrumental-correction')
+  if (!hasInstrument) flags.push(flagName('no-instrumental-correction'))
   const expected = (air: number): number => zf * restWavelength(air, medium)
   const coveredLine = (id: FitLineId): boolean => isCovered(spec.lo, spec.hi, spec.good, expected(FIT_LINE_AIR_ANGSTROM[id]), COVERAGE_KM_PER_S)
 
   const haCovered = coveredLine('halpha')
   const broadCovered = haCovered && isCovered(spec.lo, spec.hi, spec.good, expected(FIT_LINE_AIR_ANGSTROM.halpha), BROAD_COVERAGE_KM_PER_S)
   const broadAllowed = wantBroad && broadCovered
-  if (wantBroad && !broadCovered) flags.push('not-covered:halpha_broad')
+  if (wantBroad && !broadCovered) flags.push(flagName('not-covered', 'halpha_broad'))
   const d2 = expected(NAD.d2.airAngstrom)
   const d1 = expected(NAD.d1.airAngstrom)
   const nadCovered = wantNad && isSpanCovered(spec.lo, spec.hi, spec.good, d2 * (1 - COVERAGE_KM_PER_S / C), d1 * (1 + COVERAGE_KM_PER_S / C))
-  if (wantNad && !nadCovered) flags.push('not-covered:nad')
+  if (wantNad && !nadCovered) flags.push(flagName('not-covered', 'nad'))
 
   const complexes: LineComplex[] = []
   for (const cx of LINE_COMPLEXES) {
@@ -118,7 +119,7 @@ export function setupFit(spec: PreparedSpectrum, input: SpectrumInput, wantBroad
   for (const cx of complexes) {
     const withNad = !!cx.absorption && nadCovered
     const lines = cx.lines.filter((id) => coveredLine(id))
-    for (const id of cx.lines) if (!lines.includes(id) && (!cx.absorption || wantNad)) flags.push(`not-covered:${id}`)
+    for (const id of cx.lines) if (!lines.includes(id) && (!cx.absorption || wantNad)) flags.push(flagName('not-covered', id))
     if (lines.length === 0 && !withNad) continue
     const rests = cx.lines.map((id) => restWavelength(FIT_LINE_AIR_ANGSTROM[id], medium))
     if (cx.absorption) rests.push(restWavelength(NAD.d2.airAngstrom, medium), restWavelength(NAD.d1.airAngstrom, medium))
@@ -128,8 +129,8 @@ export function setupFit(spec: PreparedSpectrum, input: SpectrumInput, wantBroad
     for (let i = 0; i < spec.n; i++) if (spec.good[i] && spec.lambda[i] >= blue && spec.lambda[i] <= red) idx.push(i)
     const nParams = 2 + lines.length * components + (withNad ? 4 : 0) + 6
     if (idx.length < nParams + MIN_SPARE_PIXELS) {
-      for (const id of lines) flags.push(`not-covered:${id}`)
-      if (withNad) flags.push('not-covered:nad')
+      for (const id of lines) flags.push(flagName('not-covered', id))
+      if (withNad) flags.push(flagName('not-covered', 'nad'))
       continue
     }
     const centres = rests.map((r) => zf * r)

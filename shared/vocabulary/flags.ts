@@ -20,6 +20,7 @@ import { WHAN } from '../diagnostics/whan.ts'
 import { calibrationLabel, METALLICITY_KEYS, type MetallicityKey } from './calibrations.ts'
 import { DIAGRAMS, diagramLabel } from './classes.ts'
 import { ionLabel, lineLabel } from './lines.ts'
+import { BROAD_COVERAGE_KM_PER_S, COVERAGE_KM_PER_S } from '../spectra/lines.ts'
 import { ratioLabel, type LimitKind } from './ratios.ts'
 
 export type FlagSeverity = 'caution' | 'info'
@@ -117,6 +118,22 @@ const FAMILIES = {
   'black-hole-broad-halpha-limit': info(() => 'Broad Hα is only an upper limit, so no black-hole mass is given.'),
 } as const satisfies Record<string, FlagFamily>
 
+/** Flags of line fits of 1-D spectra (shared/spectra/; shared/science/README.md §13, §14). */
+const SPECTRUM_FAMILIES = {
+  'not-covered': info((a) => a === 'nad'
+    ? `Na I D is not measured: good pixels do not span ±${numberInWords(COVERAGE_KM_PER_S)} km/s around both D lines.`
+    : `${lineLabel(a)} is not measured: good pixels do not span ±${numberInWords(a === 'halpha_broad' ? BROAD_COVERAGE_KM_PER_S : COVERAGE_KM_PER_S)} km/s around its expected place.`),
+  'unresolved': info((a) => `${lineLabel(a)} is not wider than the instrument: its intrinsic σ is reported as 0.`),
+  'no-instrumental-correction': caution(() => 'No instrumental resolution was given, so the line widths include the instrument\'s own broadening.'),
+  'blended': caution((a) => `${lineLabel(a)} emission lies inside the Na I D absorption; both were fitted together, but their equivalent widths depend on each other.`),
+  'fit-not-converged': caution(() => 'The line fit stopped before it converged; its numbers and errors are doubtful.'),
+  'doublet-ratio-linear': info(() => 'The Na I D doublet ratio is at its optically thin value: the column density uses the linear part of the curve of growth, and the Doppler parameter b is not constrained.'),
+  'doublet-ratio-saturated': caution(() => 'The Na I D lines are saturated (doublet ratio near 1): only a lower limit on the column density follows, so none is given.'),
+  'doublet-ratio-undefined': caution(() => 'The Na I D doublet ratio is outside the range the curve of growth allows (noise, or the stellar part), so no column density is given.'),
+  'stellar-absorption-not-separated': caution(() => 'Na I D includes stellar (photospheric) absorption as well as the gas; without a stellar-population model the two are not separated, so the equivalent width and column density are upper bounds for the gas.'),
+  'balmer-absorption-corrected': info(() => 'A fixed stellar absorption equivalent width was added back to the Balmer lines (a setting of the fit); the dust correction rests on it.'),
+} as const satisfies Record<string, FlagFamily>
+
 /** Metallicity flags carry the calibration key in front: `n2Pp04-out-of-range`. */
 const metallicityOutOfRange = (key: string): FlagFamily => caution(() => `The ${calibrationLabel(key)} calibration was used outside the index range it was built for, so no value is given.`)
 const metallicityNeedsDetections = (key: string): FlagFamily => info(() => `No ${calibrationLabel(key)} metallicity: its lines must be detected, not limits.`)
@@ -126,8 +143,11 @@ const METALLICITY_FAMILIES = Object.fromEntries(METALLICITY_KEYS.flatMap((k) => 
 ])) as Record<MetallicityFamily, FlagFamily>
 
 /** Every flag family, by name. */
-export const FLAG_FAMILIES: Readonly<Record<FlagFamilyName, FlagFamily>> = { ...FAMILIES, ...METALLICITY_FAMILIES }
-export type FlagFamilyName = keyof typeof FAMILIES | MetallicityFamily
+export const FLAG_FAMILIES: Readonly<Record<FlagFamilyName, FlagFamily>> = { ...FAMILIES, ...METALLICITY_FAMILIES, ...SPECTRUM_FAMILIES }
+export type FlagFamilyName = keyof typeof FAMILIES | MetallicityFamily | keyof typeof SPECTRUM_FAMILIES
+
+/** The families only a spectrum fit sets (the rest come from the diagnostics kernel). */
+export const SPECTRUM_FLAG_FAMILIES = Object.keys(SPECTRUM_FAMILIES) as (keyof typeof SPECTRUM_FAMILIES)[]
 
 /** A flag name: the family, and its argument after a colon. */
 export function flagName(family: FlagFamilyName, arg?: string): string {

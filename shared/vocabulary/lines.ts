@@ -63,7 +63,16 @@ export const AIR_WAVELENGTH_ANGSTROM: Readonly<Record<LineId, number>> = Object.
   LINES.map((l) => [l.id, l.airAngstrom]),
 ) as Record<LineId, number>
 
-const LINE_LABELS: Readonly<Record<string, string>> = Object.fromEntries(LINES.map((l) => [l.id, l.label]))
+/**
+ * Lines that only a fit of a spectrum reports, never a flux table: He I 5876, fitted beside the
+ * Na I D absorption it sits in (shared/science/README.md §14). Not kernel columns.
+ */
+export const FIT_ONLY_LINES = [
+  // NIST multiplet as usually quoted (from memory, shared/science/README.md §12)
+  { id: 'hei_5876', label: 'He I 5876', airAngstrom: 5875.62, source: NIST },
+] as const satisfies readonly { id: string; label: string; airAngstrom: number; source: string }[]
+
+const LINE_LABELS: Readonly<Record<string, string>> = Object.fromEntries([...LINES, ...FIT_ONLY_LINES].map((l) => [l.id, l.label]))
 
 /**
  * True when `id` is one of the 16 contract identifiers.
@@ -78,7 +87,7 @@ export function isLineId(id: string): id is LineId {
  * @example lineLabel('oiii_5007') // '[O III] 5007'
  */
 export function lineLabel(id: string): string {
-  return isLineId(id) ? LINE_LABELS[id] : id
+  return Object.prototype.hasOwnProperty.call(LINE_LABELS, id) ? LINE_LABELS[id]! : id
 }
 
 /** Ions whose line pairs give a density or a temperature (result `density`, `temperature`). */

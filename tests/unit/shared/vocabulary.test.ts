@@ -13,7 +13,7 @@ import { GalaxyFilterSchema } from '../../../shared/schemas/query.schema.ts'
 import {
   belowMinSnrFlag, calibrationLabel, CLASS_CODE, CLASS_DIAGRAMS, CLASS_KEYS, classAt, classCode, classColour, classLabel, classLabelAt,
   className, CLASSES, DENSITY_DOUBLETS, DENSITY_LIMIT_FLAGS, describeFlag, describeFlags, DIAGRAM_CLASSES, DIAGRAM_LABELS, DIAGRAMS,
-  EXTINCTION_LAW_LIST, EXTINCTION_LAWS, extinctionLawLabel, FLAG_FAMILIES, IMFS, ionLabel, LIMIT_KINDS, LINE_IDS, lineLabel, LINES,
+  EXTINCTION_LAW_LIST, EXTINCTION_LAWS, extinctionLawLabel, FLAG_FAMILIES, SPECTRUM_FLAG_FAMILIES, IMFS, ionLabel, LIMIT_KINDS, LINE_IDS, lineLabel, LINES,
   METALLICITY_KEYS, NII_SUBTYPES, numberInWords, RATIO_KEYS, ratioLabel, ratioLimitFlag, RATIOS, ROW_FLAGS, SFR_CALIBRATION_LIST,
   SFR_CALIBRATIONS, TEMPERATURE_IONS,
 } from '../../../shared/vocabulary/index.ts'
@@ -147,7 +147,8 @@ describe('flags', () => {
     for (const k of METALLICITY_KEYS) expect(describeFlag(`${k}-out-of-range`).text).toContain(calibrationLabel(k))
     // every family is reached by some kernel flag or named flag builder
     const families = new Set(ROW_FLAGS.map((f) => f.split(':')[0]))
-    for (const name of Object.keys(FLAG_FAMILIES)) if (name !== 'below-min-snr' && name !== 'ratio-limit') expect(families, name).toContain(name)
+    const spectrumOnly = new Set<string>(SPECTRUM_FLAG_FAMILIES)
+    for (const name of Object.keys(FLAG_FAMILIES)) if (name !== 'below-min-snr' && name !== 'ratio-limit' && !spectrumOnly.has(name)) expect(families, name).toContain(name)
   })
 
   it('caution texts quote the numbers the science modules use', () => {
@@ -190,5 +191,23 @@ describe('flags', () => {
     expect(c.flag).toBe('brand-new-flag:xyz')
     expect(describeFlags(['curve-crossing-region', 'curve-crossing-region'])).toHaveLength(1)
     expect(describeFlags(undefined)).toEqual([])
+  })
+})
+
+describe('flags of spectrum fits', () => {
+  it('every flag a fit sets has a caution text of its own, naming the line (shared/science/README.md §13, §14)', async () => {
+    const { fitSpectrum, broadLineExample, sodiumExample, twoComponentExample } = await import('../../../shared/spectra/index.ts')
+    const { describeFlag } = await import('../../../shared/vocabulary/flags.ts')
+    const flags = new Set<string>()
+    for (const example of [broadLineExample(1), sodiumExample(2), twoComponentExample(3)]) {
+      const r = fitSpectrum(example.spectrum, { broadHalpha: 'auto', components: 'auto' })
+      for (const f of r.flags) flags.add(f)
+      for (const f of (r.absorption.nad as { flags?: string[] } | undefined)?.flags ?? []) flags.add(f)
+    }
+    expect(flags.size).toBeGreaterThan(0)
+    for (const f of flags) expect(describeFlag(f).text, f).not.toMatch(/^Note from the analysis/)
+    expect(describeFlag('not-covered:oi_6300').text).toContain('[O I] 6300')
+    expect(describeFlag('not-covered:halpha_broad').text).toContain('±3 000 km/s')
+    expect(describeFlag('blended:hei_5876').text).toContain('He I 5876')
   })
 })
