@@ -91,7 +91,7 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
   const diagrams = new DiagramCache(config.diagramWarmupMs)
   // one in-process worker; more can run as `npm run worker` against the same database
   const jobs = await startJobQueue(databaseUrl)
-  await startRecomputeWorker(jobs.boss, galaxyContext({ db, config, compute, diagrams }))
+  await startRecomputeWorker(jobs.boss, galaxyContext({ db, config, compute, diagrams, mailer }))
 
   if (opts.seed) {
     const { seedDemo } = await import('./seed/demo.ts')

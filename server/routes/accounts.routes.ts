@@ -1,17 +1,14 @@
 import { rateLimit } from 'express-rate-limit'
-import { z } from 'zod'
 import type { AppDeps } from '../app.ts'
 import { clearSession, requireAuth, setSession } from '../http/auth.ts'
 import { route, type Routes } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
 import { accountsService, publicUser } from '../services/accounts.service.ts'
 import {
-  AcceptInvitationSchema, ApiKeyCreateSchema, ApiKeyCreatedSchema, ApiKeySchema, EmailChangeSchema, IdPathSchema, ListOf, MeSchema,
-  ResetConfirmSchema, ResetRequestSchema, RoleSchema, SignInSchema, SignUpSchema, TokenPathSchema, UserSchema, VerifyEmailSchema,
+  AcceptedSchema, AcceptInvitationSchema, ApiKeyCreateSchema, ApiKeyCreatedSchema, ApiKeySchema, EmailChangeSchema, EmailVerifiedSchema, IdPathSchema,
+  InvitationAcceptedSchema, InvitationInfoSchema, ListOf, MeSchema, ResetConfirmSchema, ResetRequestSchema, SignInSchema, SignUpSchema, TokenPathSchema,
+  UserAnswerSchema, VerifyEmailSchema,
 } from '../../shared/schemas/api.schema.ts'
-
-/** The answer of requests whose effect arrives by mail: what to expect, the same whatever the outcome. */
-const AcceptedSchema = z.object({ status: z.string().meta({ description: 'what happens next' }) }).meta({ id: 'Accepted' })
 
 export function accountsRoutes(r: Routes, deps: AppDeps) {
   const accounts = accountsService(deps.db, deps.mailer, deps.config.appUrl)
@@ -26,13 +23,13 @@ export function accountsRoutes(r: Routes, deps: AppDeps) {
     description: 'Answers 201 with the same shape whether or not the address already has an account (its owner is mailed a notice instead), '
       + 'and sets no session: sign in next. API keys and joining projects need the verified address.',
     access: 'public', body: SignUpSchema,
-    responses: { 201: { description: 'created (or a notice mailed to the existing owner)', schema: z.object({ user: UserSchema }) } } },
+    responses: { 201: { description: 'created (or a notice mailed to the existing owner)', schema: UserAnswerSchema } } },
   async (req, res, { body }) => {
     res.status(201).json({ user: await accounts.signUp(body, req.ip) })
   })
 
   route(r, { method: 'post', path: '/auth/sign-in', operationId: 'signIn', rateLimit: authLimiter, tag, summary: 'Sign in; sets the session and CSRF cookies', access: 'public', body: SignInSchema,
-    responses: { 200: { description: 'signed in', schema: z.object({ user: UserSchema }) }, 401: { description: 'wrong e-mail or password' }, 429: { description: 'rate limited or backing off' } } },
+    responses: { 200: { description: 'signed in', schema: UserAnswerSchema }, 401: { description: 'wrong e-mail or password' }, 429: { description: 'rate limited or backing off' } } },
   async (req, res, { body }) => {
     const u = await accounts.signIn(body.email, body.password, req.ip)
     setSession(res, deps.config, u.id)
@@ -49,7 +46,7 @@ export function accountsRoutes(r: Routes, deps: AppDeps) {
   route(r, { method: 'post', path: '/auth/verify-email', operationId: 'verifyEmail', rateLimit: authLimiter, tag, summary: 'Open a mailed verification link (signed in as its account)',
     description: 'Verifies the account\'s address, or finishes an e-mail change: then every other session and every API key ends, and this answer signs you in again.',
     access: 'user', write: true, body: VerifyEmailSchema,
-    responses: { 200: { description: 'verified', schema: z.object({ email: z.string(), changed: z.boolean() }) }, 400: { description: 'invalid, used or expired link' }, 403: { description: 'the link belongs to another account' } } },
+    responses: { 200: { description: 'verified', schema: EmailVerifiedSchema }, 400: { description: 'invalid, used or expired link' }, 403: { description: 'the link belongs to another account' } } },
   async (req, res, { body }) => {
     const out = await accounts.verifyEmail(requireAuth(req), body.token, req.ip)
     if (out.changed) setSession(res, deps.config, out.userId)
@@ -88,14 +85,14 @@ export function accountsRoutes(r: Routes, deps: AppDeps) {
   })
 
   route(r, { method: 'get', path: '/invitations/:token', operationId: 'getInvitation', tag, summary: 'Look up an invitation', access: 'public', params: TokenPathSchema,
-    responses: { 200: { description: 'the invitation', schema: z.object({ projectName: z.string(), email: z.string(), role: RoleSchema, expiresAt: z.string(), accountExists: z.boolean() }) } } },
+    responses: { 200: { description: 'the invitation', schema: InvitationInfoSchema } } },
   async (_req, res, { params }) => {
     const f = await accounts.lookupInvitation(params.token)
     res.json({ projectName: f.projectName, email: f.row.email, role: f.row.role, expiresAt: f.row.expiresAt.toISOString(), accountExists: f.accountExists })
   })
 
   route(r, { method: 'post', path: '/invitations/:token/accept', operationId: 'acceptInvitation', rateLimit: authLimiter, tag, summary: 'Accept an invitation (creates the account for a new e-mail)', access: 'optional',
-    params: TokenPathSchema, body: AcceptInvitationSchema, responses: { 200: { description: 'joined', schema: z.object({ projectId: z.string() }) } } },
+    params: TokenPathSchema, body: AcceptInvitationSchema, responses: { 200: { description: 'joined', schema: InvitationAcceptedSchema } } },
   async (req, res, { params, body }) => {
     const out = await accounts.acceptInvitation(params.token, req.auth, body)
     if (!req.auth) setSession(res, deps.config, out.userId)

@@ -1,15 +1,13 @@
 import { desc, eq } from 'drizzle-orm'
-import { z } from 'zod'
 import type { AppDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route, type Routes } from '../http/route.ts'
 import { notFound } from '../http/problem.ts'
 import { outboxMessages, users } from '../db/schema.ts'
 import { accountsService, publicUser } from '../services/accounts.service.ts'
-import { ListOf, OutboxPathSchema, UserAdminUpdateSchema, UserPathSchema, UserSchema } from '../../shared/schemas/api.schema.ts'
-
-const AdminUserSchema = UserSchema.extend({ disabledAt: z.string().nullable() }).meta({ id: 'AdminUser' })
-const OutboxItemSchema = z.object({ id: z.number().int(), to: z.string(), from: z.string(), subject: z.string(), receivedAt: z.string() })
+import {
+  AdminUserSchema, ListOf, OutboxItemSchema, OutboxMessageSchema, OutboxPathSchema, UserAdminUpdateSchema, UserPathSchema,
+} from '../../shared/schemas/api.schema.ts'
 
 export function adminRoutes(r: Routes, deps: AppDeps) {
   const { db } = deps
@@ -36,7 +34,7 @@ export function adminRoutes(r: Routes, deps: AppDeps) {
   })
 
   route(r, { method: 'get', path: '/admin/outbox/:id', operationId: 'getOutboxMessage', tag, summary: 'One captured message', access: 'admin', params: OutboxPathSchema,
-    responses: { 200: { description: 'message', schema: OutboxItemSchema.extend({ text: z.string(), html: z.string().nullable() }) } } },
+    responses: { 200: { description: 'message', schema: OutboxMessageSchema } } },
   async (_req, res, { params }) => {
     const [m] = await db.select().from(outboxMessages).where(eq(outboxMessages.id, params.id))
     if (!m) throw notFound('message')

@@ -11,11 +11,10 @@ import { binaryDiagram, gzippedDiagram } from '../services/diagram-cache.ts'
 import { BatchRequestSchema, MAX_GALAXIES_PER_REQUEST } from '../../shared/schemas/galaxy.schema.ts'
 import { GalaxyListQuerySchema, DiagramQuerySchema } from '../../shared/schemas/query.schema.ts'
 import { BatchResponseSchema, GalaxyPathSchema, GalaxyRevisionPathSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
-import { GalaxyDetailSchema, GalaxyPageSchema } from '../../shared/results/responses.ts'
+import { GalaxyDetailSchema, GalaxyPageSchema, GalaxyRevisionResultsSchema } from '../../shared/results/responses.ts'
 import { OnExistingSchema } from '../../shared/schemas/intake.schema.ts'
 import { DIAGRAM_COLUMNS_TYPE } from '../../shared/diagram-columns.ts'
 import { DiagramColumnsSchema } from '../../shared/schemas/diagram.schema.ts'
-import { GalaxyResultSchema } from '../../shared/schemas/diagnostics-result.schema.ts'
 import { isCleanText } from '../../shared/schemas/text.ts'
 import { tooManyGalaxies } from '../compute/parse-body.task.ts'
 
@@ -75,7 +74,7 @@ export function galaxiesRoutes(r: Routes, deps: RouteDeps) {
 
   route(r, {
     method: 'get', path: '/projects/:projectId/galaxies/:galaxyId/results/:revision', operationId: 'getGalaxyResults', tag, access: 'viewer', summary: 'A galaxy\'s results under one assumptions revision',
-    params: GalaxyRevisionPathSchema, responses: { 200: { description: 'results of that revision', schema: z.object({ revision: z.number().int(), methodVersion: z.string(), computedAt: z.string(), results: GalaxyResultSchema }) } },
+    params: GalaxyRevisionPathSchema, responses: { 200: { description: 'results of that revision', schema: GalaxyRevisionResultsSchema } },
   }, async (_req, res, { params }) => {
     const g = await galaxies.getOne(params.projectId, params.galaxyId, params.revision)
     res.json({ revision: g.revision, methodVersion: g.methodVersion, computedAt: g.computedAt, results: g.results })

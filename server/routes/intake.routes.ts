@@ -3,7 +3,6 @@ import multer from 'multer'
 import { randomUUID } from 'node:crypto'
 import { mkdirSync } from 'node:fs'
 import { join } from 'node:path'
-import { z } from 'zod'
 import type { RouteDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route, type Routes } from '../http/route.ts'
@@ -11,35 +10,18 @@ import { HttpProblem } from '../http/problem.ts'
 import { parseRequest } from '../http/parse-request.ts'
 import { textLine } from '../../shared/schemas/text.ts'
 import { intakeService } from '../services/intake.service.ts'
-import { GalaxyPathSchema, IntakePathSchema, IntakeSchema, JobSchema, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
+import { GalaxyPathSchema, IntakePathSchema, ListOf, ProjectPathSchema } from '../../shared/schemas/api.schema.ts'
 import {
-  ColumnMappingSchema, IntakeCountsSchema, IntakeOptionsSchema, IntakeProblemSchema, IntakeReportSchema, NonDetectionSchema, OnExistingSchema,
+  GalaxyVersionSchema, IntakeCommittedSchema, IntakeDetailSchema, IntakeJobStartedSchema, IntakeOptionsSchema, IntakeReportSchema, IntakeUndoneSchema,
+  StagedIntakeSchema,
 } from '../../shared/schemas/intake.schema.ts'
-import { GalaxyInputSchema } from '../../shared/schemas/galaxy.schema.ts'
 
 /** The uploaded file's own name (multer decodes filename*= and %0A in it): stored and shown, so plain text. */
 const FileNameSchema = textLine().min(1).max(255)
 const CSV_TYPES = new Set(['text/csv', 'text/plain', 'text/tab-separated-values', 'application/csv', 'application/vnd.ms-excel', 'application/octet-stream'])
 
-/** What an intake row keeps of its commit (counts and options), of a failed commit (problems) and of its undo. */
-const StoredReportSchema = IntakeCountsSchema.partial().extend({
-  onExisting: OnExistingSchema.optional(), fluxUnit: z.number().optional(), nonDetection: NonDetectionSchema.optional(),
-  jobId: z.uuid().optional().meta({ description: 'the job that stored a CSV' }),
-  problems: z.array(IntakeProblemSchema).optional().meta({ description: 'why the last commit was refused (nothing was stored)' }),
-  problemCount: z.number().int().optional(), error: z.string().optional(),
-  errors: z.array(z.object({ path: z.string(), message: z.string() })).optional(),
-  undone: z.object({ at: z.string(), by: z.object({ id: z.uuid(), name: z.string().nullable() }), restored: z.number().int(), removed: z.number().int() }).optional(),
-}).nullable().meta({ description: 'null until a commit; then what it stored, or why it was refused' })
-
-/** A stored galaxy record, as an intake wrote it. */
-const RecordSchema = z.object({
-  id: z.string(), redshift: z.number().nullable(), fluxUnit: z.number(), ra: z.number().nullable(), dec: z.number().nullable(),
-  lines: GalaxyInputSchema.shape.lines, ew: GalaxyInputSchema.shape.ew.unwrap().nullable(), fwhm: GalaxyInputSchema.shape.fwhm.unwrap().nullable(),
-})
-
 export function intakeRoutes(r: Routes, deps: RouteDeps) {
-  const intake = intakeService(deps.galaxy, deps.mailer, deps.config.dataDir, deps.config.appUrl, deps.config.largeIntakeRows,
-    { maxRows: deps.config.intakeMaxRows, inlineRows: deps.config.intakeInlineRows })
+  const intake = intakeService(deps.galaxy, deps.config.dataDir, { maxRows: deps.config.intakeMaxRows, inlineRows: deps.config.intakeInlineRows })
   const dir = join(deps.config.dataDir, 'uploads')
   mkdirSync(dir, { recursive: true })
   const upload = multer({
@@ -69,15 +51,10 @@ export function intakeRoutes(r: Routes, deps: RouteDeps) {
     })
   }
   const tag = 'Intake'
-  const StagedSchema = z.object({
-    intake: IntakeSchema, delimiter: z.string(), headers: z.array(z.string()), previewRows: z.array(z.array(z.string())), rowCount: z.number().int(),
-    commentLines: z.number().int().meta({ description: '`#` comment lines skipped (before the header or between rows)' }),
-    suggestedMapping: ColumnMappingSchema, savedMappings: z.array(z.object({ name: z.string(), mapping: ColumnMappingSchema })),
-  })
   route(r, { method: 'post', path: '/projects/:projectId/intakes/csv', operationId: 'uploadIntakeCsv', tag, access: 'analyst', write: true, params: ProjectPathSchema,
     summary: 'Upload a CSV (multipart field "file"): stages it and answers a preview and a suggested column mapping',
     description: `Lines whose first non-blank character is \`#\` are comments and skipped. At most INTAKE_MAX_ROWS (default 1,000,000) data rows; a larger file answers 413.`,
-    bodyContentType: 'multipart/form-data', before: [receive], responses: { 201: { description: 'staged', schema: StagedSchema }, 413: { description: 'too large, or more rows than one intake takes' }, 415: { description: 'not a CSV' } } },
+    bodyContentType: 'multipart/form-data', before: [receive], responses: { 201: { description: 'staged', schema: StagedIntakeSchema }, 413: { description: 'too large, or more rows than one intake takes' }, 415: { description: 'not a CSV' } } },
   async (req, res, { params }) => {
     if (!req.file) throw new HttpProblem(422, 'Unprocessable Content', 'no file in the form', [{ path: '/file', message: 'required' }])
     res.status(201).json(await intake.stage(requireAuth(req), params.projectId, req.file))
@@ -88,15 +65,12 @@ export function intakeRoutes(r: Routes, deps: RouteDeps) {
     responses: { 200: { description: 'report with row and column numbers', schema: IntakeReportSchema } } },
   async (_req, res, { params, body }) => { res.json(await intake.validate(params.projectId, params.intakeId, body)) })
 
-  // the stored report's counts and options beside the intake and its job
-  const Committed = z.object({ intake: IntakeSchema, job: JobSchema }).extend(IntakeCountsSchema.shape)
-    .extend({ onExisting: OnExistingSchema, fluxUnit: z.number(), nonDetection: NonDetectionSchema, jobId: z.uuid() })
   route(r, { method: 'post', path: '/projects/:projectId/intakes/:intakeId/commit', operationId: 'commitIntake', tag, access: 'analyst', write: true, params: IntakePathSchema, body: IntakeOptionsSchema,
     summary: 'Store every row of a staged file in one transaction (all or nothing), as an `intake` job',
     description: 'IDs the project already has are left as they are unless `onExisting` says `replace` or `merge` (validate reports how many there are); replaced records stay retrievable and the intake can be undone. Files of up to INTAKE_INLINE_ROWS (default 10,000) rows are stored within the request (200); larger ones answer 202 with the job: poll `GET …/jobs/{jobId}`, then read the intake.',
     responses: {
-      200: { description: 'committed', schema: Committed },
-      202: { description: 'storing in the background: follow the job', schema: z.object({ intake: IntakeSchema, job: JobSchema }) },
+      200: { description: 'committed', schema: IntakeCommittedSchema },
+      202: { description: 'storing in the background: follow the job', schema: IntakeJobStartedSchema },
       409: { description: 'not staged (already committing, committed or expired)' }, 422: { description: 'problems; nothing stored' },
     } },
   async (req, res, { params, body }) => {
@@ -108,8 +82,8 @@ export function intakeRoutes(r: Routes, deps: RouteDeps) {
     summary: 'Undo a committed intake: restore the records it replaced, remove the galaxies it created, recompute their results',
     description: 'One transaction: all of it or nothing. Refused with 409 when a later intake changed any of the same galaxies (undo that one first), or when the intake is not committed.',
     responses: {
-      200: { description: 'undone', schema: z.object({ intake: IntakeSchema, restored: z.number().int(), removed: z.number().int() }) },
-      202: { description: 'an intake of more than INTAKE_INLINE_ROWS rows: undone by an `undo` job; follow it', schema: z.object({ intake: IntakeSchema, job: JobSchema }) },
+      200: { description: 'undone', schema: IntakeUndoneSchema },
+      202: { description: 'an intake of more than INTAKE_INLINE_ROWS rows: undone by an `undo` job; follow it', schema: IntakeJobStartedSchema },
       409: { description: 'a later intake changed its galaxies, not committed, or an undo of it is running' },
     } },
   async (req, res, { params }) => {
@@ -119,13 +93,10 @@ export function intakeRoutes(r: Routes, deps: RouteDeps) {
 
   route(r, { method: 'get', path: '/projects/:projectId/galaxies/:galaxyId/versions', operationId: 'listGalaxyVersions', tag: 'Galaxies', access: 'viewer', params: GalaxyPathSchema,
     summary: 'Earlier records of a galaxy that intakes replaced or merged into, newest first',
-    responses: { 200: { description: 'earlier records', schema: z.object({ items: z.array(z.object({
-      writtenBy: z.string().nullable().meta({ description: 'the intake that had written the record' }), writtenAt: z.string(), replacedAt: z.string(),
-      supersededBy: z.object({ intakeId: z.string(), kind: z.string(), fileName: z.string().nullable(), createdAt: z.string() }), record: RecordSchema,
-    })) }) } } },
+    responses: { 200: { description: 'earlier records', schema: ListOf(GalaxyVersionSchema) } } },
   async (_req, res, { params }) => { res.json(await intake.versions(params.projectId, params.galaxyId)) })
 
   route(r, { method: 'get', path: '/projects/:projectId/intakes/:intakeId', operationId: 'getIntake', tag, access: 'viewer', params: IntakePathSchema,
-    summary: 'One intake with its report', responses: { 200: { description: 'intake', schema: IntakeSchema.extend({ report: StoredReportSchema }) } } },
+    summary: 'One intake with its report', responses: { 200: { description: 'intake', schema: IntakeDetailSchema } } },
   async (_req, res, { params }) => { res.json(await intake.get(params.projectId, params.intakeId)) })
 }

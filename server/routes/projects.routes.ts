@@ -1,4 +1,3 @@
-import { z } from 'zod'
 import type { AppDeps } from '../app.ts'
 import { requireAuth } from '../http/auth.ts'
 import { route, type Routes } from '../http/route.ts'
@@ -8,16 +7,9 @@ import { projectsService } from '../services/projects.service.ts'
 import { overview } from '../services/overview.service.ts'
 import { ProjectOverviewSchema } from '../../shared/results/responses.ts'
 import {
-  InvitationCreateSchema, InvitationPathSchema, IntakeSchema, ListOf, MemberPathSchema, ProjectCreateSchema, ProjectPathSchema,
-  ProjectSchema, ProjectUpdateSchema, RoleChangeSchema, RoleSchema,
+  AuditEventSchema, InvitationCreateSchema, InvitationPathSchema, InvitationSchema, IntakeSchema, ListOf, MemberPathSchema, MemberSchema,
+  ProjectCreateSchema, ProjectPathSchema, ProjectSchema, ProjectUpdateSchema, RoleChangeSchema,
 } from '../../shared/schemas/api.schema.ts'
-
-const InvitationSchema = z.object({ id: z.string(), email: z.string(), role: RoleSchema, expiresAt: z.string(), acceptedAt: z.string().nullable(), createdAt: z.string() }).meta({ id: 'Invitation' })
-const AuditEventSchema = z.object({
-  id: z.number().int(), action: z.string(), target: z.string().nullable(),
-  details: z.record(z.string(), z.unknown()).meta({ description: 'what the action changed; its fields depend on the action' }),
-  createdAt: z.string(), actor: z.object({ id: z.string(), name: z.string().nullable(), email: z.string().nullable() }).nullable(),
-})
 
 export function projectsRoutes(r: Routes, deps: AppDeps) {
   const projects = projectsService(deps.db)
@@ -56,7 +48,6 @@ export function projectsRoutes(r: Routes, deps: AppDeps) {
   async (_req, res, { params: p }) => { res.json({ items: await projects.intakes(p.projectId) }) })
 
   const team = 'Team'
-  const MemberSchema = z.object({ userId: z.string(), email: z.string(), name: z.string(), role: RoleSchema, joinedAt: z.string() })
   route(r, { method: 'get', path: '/projects/:projectId/members', operationId: 'listMembers', tag: team, summary: 'Members and roles', access: 'viewer', params,
     responses: { 200: { description: 'members', schema: ListOf(MemberSchema) } } },
   async (_req, res, { params: p }) => { res.json({ items: await projects.members(p.projectId) }) })

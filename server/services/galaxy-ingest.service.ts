@@ -13,6 +13,7 @@ import { overBudget } from '../compute/budget.ts'
 import { RESULT_COLUMN_SQL, resultRow } from './result-columns.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import type { GalaxyContext } from './galaxy-context.ts'
+import { addCounts, zeroCounts } from './intake-counts.ts'
 
 // Ingestion: the project's batch rules, the science on the compute threads, and the all-or-nothing,
 // idempotent writes of galaxies, their earlier versions and their results.
@@ -21,7 +22,7 @@ type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 type Executor = Db | Tx
 
 /** Repeated galaxy IDs within one request (each later one is an error naming the first). */
-export function duplicateIdErrors(gals: GalaxyInputDto[], prefix = '/galaxies'): FieldError[] {
+function duplicateIdErrors(gals: GalaxyInputDto[], prefix = '/galaxies'): FieldError[] {
   const errors: FieldError[] = []
   const seen = new Map<string, number>()
   gals.forEach((g, i) => {
@@ -303,12 +304,11 @@ export async function ingestBatch(ctx: GalaxyContext, auth: Auth, projectId: str
         idempotencyKey: idempotencyKey ?? null, requestHash: hash, finishedAt: new Date(),
       }).returning()
       // in chunks, as a CSV intake is stored: building one chunk's SQL at a time keeps the event loop free
-      const counts: IntakeCounts = { inserted: 0, updated: 0, replaced: 0, merged: 0, skipped: 0 }
+      const counts = zeroCounts()
       for (let start = 0; start < gals.length; start += BATCH_WRITE_CHUNK) {
         const part = gals.slice(start, start + BATCH_WRITE_CHUNK)
         const last = start + BATCH_WRITE_CHUNK >= gals.length
-        const c = await writeIntakeChunk(tx, { compute: ctx.compute, projectId, intakeId: intake.id, onExisting, revisions, where: (i) => `/galaxies/${start + i}`, interactive: true, bumpVersion: last }, part)
-        for (const k of Object.keys(counts) as Array<keyof IntakeCounts>) counts[k] += c[k]
+        addCounts(counts, await writeIntakeChunk(tx, { compute: ctx.compute, projectId, intakeId: intake.id, onExisting, revisions, where: (i) => `/galaxies/${start + i}`, interactive: true, bumpVersion: last }, part))
       }
       const body = { intake: intakeDto(intake, { id: auth.user.id, name: auth.user.name }), ...counts, revision, methodVersion: METHOD_VERSION }
       await tx.update(intakes).set({ response: body, report: { ...counts, onExisting } }).where(eq(intakes.id, intake.id))

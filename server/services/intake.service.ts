@@ -8,7 +8,6 @@ import type { Db } from '../db/client.ts'
 import { columnMappings, galaxies, galaxyIntakes, galaxyVersions, intakes, jobs, projects, users } from '../db/schema.ts'
 import type { Auth } from '../http/auth.ts'
 import { HttpProblem, conflict, notFound } from '../http/problem.ts'
-import type { Mailer } from '../lib/mailer.ts'
 import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
 import { IntakeOptionsSchema, type IntakeCounts, type IntakeOptions, type IntakeProblem } from '../../shared/schemas/intake.schema.ts'
 import {
@@ -218,11 +217,6 @@ async function pass(tx: Tx, projectId: string, path: string, opts: IntakeOptions
   return out
 }
 
-/** What a finished intake mails its starter, and where its links point; set by the app (`configureIntakeJobs`). */
-interface IntakeJobContext { mailer?: Mailer; appUrl?: string; largeIntakeRows?: number }
-const context: IntakeJobContext = {}
-function configureIntakeJobs(c: IntakeJobContext) { Object.assign(context, c) }
-
 interface IntakeJobParams { intakeId: string; options: unknown }
 
 /**
@@ -287,12 +281,14 @@ async function runIntakeJob(lease: JobLease, job: typeof jobs.$inferSelect, gala
     return { intake: done, revision: now[0].revision }
   }))
   await rm(i.filePath, { force: true })
-  if (out.intake.rowsAccepted >= (context.largeIntakeRows ?? Infinity) && context.mailer && i.userId) {
+  // a large intake mails its starter through the mailer of the app (or worker) running the job
+  const mail = galaxy.intakeMail
+  if (mail && out.intake.rowsAccepted >= mail.largeIntakeRows && i.userId) {
     const [u] = await db.select().from(users).where(eq(users.id, i.userId))
     if (u) {
-      await context.mailer.send({
+      await mail.mailer.send({
         to: u.email, subject: `Intake finished: ${i.fileName} (${out.intake.rowsAccepted} galaxies)`,
-        text: `Your intake of ${i.fileName} finished: ${counts.inserted} new, ${counts.replaced} replaced, ${counts.merged} merged and ${counts.skipped} existing galaxies left as they were, computed under assumptions revision ${out.revision}.\n\n${context.appUrl ?? ''}/projects/${projectId}/intake`,
+        text: `Your intake of ${i.fileName} finished: ${counts.inserted} new, ${counts.replaced} replaced, ${counts.merged} merged and ${counts.skipped} existing galaxies left as they were, computed under assumptions revision ${out.revision}.\n\n${mail.appUrl}/projects/${projectId}/intake`,
       }).catch(() => {}) // the data are stored; a mail failure must not undo that
     }
   }
@@ -318,10 +314,9 @@ registerJobRunner('intake', {
   },
 })
 
-export function intakeService(galaxy: GalaxyContext, mailer: Mailer, dataDir: string, appUrl: string, largeIntakeRows: number, limits: { maxRows: number; inlineRows: number } = { maxRows: 1_000_000, inlineRows: 10_000 }) {
+export function intakeService(galaxy: GalaxyContext, dataDir: string, limits: { maxRows: number; inlineRows: number } = { maxRows: 1_000_000, inlineRows: 10_000 }) {
   const { db } = galaxy
   const uploads = join(dataDir, 'uploads')
-  configureIntakeJobs({ mailer, appUrl, largeIntakeRows })
 
   async function staged(projectId: string, intakeId: string) {
     const [i] = await db.select().from(intakes).where(and(eq(intakes.id, intakeId), eq(intakes.projectId, projectId)))

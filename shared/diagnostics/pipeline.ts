@@ -3,8 +3,8 @@
  * Carlo), and build `GalaxyResult`s in which every number is finite or null.
  */
 import { requireFinite, requirePositiveFinite, ScienceInputError } from '../flags.ts'
-import { METALLICITY_KEYS } from '../vocabulary/calibrations.ts'
-import { FLAG_WORDS, ROW_FLAGS, belowMinSnrFlag, ratioLimitFlag } from '../vocabulary/flags.ts'
+import { imfOf, METALLICITY_KEYS } from '../vocabulary/calibrations.ts'
+import { DENSITY_LIMIT_FLAGS, FLAG_WORDS, ROW_FLAGS, belowMinSnrFlag, flagName, ratioLimitFlag } from '../vocabulary/flags.ts'
 import { isLineId, LINE_COUNT, LINE_IDS, LINE_INDEX, type LineId } from '../vocabulary/lines.ts'
 import { RATIO_KEYS } from '../vocabulary/ratios.ts'
 import { LINE_DETECTED, LINE_UPPER_LIMIT, RATIO_LOWER, RATIO_UPPER } from '../stats/limits.ts'
@@ -79,9 +79,10 @@ function packGalaxy(g: GalaxyInput, settings: DiagnosticSettings, input: KernelI
 // ── result building ──────────────────────────────────────────────────────────────────────────────
 
 const FLAG_NAMES = ROW_FLAGS
-const EXTINCTION_FLAGS = new Set(['balmer-below-intrinsic', 'balmer-from-hgamma', 'no-balmer-decrement', 'nonpositive-flux:balmer'])
-const METALLICITY_FLAGS = new Set(['metallicity-not-star-forming', ...METALLICITY_KEYS.flatMap((k) => [`${k}-out-of-range`, `${k}-needs-detections`])])
-const SFR_FLAGS = new Set(['sfr-not-star-forming', 'sfr-not-dereddened', 'sfr-needs-halpha', 'luminosity-needs-redshift'])
+// which flags each result block repeats in its own `flags` (names checked against the flag registry)
+const EXTINCTION_FLAGS = new Set([flagName('balmer-below-intrinsic'), flagName('balmer-from-hgamma'), flagName('no-balmer-decrement'), flagName('nonpositive-flux', 'balmer')])
+const METALLICITY_FLAGS = new Set([flagName('metallicity-not-star-forming'), ...METALLICITY_KEYS.flatMap((k) => [flagName(`${k}-out-of-range`), flagName(`${k}-needs-detections`)])])
+const SFR_FLAGS = new Set([flagName('sfr-not-star-forming'), flagName('sfr-not-dereddened'), flagName('sfr-needs-halpha'), flagName('luminosity-needs-redshift')])
 
 const METALLICITY_ERROR_KEYS = METALLICITY_KEYS.map((k) => `${k}Error`)
 
@@ -241,7 +242,7 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
     r.put(d, 'neError', columns.neError)
     r.put(d, 'ratio', FLOAT.ratio[columns.ratio])
     d.ratioError = r.num(FLOAT.ratioError[columns.ratio])
-    d.flag = status === 1 ? 'low-density-limit' : status === 2 ? 'high-density-limit' : null
+    d.flag = DENSITY_LIMIT_FLAGS[status - 1] ?? null // status 1: low limit, 2: high limit (kernel-layout.ts)
     return d as DensityResult
   }
 
@@ -276,7 +277,7 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
   r.put(sfr, 'sfrK98Error', FLOAT.sfrK98Error)
   r.put(sfr, 'sfrKe12', FLOAT.sfrKe12)
   r.put(sfr, 'sfrKe12Error', FLOAT.sfrKe12Error)
-  sfr.imf = kennicutt98 ? 'salpeter' : 'kroupa'
+  sfr.imf = imfOf(prep.settings.sfrCalibration)
   sfr.flags = flags.filter((f) => SFR_FLAGS.has(f))
 
   let blackHoleMass: BlackHoleResult | null = null

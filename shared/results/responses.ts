@@ -67,6 +67,9 @@ export const GalaxyDetailSchema = z.object({
   revisions: z.array(z.object({ revision: z.number().int(), methodVersion: z.string(), computedAt: z.string() })),
 }).meta({ id: 'GalaxyDetail' })
 
+/** A galaxy's results under one assumptions revision (GET …/galaxies/{id}/results/{revision}). */
+export const GalaxyRevisionResultsSchema = z.object({ revision: z.number().int(), methodVersion: z.string(), computedAt: z.string(), results: GalaxyResultSchema })
+
 export const HistogramSchema = z.object({
   edges: z.array(z.number()).meta({ description: 'bins + 1 edges; of log10 of the quantity when log' }),
   counts: z.array(z.number().int()),

@@ -85,3 +85,27 @@ export const ProblemSchema = z.object({
   errors: z.array(z.object({ path: z.string().meta({ description: 'JSON Pointer (RFC 6901) into the request' }), message: z.string() })),
 }).meta({ id: 'Problem' })
 export const ListOf = <T extends z.ZodType>(item: T) => z.object({ items: z.array(item) })
+
+// accounts
+export const UserAnswerSchema = z.object({ user: UserSchema })
+export const EmailVerifiedSchema = z.object({ email: z.string(), changed: z.boolean() })
+/** The answer of requests whose effect arrives by mail: what to expect, the same whatever the outcome. */
+export const AcceptedSchema = z.object({ status: z.string().meta({ description: 'what happens next' }) }).meta({ id: 'Accepted' })
+/** An invitation as its link shows it (GET /invitations/{token}). */
+export const InvitationInfoSchema = z.object({ projectName: z.string(), email: z.string(), role: RoleSchema, expiresAt: z.string(), accountExists: z.boolean() })
+export const InvitationAcceptedSchema = z.object({ projectId: z.string() })
+
+// team and audit
+export const MemberSchema = z.object({ userId: z.string(), email: z.string(), name: z.string(), role: RoleSchema, joinedAt: z.string() })
+export const InvitationSchema = z.object({ id: z.string(), email: z.string(), role: RoleSchema, expiresAt: z.string(), acceptedAt: z.string().nullable(), createdAt: z.string() }).meta({ id: 'Invitation' })
+export const AuditEventSchema = z.object({
+  id: z.number().int(), action: z.string(), target: z.string().nullable(),
+  details: z.record(z.string(), z.unknown()).meta({ description: 'what the action changed; its fields depend on the action' }),
+  createdAt: z.string(), actor: z.object({ id: z.string(), name: z.string().nullable(), email: z.string().nullable() }).nullable(),
+})
+
+// site admin
+export const AdminUserSchema = UserSchema.extend({ disabledAt: z.string().nullable() }).meta({ id: 'AdminUser' })
+/** A message the local mail catcher captured (GET /admin/outbox). */
+export const OutboxItemSchema = z.object({ id: z.number().int(), to: z.string(), from: z.string(), subject: z.string(), receivedAt: z.string() })
+export const OutboxMessageSchema = OutboxItemSchema.extend({ text: z.string(), html: z.string().nullable() })

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { LINE_IDS, type LineId } from '../vocabulary/lines.ts'
-import { FluxUnitSchema } from './galaxy.schema.ts'
+import { IntakeSchema, JobSchema } from './api.schema.ts'
+import { FluxUnitSchema, GalaxyInputSchema } from './galaxy.schema.ts'
 import { textLine } from './text.ts'
 
 const header = textLine().min(1).max(200)
@@ -66,3 +67,47 @@ export const IntakeCountsSchema = z.object({
   replaced: z.number().int(), merged: z.number().int(), skipped: z.number().int(),
 })
 export type IntakeCounts = z.output<typeof IntakeCountsSchema>
+
+// ---- answers of the intake routes ----------------------------------------------------------------
+
+/** POST …/intakes/csv: the staged file's preview and a suggested mapping. */
+export const StagedIntakeSchema = z.object({
+  intake: IntakeSchema, delimiter: z.string(), headers: z.array(z.string()), previewRows: z.array(z.array(z.string())), rowCount: z.number().int(),
+  commentLines: z.number().int().meta({ description: '`#` comment lines skipped (before the header or between rows)' }),
+  suggestedMapping: ColumnMappingSchema, savedMappings: z.array(z.object({ name: z.string(), mapping: ColumnMappingSchema })),
+})
+
+/** A commit stored within the request: the stored report's counts and options beside the intake and its job. */
+export const IntakeCommittedSchema = z.object({ intake: IntakeSchema, job: JobSchema }).extend(IntakeCountsSchema.shape)
+  .extend({ onExisting: OnExistingSchema, fluxUnit: z.number(), nonDetection: NonDetectionSchema, jobId: z.uuid() })
+
+/** A commit or an undo left to a background job: follow the job, then read the intake. */
+export const IntakeJobStartedSchema = z.object({ intake: IntakeSchema, job: JobSchema })
+
+/** An undo done within the request. */
+export const IntakeUndoneSchema = z.object({ intake: IntakeSchema, restored: z.number().int(), removed: z.number().int() })
+
+/** What an intake row keeps of its commit (counts and options), of a failed commit (problems) and of its undo. */
+export const StoredReportSchema = IntakeCountsSchema.partial().extend({
+  onExisting: OnExistingSchema.optional(), fluxUnit: z.number().optional(), nonDetection: NonDetectionSchema.optional(),
+  jobId: z.uuid().optional().meta({ description: 'the job that stored a CSV' }),
+  problems: z.array(IntakeProblemSchema).optional().meta({ description: 'why the last commit was refused (nothing was stored)' }),
+  problemCount: z.number().int().optional(), error: z.string().optional(),
+  errors: z.array(z.object({ path: z.string(), message: z.string() })).optional(),
+  undone: z.object({ at: z.string(), by: z.object({ id: z.uuid(), name: z.string().nullable() }), restored: z.number().int(), removed: z.number().int() }).optional(),
+}).nullable().meta({ description: 'null until a commit; then what it stored, or why it was refused' })
+
+/** GET …/intakes/{id}: one intake with its report. */
+export const IntakeDetailSchema = IntakeSchema.extend({ report: StoredReportSchema })
+
+/** A stored galaxy record, as an intake wrote it. */
+export const GalaxyRecordSchema = z.object({
+  id: z.string(), redshift: z.number().nullable(), fluxUnit: z.number(), ra: z.number().nullable(), dec: z.number().nullable(),
+  lines: GalaxyInputSchema.shape.lines, ew: GalaxyInputSchema.shape.ew.unwrap().nullable(), fwhm: GalaxyInputSchema.shape.fwhm.unwrap().nullable(),
+})
+
+/** A galaxy's record as it was before an intake replaced or merged into it (GET …/galaxies/{id}/versions). */
+export const GalaxyVersionSchema = z.object({
+  writtenBy: z.string().nullable().meta({ description: 'the intake that had written the record' }), writtenAt: z.string(), replacedAt: z.string(),
+  supersededBy: z.object({ intakeId: z.string(), kind: z.string(), fileName: z.string().nullable(), createdAt: z.string() }), record: GalaxyRecordSchema,
+})

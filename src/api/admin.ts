@@ -3,5 +3,5 @@ import type { ItemList, OutboxItem, OutboxMessage } from './types'
 
 export const adminApi = {
   outbox: () => http.get<ItemList<OutboxItem>>('/admin/outbox'),
-  message: (id: string) => http.get<OutboxMessage>(`/admin/outbox/${encodeURIComponent(id)}`),
+  message: (id: number) => http.get<OutboxMessage>(`/admin/outbox/${id}`),
 }

@@ -1,6 +1,6 @@
 import { ApiProblem, apiUrl, csrfHeaders, http } from './http'
 import { projectPath } from './projects'
-import type { ColumnMapping, CommitAnswer, CsvUpload, GalaxyVersion, Intake, IntakeDetail, ItemList, Job, NonDetection, OnExisting, ValidationReport } from './types'
+import type { ColumnMapping, CommitAnswer, CsvUpload, GalaxyVersion, Intake, IntakeDetail, ItemList, NonDetection, OnExisting, UndoAnswer, ValidationReport } from './types'
 
 export interface CommitOptions { mapping: ColumnMapping; fluxUnit: number; nonDetection: NonDetection; saveMappingAs?: string; onExisting?: OnExisting }
 
@@ -40,7 +40,7 @@ export const intakesApi = {
   commit: (projectId: string, intakeId: string, options: CommitOptions) =>
     http.post<CommitAnswer>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/commit`, options),
   undo: (projectId: string, intakeId: string) =>
-    http.post<{ intake: Intake; restored?: number; removed?: number; job?: Job }>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/undo`, {}),
+    http.post<UndoAnswer>(`${projectPath(projectId)}/intakes/${encodeURIComponent(intakeId)}/undo`, {}),
   versions: (projectId: string, galaxyId: string) =>
     http.get<ItemList<GalaxyVersion>>(`${projectPath(projectId)}/galaxies/${encodeURIComponent(galaxyId)}/versions`),
 }

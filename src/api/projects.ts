@@ -1,5 +1,5 @@
 import { http } from './http'
-import type { ItemList, Job, Project, ProjectOverview, Revision, Settings } from './types'
+import type { Assumptions, AssumptionsChanged, ItemList, Job, Project, ProjectOverview, Settings } from './types'
 
 const p = (projectId: string) => `/projects/${encodeURIComponent(projectId)}`
 
@@ -8,9 +8,9 @@ export const projectsApi = {
   create: (body: { name: string; description?: string }) => http.post<Project>('/projects', body),
   get: (projectId: string) => http.get<Project>(p(projectId)),
   overview: (projectId: string) => http.get<ProjectOverview>(`${p(projectId)}/overview`),
-  assumptions: (projectId: string) => http.get<{ current: Revision; revisions: Revision[] }>(`${p(projectId)}/assumptions`),
+  assumptions: (projectId: string) => http.get<Assumptions>(`${p(projectId)}/assumptions`),
   saveAssumptions: (projectId: string, settings: Partial<Settings>, note?: string) =>
-    http.put<{ revision: Revision; job: Job }>(`${p(projectId)}/assumptions`, { settings, note }),
+    http.put<AssumptionsChanged>(`${p(projectId)}/assumptions`, { settings, note }),
   job: (projectId: string, jobId: string) => http.get<Job>(`${p(projectId)}/jobs/${encodeURIComponent(jobId)}`),
   jobs: (projectId: string) => http.get<ItemList<Job>>(`${p(projectId)}/jobs`),
 }

@@ -1,14 +1,17 @@
 import type { z } from 'zod'
 import type { DiagramColumnsJson } from '../../shared/diagram-columns.ts'
 import type {
-  ApiKeyCreatedSchema, ApiKeySchema, IntakeSchema, JobSchema, MeSchema, ProjectSchema, RoleSchema,
+  ApiKeyCreatedSchema, ApiKeySchema, AuditEventSchema, EmailVerifiedSchema, IntakeSchema, InvitationAcceptedSchema, InvitationInfoSchema, InvitationSchema,
+  JobSchema, MemberSchema, MeSchema, OutboxItemSchema, OutboxMessageSchema, ProjectSchema, RoleSchema, UserAnswerSchema,
 } from '../../shared/schemas/api.schema.ts'
+import type { AssumptionsChangedSchema, AssumptionsRevisionSchema, AssumptionsSchema } from '../../shared/schemas/assumptions.schema.ts'
 import type { GalaxyResultSchema } from '../../shared/schemas/diagnostics-result.schema.ts'
 import type { Settings as SettingsDto } from '../../shared/schemas/galaxy.schema.ts'
 import type {
-  ColumnMapping as ColumnMappingDto, IntakeCounts as IntakeCountsDto, IntakeProblemSchema, IntakeReportSchema, NonDetectionSchema,
-  OnExisting as OnExistingDto,
+  ColumnMapping as ColumnMappingDto, GalaxyVersionSchema, IntakeCommittedSchema, IntakeCounts as IntakeCountsDto, IntakeDetailSchema, IntakeJobStartedSchema,
+  IntakeProblemSchema, IntakeReportSchema, IntakeUndoneSchema, NonDetectionSchema, OnExisting as OnExistingDto, StagedIntakeSchema,
 } from '../../shared/schemas/intake.schema.ts'
+import type { GalaxyDetailSchema, GalaxyRevisionResultsSchema } from '../../shared/results/responses.ts'
 import type { LineValue } from '../../shared/diagnostics/types.ts'
 import type { ClassDiagram, Diagram, LineId } from '../../shared/vocabulary/index.ts'
 
@@ -27,27 +30,24 @@ export type Role = z.infer<typeof RoleSchema>
 
 export type Me = z.infer<typeof MeSchema>
 
-export interface UserRef { id: string; name: string; email?: string }
-
 export type Project = z.infer<typeof ProjectSchema>
 
 /** The project's assumptions, complete (the server fills the defaults). */
 export type Settings = SettingsDto
 
-export interface Revision {
-  revision: number
-  settings: Settings
-  note: string | null
-  createdAt: string
-  createdBy: UserRef | null
-}
+/** One revision of the assumptions. */
+export type Revision = z.infer<typeof AssumptionsRevisionSchema>
+
+/** GET …/assumptions and the answer of PUT …/assumptions. */
+export type Assumptions = z.infer<typeof AssumptionsSchema>
+export type AssumptionsChanged = z.infer<typeof AssumptionsChangedSchema>
 
 export type Job = z.infer<typeof JobSchema>
 
 export type Intake = z.infer<typeof IntakeSchema>
 
 /** One intake as `GET …/intakes/{id}` answers: with its report (counts, problems or the undo). */
-export type IntakeDetail = Intake & { report?: unknown }
+export type IntakeDetail = z.infer<typeof IntakeDetailSchema>
 
 /** `log`: the edges are log10 of the quantity (the server bins densities logarithmically). */
 export interface Histogram { edges: number[]; counts: number[]; log?: boolean }
@@ -102,45 +102,20 @@ export interface GalaxyQuery extends GalaxyFilters {
 /** Results for one galaxy under one revision; the shape of one POST /diagnostics result. */
 export type GalaxyResult = z.infer<typeof GalaxyResultSchema>
 
-export interface GalaxyDetail {
-  id: string
-  redshift: number | null
-  fluxUnit: number | null
-  ra: number | null
-  dec: number | null
-  lines: Partial<Record<LineId, LineValue>>
-  ew: Partial<Record<LineId, number>> | null
-  fwhm: Partial<Record<LineId, number>> | null
-  revision: number
-  methodVersion: string
-  computedAt: string
-  results: GalaxyResult
-  history: { intakeId: string; kind: 'api' | 'csv'; fileName: string | null; createdAt: string; by: UserRef | string | null; change?: 'created' | 'replaced' | 'merged' | null }[]
-  revisions: { revision: number; methodVersion: string; computedAt: string }[]
-}
+/** One galaxy: its stored inputs, its results under the shown revision (null before any), its intake history and revisions. */
+export type GalaxyDetail = z.infer<typeof GalaxyDetailSchema>
 
-export interface GalaxyRevisionResults {
-  revision: number
-  methodVersion: string
-  computedAt: string
-  results: GalaxyResult
-}
+export type GalaxyRevisionResults = z.infer<typeof GalaxyRevisionResultsSchema>
 
-/** Columnar diagram data: one entry per galaxy in every array (see API-DESIGN.md); one definition with the binary codec's. */
+/** Columnar diagram data: one entry per galaxy in every array (GET …/diagram); one definition with the binary codec's. */
 export type DiagramColumns = DiagramColumnsJson
 
 export type ColumnMapping = ColumnMappingDto
 
 export type NonDetection = z.infer<typeof NonDetectionSchema>
 
-export interface CsvUpload {
-  intake: Intake
-  headers: string[]
-  previewRows: string[][]
-  rowCount: number
-  suggestedMapping: ColumnMapping
-  savedMappings: { name: string; mapping: ColumnMapping }[]
-}
+/** The answer of a CSV upload: the staged intake, a preview and a suggested mapping. */
+export type CsvUpload = z.infer<typeof StagedIntakeSchema>
 
 /** `field` is the file's column header, `column` its 1-based position. */
 export type ValidationProblem = z.infer<typeof IntakeProblemSchema>
@@ -153,29 +128,37 @@ export type ValidationReport = z.infer<typeof IntakeReportSchema>
 export type IntakeCounts = IntakeCountsDto
 
 /** 200: stored within the request (counts); 202: a job to follow. */
-export interface CommitAnswer extends Partial<IntakeCounts> { intake: Intake; job: Job }
+export type CommitAnswer = z.infer<typeof IntakeCommittedSchema> | z.infer<typeof IntakeJobStartedSchema>
+
+/** 200: undone within the request; 202: an `undo` job to follow. */
+export type UndoAnswer = z.infer<typeof IntakeUndoneSchema> | z.infer<typeof IntakeJobStartedSchema>
 
 /** A galaxy's record as it was before an intake replaced or merged into it. */
-export interface GalaxyVersion {
-  writtenBy: string | null
-  writtenAt: string
-  replacedAt: string
-  supersededBy: { intakeId: string; kind: 'api' | 'csv'; fileName: string | null; createdAt: string }
-  record: { id: string; redshift: number | null; fluxUnit: number; ra: number | null; dec: number | null; lines: Record<string, { flux?: number; error?: number; upperLimit?: number }>; ew: Record<string, number> | null; fwhm: Record<string, number> | null }
-}
+export type GalaxyVersion = z.infer<typeof GalaxyVersionSchema>
 
-export interface Member { userId: string; email: string; name: string; role: Role; joinedAt: string }
+export type Member = z.infer<typeof MemberSchema>
 
-export interface Invitation { id: string; email: string; role: Role; expiresAt: string; acceptedAt: string | null; createdAt: string }
+export type Invitation = z.infer<typeof InvitationSchema>
 
-export interface InvitationInfo { projectName: string; email: string; role: Role; expiresAt: string; accountExists: boolean }
+/** An invitation as its link shows it. */
+export type InvitationInfo = z.infer<typeof InvitationInfoSchema>
+
+export type InvitationAccepted = z.infer<typeof InvitationAcceptedSchema>
+
+/** One entry of a project's audit log (owners only). */
+export type AuditEvent = z.infer<typeof AuditEventSchema>
+
+/** Sign-up and sign-in answers. */
+export type UserAnswer = z.infer<typeof UserAnswerSchema>
+
+export type EmailVerified = z.infer<typeof EmailVerifiedSchema>
 
 export type ApiKey = z.infer<typeof ApiKeySchema>
 
 export type CreatedApiKey = z.infer<typeof ApiKeyCreatedSchema>
 
-export interface OutboxItem { id: string; to: string; subject: string; receivedAt: string }
+export type OutboxItem = z.infer<typeof OutboxItemSchema>
 
-export interface OutboxMessage extends OutboxItem { from: string; text: string | null; html: string | null }
+export type OutboxMessage = z.infer<typeof OutboxMessageSchema>
 
 export interface ItemList<T> { items: T[] }

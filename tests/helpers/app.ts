@@ -46,7 +46,7 @@ export async function startTestApp(env: Record<string, string> = {}, opts: { job
   // the runtime's worker threads, so the tests exercise the same path as the server
   const compute = createComputePool(config)
   const diagrams = new DiagramCache(config.diagramWarmupMs)
-  const galaxy = galaxyContext({ db, config, compute, diagrams })
+  const galaxy = galaxyContext({ db, config, compute, diagrams, mailer })
   const jobs = opts.jobs ? await startJobQueue(databaseUrl) : undefined
   if (jobs) await startRecomputeWorker(jobs.boss, galaxy)
   const app = createApp({ db, config, mailer, jobs: jobs?.queue, compute, diagrams })

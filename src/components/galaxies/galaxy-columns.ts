@@ -1,5 +1,5 @@
 import type { GalaxySummary } from '../../api/types'
-import { LIST_ORDER } from '../../../shared/results/registry.ts'
+import { LIST_ORDER, resultField } from '../../../shared/results/registry.ts'
 import { at } from '../../../shared/results/values.ts'
 
 /** The columns a galaxies table can show; `sort` names the server's sort field where there is one. */
@@ -13,10 +13,14 @@ export interface GalaxyColumn {
   fixed?: boolean
   value: (g: GalaxySummary) => unknown
   kind?: 'class' | 'id'
-  /** the list item's key of this value's 1σ error, shown beside it */
+  /** the registry key of this value's 1σ error, shown beside it */
   error?: string
+  /** that error in a list item */
+  errorValue?: (g: GalaxySummary) => unknown
   defaultOn?: boolean
 }
+
+const errorAt = (path: readonly string[]) => (g: GalaxySummary) => at(g, path)
 
 /** The registry's fields with a table column (shared/results/registry.ts), in list order. */
 export const GALAXY_COLUMNS: GalaxyColumn[] = LIST_ORDER.filter((f) => f.table && f.list).map((f) => {
@@ -30,7 +34,7 @@ export const GALAXY_COLUMNS: GalaxyColumn[] = LIST_ORDER.filter((f) => f.table &
     ...(t.digits !== undefined ? { digits: t.digits } : {}),
     ...(t.fixed ? { fixed: true } : {}),
     ...(f.kind === 'class' ? { kind: 'class' as const } : f.key === 'id' ? { kind: 'id' as const } : {}),
-    ...(t.error ? { error: t.error } : {}),
+    ...(t.error ? { error: t.error, errorValue: errorAt(resultField(t.error).list!) } : {}),
     ...(t.defaultOn ? { defaultOn: true } : {}),
   }
 })
