@@ -1,6 +1,6 @@
 import type { GalaxyInputDto } from './schemas/galaxy.schema.ts'
 
-/** A stored galaxy record: the contract fields, lines in units of `fluxUnit` erg s⁻¹ cm⁻². */
+/** A stored galaxy record: the fields of the public API's galaxy, lines in units of `fluxUnit` erg s⁻¹ cm⁻². */
 export interface StoredGalaxy {
   key: string
   redshift: number | null

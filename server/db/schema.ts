@@ -158,7 +158,7 @@ export const columnMappings = pgTable('column_mappings', {
   createdAt: createdAt(),
 }, (t) => [primaryKey({ columns: [t.projectId, t.name] })])
 
-/** One nucleus of a project; `key` is the pipeline's own ID. Inputs are kept as the contract's JSON. */
+/** One nucleus of a project; `key` is the pipeline's own ID. Inputs are kept as the public API's JSON (GalaxyInputSchema). */
 export const galaxies = pgTable('galaxies', {
   id: bigserial({ mode: 'number' }).primaryKey(),
   projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),

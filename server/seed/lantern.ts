@@ -1,6 +1,7 @@
 import { createRng, type Rng } from '../../shared/stats/rng.ts'
 import { extinctionK } from '../../shared/extinction/index.ts'
-import { LINES } from '../../shared/vocabulary/lines.ts'
+import { AIR_WAVELENGTH_ANGSTROM, type LineId } from '../../shared/vocabulary/lines.ts'
+import type { OverallClass } from '../../shared/vocabulary/classes.ts'
 import { doubletRatioFromDensity, SANDERS16_OII, SANDERS16_SII } from '../../shared/diagnostics/density.ts'
 import { KA03, KE01_NII, hyperbolaY } from '../../shared/diagnostics/demarcation.ts'
 import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
@@ -11,7 +12,7 @@ import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
  * Balmer lines, a random dust screen E(B−V) ∈ [0, 1] (CCM89, R_V = 3.1), then noise consistent with
  * the quoted errors; lines measured below S/N 2 are sent as 3σ upper limits.
  */
-export type Population = 'star-forming' | 'composite' | 'seyfert' | 'liner'
+export type Population = Extract<OverallClass, 'star-forming' | 'composite' | 'seyfert' | 'liner'>
 
 const uniform = (rng: Rng, a: number, b: number) => a + (b - a) * rng.nextFloat()
 const normal = (rng: Rng, mu: number, sigma: number) => mu + sigma * rng.nextNormal()
@@ -49,12 +50,10 @@ function ratiosFor(pop: Population, rng: Rng) {
 const siiRatio = (n: number) => doubletRatioFromDensity(SANDERS16_SII, n, 1e4)
 const oiiRatio = (n: number) => doubletRatioFromDensity(SANDERS16_OII, n, 1e4)
 
-const wavelength = (id: string) => LINES.find((l) => l.id === id)!.airAngstrom
-
 export function generateLanternSurvey(count = 2400, seed = 20261202): Array<GalaxyInputDto & { population: Population }> {
   const rng = createRng(seed)
   const out: Array<GalaxyInputDto & { population: Population }> = []
-  const k = (id: string) => extinctionK('ccm89', wavelength(id), 3.1)
+  const k = (id: string) => extinctionK('ccm89', AIR_WAVELENGTH_ANGSTROM[id as LineId], 3.1)
   for (let i = 0; i < count; i++) {
     const u = rng.nextFloat()
     const pop: Population = u < 0.55 ? 'star-forming' : u < 0.72 ? 'composite' : u < 0.86 ? 'seyfert' : 'liner'

@@ -16,7 +16,7 @@ export const CSV_PARSE_OPTIONS = {
 const NUMBER_RE = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/
 
 /**
- * Turns one CSV record into a contract galaxy using the column mapping. Problems carry the file's
+ * Turns one CSV record into a galaxy of the public API (GalaxyInputSchema) using the column mapping. Problems carry the file's
  * row number and the 1-based column number, so a person can find the cell.
  */
 export function rowToGalaxy(record: string[], row: number, headerIndex: Map<string, number>, opts: IntakeOptions,

@@ -274,7 +274,7 @@ export const requestHash = (body: unknown) => createHash('sha256').update(JSON.s
 const BATCH_WRITE_CHUNK = 1000
 
 /**
- * Ingests one API batch as an intake: all or nothing, idempotent by key. The contract's upsert by
+ * Ingests one API batch as an intake: all or nothing, idempotent by key. The public API's upsert by
  * ID is `onExisting: replace` (the earlier records are kept as versions); `skip` and `merge` are
  * there for pipelines that ask.
  */

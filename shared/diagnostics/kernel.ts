@@ -148,7 +148,7 @@ export function createKernelOutput(n: number): KernelOutput {
   }
 }
 
-/** A k(λ) outside a law's range for a contract line; the server maps it to a 422 naming both. */
+/** A k(λ) outside a law's range for a line of the public API; the server maps it to a 422 naming both. */
 export class ExtinctionRangeError extends RangeError {
   readonly line: string
   readonly law: ExtinctionLaw

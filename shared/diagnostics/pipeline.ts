@@ -6,7 +6,7 @@ import { requireFinite, requirePositiveFinite, ScienceInputError } from '../flag
 import { imfOf, METALLICITY_KEYS } from '../vocabulary/calibrations.ts'
 import { DENSITY_LIMIT_FLAGS, FLAG_WORDS, ROW_FLAGS, belowMinSnrFlag, flagName, ratioLimitFlag } from '../vocabulary/flags.ts'
 import { isLineId, LINE_COUNT, LINE_IDS, LINE_INDEX, type LineId } from '../vocabulary/lines.ts'
-import { RATIO_KEYS } from '../vocabulary/ratios.ts'
+import { BALMER_DECREMENT_KEYS, RATIO_KEYS } from '../vocabulary/ratios.ts'
 import { LINE_DETECTED, LINE_UPPER_LIMIT, RATIO_LOWER, RATIO_UPPER } from '../stats/limits.ts'
 import { CLASS_CODE, className, DIAGRAM_CLASSES, CLASS_LINER, CLASS_SEYFERT, type ClassName, type NiiClass, type OverallClass, type SiiOiClass, type WhanClass } from '../vocabulary/classes.ts'
 import {
@@ -159,7 +159,7 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
   r.put(extinction, 'ebvError', FLOAT.ebvError)
   r.put(extinction, 'av', FLOAT.av)
   r.put(extinction, 'avError', FLOAT.avError)
-  extinction.source = sourceCode === 1 ? 'halpha-hbeta' : sourceCode === 2 ? 'hgamma-hbeta' : null
+  extinction.source = BALMER_DECREMENT_KEYS[sourceCode - 1] ?? null // kernel code 0: none
   extinction.flags = flags.filter((f) => EXTINCTION_FLAGS.has(f))
 
   const dereddened: Partial<Record<LineId, DereddenedLine>> = {}

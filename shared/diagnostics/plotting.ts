@@ -4,17 +4,19 @@
 import { extinctionK } from '../extinction/index.ts'
 import type { ExtinctionLaw } from '../vocabulary/extinction-laws.ts'
 import { AIR_WAVELENGTH_ANGSTROM } from '../vocabulary/lines.ts'
+import { curveLabel, type DemarcationKey } from '../vocabulary/curves.ts'
+import type { BptDiagram } from '../vocabulary/classes.ts'
 import {
   KA03, KE01_NII, KE01_OI, KE01_SII, KE06_OI, KE06_SII, S07_NII, straightLineY, type HyperbolaCurve, type StraightLine,
 } from './demarcation.ts'
 import { doubletRatioFromDensity, SANDERS16_OII, SANDERS16_SII, type DoubletFit } from './density.ts'
 import { WHAN } from './whan.ts'
 
-export type DemarcationKey = 'ka03' | 'ke01' | 'ke06' | 's07'
+export type { DemarcationKey }
 
 /** One demarcation curve sampled for plotting (x, y in dex). */
 export interface DemarcationCurve {
-  diagram: 'nii' | 'sii' | 'oi'
+  diagram: BptDiagram
   key: DemarcationKey
   label: string
   x: number[]
@@ -52,15 +54,16 @@ function sampleLine(line: StraightLine, xFrom: number): { x: number[]; y: number
  * @returns the curves (x = log(line/Hα), y = log([O III]/Hβ), dex)
  * @example demarcationCurves('nii').map((c) => c.key) // ['ka03', 'ke01', 's07']
  */
-export function demarcationCurves(diagram?: 'nii' | 'sii' | 'oi'): DemarcationCurve[] {
+export function demarcationCurves(diagram?: BptDiagram): DemarcationCurve[] {
+  const curve = (d: BptDiagram, key: DemarcationKey, xy: { x: number[]; y: number[] }): DemarcationCurve => ({ diagram: d, key, label: curveLabel(key), ...xy })
   const all: DemarcationCurve[] = [
-    { diagram: 'nii', key: 'ka03', label: 'Kauffmann et al. 2003', ...sampleHyperbola(KA03, -2.5) },
-    { diagram: 'nii', key: 'ke01', label: 'Kewley et al. 2001', ...sampleHyperbola(KE01_NII, -2.5) },
-    { diagram: 'nii', key: 's07', label: 'Schawinski et al. 2007', ...sampleLine(S07_NII, -0.1838) },
-    { diagram: 'sii', key: 'ke01', label: 'Kewley et al. 2001', ...sampleHyperbola(KE01_SII, -1.5) },
-    { diagram: 'sii', key: 'ke06', label: 'Kewley et al. 2006', ...sampleLine(KE06_SII, -0.3146) },
-    { diagram: 'oi', key: 'ke01', label: 'Kewley et al. 2001', ...sampleHyperbola(KE01_OI, -2.5) },
-    { diagram: 'oi', key: 'ke06', label: 'Kewley et al. 2006', ...sampleLine(KE06_OI, -1.1269) },
+    curve('nii', 'ka03', sampleHyperbola(KA03, -2.5)),
+    curve('nii', 'ke01', sampleHyperbola(KE01_NII, -2.5)),
+    curve('nii', 's07', sampleLine(S07_NII, -0.1838)),
+    curve('sii', 'ke01', sampleHyperbola(KE01_SII, -1.5)),
+    curve('sii', 'ke06', sampleLine(KE06_SII, -0.3146)),
+    curve('oi', 'ke01', sampleHyperbola(KE01_OI, -2.5)),
+    curve('oi', 'ke06', sampleLine(KE06_OI, -1.1269)),
   ]
   return diagram ? all.filter((c) => c.diagram === diagram) : all
 }

@@ -204,7 +204,7 @@ function numberOf(h: Map<string, FitsValue>, keys: string[]): number | undefined
   return undefined
 }
 
-/** Attach flux and noise, turning bad pixels (NaN flux or noise, negative variance) into the contract's bad-pixel marks. */
+/** Attach flux and noise, turning bad pixels (NaN flux or noise, negative variance) into the public API's bad-pixel marks. */
 function withNoise(
   s: Omit<SpectrumFromFile, 'flux'>, flux: Float64Array, noise: Float64Array | undefined, kind: 'error' | 'ivar' | 'variance',
 ): SpectrumFromFile {

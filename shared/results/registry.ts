@@ -17,8 +17,10 @@
  * from this entry). tests/unit/shared/result-registry.test.ts and tests/api/result-registry.test.ts
  * find each entry in storage, in both exports, in the list's filters and sort and in OpenAPI.
  */
-import { DIAGRAM_CLASSES, type ClassDiagram } from '../vocabulary/classes.ts'
-import { LINE_IDS, type LineId } from '../vocabulary/lines.ts'
+import { metallicityCalibration, type MetallicityKey } from '../vocabulary/calibrations.ts'
+import { DIAGRAM_CLASSES, diagramLabel, diagramShortLabel, type ClassDiagram } from '../vocabulary/classes.ts'
+import { ionLabel, LINE_IDS, lineUcd, type LineId } from '../vocabulary/lines.ts'
+import { ratioDefinition, ratioLabel, RATIOS, type RatioKey } from '../vocabulary/ratios.ts'
 import type { GalaxyInputDto } from '../schemas/galaxy.schema.ts'
 
 /** Groups of fields: the export screen's sections, in export order. */
@@ -116,13 +118,13 @@ export interface ResultField {
 }
 
 const FLUX_UNIT = 'erg.s**-1.cm**-2'
-const LINE_UCD: Record<string, string> = { halpha: 'em.line.Halpha', hbeta: 'em.line.Hbeta', hgamma: 'em.line.Hgamma', hdelta: 'em.line.Hdelta', oiii_5007: 'em.line.OIII', oiii_4959: 'em.line.OIII', oiii_4363: 'em.line.OIII', halpha_broad: 'em.line.Halpha' }
+const HALPHA_UCD = lineUcd('halpha')
 const results = (column: string, type: 'real' | 'smallint' = 'real'): FieldStorage => ({ table: 'results', column, type })
 const dbl = (name: string, description: string): FieldExport => ({ name, description, datatype: 'double' })
 const chr = (name: string, description: string): FieldExport => ({ name, description, datatype: 'char' })
 
 const lineFields = (id: LineId): ResultField[] => {
-  const ucd = LINE_UCD[id] ?? 'em.line'
+  const ucd = lineUcd(id)
   const f = (k: 'flux' | 'error' | 'upperLimit', name: string, description: string, u: string): ResultField =>
     ({ key: name, kind: 'flux', from: 'result', path: ['dereddened', id, k], group: 'fluxes', description, unit: FLUX_UNIT, ucd: u, export: dbl(name, description) })
   return [
@@ -132,14 +134,18 @@ const lineFields = (id: LineId): ResultField[] => {
   ]
 }
 
-/** A diagram ratio, its error and its limit; the four BPT coordinates are stored, listed and filterable. */
-interface Coordinate { column: string; bits: { upper: number; lower: number }; label: string; defaultOn?: boolean }
-const ratioFields = (key: string, description: string, coordinate?: Coordinate): ResultField[] => {
-  const unit = key.endsWith('Doublet') ? null : 'dex'
+/**
+ * A ratio, its error and its limit; the four BPT coordinates are stored, listed and filterable. The
+ * logarithmic BPT ratios are of observed fluxes, the density doublets linear (shared/science/README.md §2.1).
+ */
+interface Coordinate { column: string; bits: { upper: number; lower: number } }
+const ratioFields = (key: RatioKey, coordinate?: Coordinate): ResultField[] => {
+  const unit = RATIOS.find((r) => r.key === key)!.unit
+  const description = `${ratioDefinition(key)} ${unit === 'dex' ? '(observed)' : '(linear)'}`
   return [
     {
       key, kind: 'number', from: 'result', path: ['ratios', key], group: 'ratios', description, unit, ucd: 'phot.flux;arith.ratio', export: dbl(key, description),
-      ...(coordinate ? { stored: results(coordinate.column), list: ['ratios', key], sort: true, range: true, table: { label: coordinate.label, digits: 3, fixed: true } } as const : {}),
+      ...(coordinate ? { stored: results(coordinate.column), list: ['ratios', key], sort: true, range: true, table: { label: ratioLabel(key), digits: 3, fixed: true } } as const : {}),
     },
     {
       key: `${key}Error`, kind: 'number', from: 'result', path: ['ratioErrors', key], group: 'ratios', description: `1σ error of ${key}`, unit,
@@ -154,24 +160,24 @@ const ratioFields = (key: string, description: string, coordinate?: Coordinate):
 }
 
 /** 12 + log(O/H) of one calibration and its error; the two Pettini & Pagel (2004) ones are stored and listed. */
-const metallicityFields = (key: string, description: string, listed?: { column: string; label: string; defaultOn?: boolean }): ResultField[] => [
-  {
-    key, kind: 'number', from: 'result', path: ['metallicity', key], group: 'metallicity', description: `12 + log(O/H), ${description}`, unit: 'dex', ucd: 'phys.abund.Z',
-    export: dbl(`oh_${key}`, `12 + log(O/H), ${description}`),
-    ...(listed ? { stored: results(listed.column), list: [key], sort: true, range: true, table: { label: listed.label, digits: 2, ...(listed.defaultOn ? { defaultOn: true } : {}) } } as const : {}),
+const metallicityFields = (key: MetallicityKey, listed?: { column: string; defaultOn?: boolean }): ResultField[] => {
+  const { index, source } = metallicityCalibration(key)
+  const description = `12 + log(O/H), ${index}, ${source}`
+  return [{
+    key, kind: 'number', from: 'result', path: ['metallicity', key], group: 'metallicity', description, unit: 'dex', ucd: 'phys.abund.Z',
+    export: dbl(`oh_${key}`, description),
+    ...(listed ? { stored: results(listed.column), list: [key], sort: true, range: true, table: { label: `12+log O/H (${index})`, digits: 2, ...(listed.defaultOn ? { defaultOn: true } : {}) } } as const : {}),
   },
   {
     key: `${key}Error`, kind: 'number', from: 'result', path: ['metallicity', `${key}Error`], group: 'metallicity', unit: 'dex', ucd: 'stat.error;phys.abund.Z',
     description: '1σ error (flux errors only; the calibration\'s own scatter is not included)',
     export: dbl(`oh_${key}_err`, '1σ error (flux errors only; the calibration\'s own scatter is not included)'),
-  },
-]
-
-const CLASS_DESCRIPTIONS: Record<ClassDiagram, string> = {
-  overall: 'combined class (Kewley et al. 2006 scheme)', nii: 'class on the [NII] diagram', sii: 'class on the [SII] diagram',
-  oi: 'class on the [OI] diagram', whan: 'WHAN class (Cid Fernandes et al. 2011)',
+  }]
 }
-const CLASS_LABELS: Record<ClassDiagram, string> = { overall: 'Overall', nii: '[N II]', sii: '[S II]', oi: '[O I]', whan: 'WHAN' }
+
+/** The overall class and WHAN name their scheme's paper; the BPT classes their diagram. */
+const classDescription = (d: ClassDiagram): string => d === 'overall' ? 'combined class (Kewley et al. 2006 scheme)'
+  : d === 'whan' ? 'WHAN class (Cid Fernandes et al. 2011)' : `class on the ${diagramLabel(d)}`
 const CLASS_PARAMS = { overall: 'class', nii: 'classNii', sii: 'classSii', oi: 'classOi', whan: 'classWhan' } as const satisfies Record<ClassDiagram, string>
 /** The query parameters of the class filters. */
 export type ClassParam = (typeof CLASS_PARAMS)[ClassDiagram]
@@ -179,9 +185,9 @@ export type ClassParam = (typeof CLASS_PARAMS)[ClassDiagram]
 const classField = (d: ClassDiagram): ResultField => {
   const key = `class${d[0].toUpperCase()}${d.slice(1)}`
   return {
-    key, kind: 'class', diagram: d, from: 'result', path: ['classes', d], group: 'classes', description: CLASS_DESCRIPTIONS[d], unit: null, ucd: 'src.class',
-    stored: results(`class_${d}`, 'smallint'), export: chr(`class_${d}`, CLASS_DESCRIPTIONS[d]), list: ['classes', d], classParam: CLASS_PARAMS[d],
-    table: { key: d, label: CLASS_LABELS[d], ...(d === 'overall' || d === 'whan' ? { defaultOn: true } : {}) },
+    key, kind: 'class', diagram: d, from: 'result', path: ['classes', d], group: 'classes', description: classDescription(d), unit: null, ucd: 'src.class',
+    stored: results(`class_${d}`, 'smallint'), export: chr(`class_${d}`, classDescription(d)), list: ['classes', d], classParam: CLASS_PARAMS[d],
+    table: { key: d, label: diagramShortLabel(d), ...(d === 'overall' || d === 'whan' ? { defaultOn: true } : {}) },
     ...(d === 'overall' ? { sort: true } : {}),
   }
 }
@@ -221,7 +227,7 @@ export const RESULT_FIELDS: readonly ResultField[] = [
   ...(Object.keys(DIAGRAM_CLASSES) as ClassDiagram[]).map(classField),
   {
     key: 'balmerDecrement', kind: 'number', from: 'result', path: ['extinction', 'balmerDecrement'], group: 'dust', description: 'observed Hα/Hβ (or Hγ/Hβ when flagged)',
-    unit: null, ucd: 'phot.flux;arith.ratio;em.line.Halpha', export: dbl('balmer_decrement', 'observed Hα/Hβ (or Hγ/Hβ when flagged)'),
+    unit: null, ucd: `phot.flux;arith.ratio;${HALPHA_UCD}`, export: dbl('balmer_decrement', 'observed Hα/Hβ (or Hγ/Hβ when flagged)'),
   },
   {
     key: 'ebv', kind: 'number', from: 'result', path: ['extinction', 'ebv'], group: 'dust', description: 'colour excess E(B−V) of the gas, foreground screen',
@@ -238,54 +244,54 @@ export const RESULT_FIELDS: readonly ResultField[] = [
     list: ['av'], sort: true, range: true, table: { label: 'A_V', digits: 2 },
   },
   ...LINE_IDS.flatMap(lineFields),
-  ...ratioFields('niiHa', 'log [N II]6584/Hα (observed)', { column: 'x_nii', bits: { upper: 1, lower: 2 }, label: 'log [N II]/Hα' }),
-  ...ratioFields('oiiiHb', 'log [O III]5007/Hβ (observed)', { column: 'y_oiii', bits: { upper: 64, lower: 128 }, label: 'log [O III]/Hβ' }),
-  ...ratioFields('siiHa', 'log ([S II]6717+6731)/Hα (observed)', { column: 'x_sii', bits: { upper: 4, lower: 8 }, label: 'log [S II]/Hα' }),
-  ...ratioFields('oiHa', 'log [O I]6300/Hα (observed)', { column: 'x_oi', bits: { upper: 16, lower: 32 }, label: 'log [O I]/Hα' }),
-  ...ratioFields('siiDoublet', '[S II] 6717/6731 (linear)'),
-  ...ratioFields('oiiDoublet', '[O II] 3729/3726 (linear)'),
+  ...ratioFields('niiHa', { column: 'x_nii', bits: { upper: 1, lower: 2 } }),
+  ...ratioFields('oiiiHb', { column: 'y_oiii', bits: { upper: 64, lower: 128 } }),
+  ...ratioFields('siiHa', { column: 'x_sii', bits: { upper: 4, lower: 8 } }),
+  ...ratioFields('oiHa', { column: 'x_oi', bits: { upper: 16, lower: 32 } }),
+  ...ratioFields('siiDoublet'),
+  ...ratioFields('oiiDoublet'),
   {
-    key: 'neSii', kind: 'number', from: 'result', path: ['density', 'sii', 'ne'], group: 'density', description: 'electron density from [S II] (Sanders et al. 2016 fit)',
-    unit: 'cm**-3', ucd: 'phys.density;phys.electron', stored: results('ne_sii'), export: dbl('ne_sii', 'electron density from [S II] (Sanders et al. 2016 fit)'),
-    list: ['neSii'], sort: true, range: true, table: { label: 'n_e [S II] (cm⁻³)', digits: 0, defaultOn: true }, histogram: { lo: 0, hi: 4, bins: 32, log: true },
+    key: 'neSii', kind: 'number', from: 'result', path: ['density', 'sii', 'ne'], group: 'density', description: `electron density from ${ionLabel('sii')} (Sanders et al. 2016 fit)`,
+    unit: 'cm**-3', ucd: 'phys.density;phys.electron', stored: results('ne_sii'), export: dbl('ne_sii', `electron density from ${ionLabel('sii')} (Sanders et al. 2016 fit)`),
+    list: ['neSii'], sort: true, range: true, table: { label: `n_e ${ionLabel('sii')} (cm⁻³)`, digits: 0, defaultOn: true }, histogram: { lo: 0, hi: 4, bins: 32, log: true },
   },
   {
     key: 'neSiiError', kind: 'number', from: 'result', path: ['density', 'sii', 'neError'], group: 'density', description: '1σ error of ne_sii',
     unit: 'cm**-3', ucd: 'stat.error;phys.density;phys.electron', export: dbl('ne_sii_err', '1σ error of ne_sii'),
   },
   {
-    key: 'neOii', kind: 'number', from: 'result', path: ['density', 'oii', 'ne'], group: 'density', description: 'electron density from [O II]',
-    unit: 'cm**-3', ucd: 'phys.density;phys.electron', stored: results('ne_oii'), export: dbl('ne_oii', 'electron density from [O II]'), range: true,
+    key: 'neOii', kind: 'number', from: 'result', path: ['density', 'oii', 'ne'], group: 'density', description: `electron density from ${ionLabel('oii')}`,
+    unit: 'cm**-3', ucd: 'phys.density;phys.electron', stored: results('ne_oii'), export: dbl('ne_oii', `electron density from ${ionLabel('oii')}`), range: true,
   },
   {
     key: 'neOiiError', kind: 'number', from: 'result', path: ['density', 'oii', 'neError'], group: 'density', description: '1σ error of ne_oii',
     unit: 'cm**-3', ucd: 'stat.error;phys.density;phys.electron', export: dbl('ne_oii_err', '1σ error of ne_oii'),
   },
   {
-    key: 'teOiii', kind: 'number', from: 'result', path: ['temperature', 'oiii', 'te'], group: 'temperature', description: 'electron temperature from [O III] (4959+5007)/4363',
-    unit: 'K', ucd: 'phys.temperature;phys.electron', stored: results('te_oiii'), export: dbl('te_oiii', 'electron temperature from [O III] (4959+5007)/4363'),
-    list: ['teOiii'], sort: true, range: true, table: { label: 'T_e [O III] (K)', digits: 0 },
+    key: 'teOiii', kind: 'number', from: 'result', path: ['temperature', 'oiii', 'te'], group: 'temperature', description: `electron temperature from ${ionLabel('oiii')} (4959+5007)/4363`,
+    unit: 'K', ucd: 'phys.temperature;phys.electron', stored: results('te_oiii'), export: dbl('te_oiii', `electron temperature from ${ionLabel('oiii')} (4959+5007)/4363`),
+    list: ['teOiii'], sort: true, range: true, table: { label: `T_e ${ionLabel('oiii')} (K)`, digits: 0 },
   },
   {
     key: 'teOiiiError', kind: 'number', from: 'result', path: ['temperature', 'oiii', 'teError'], group: 'temperature', description: '1σ error of te_oiii',
     unit: 'K', ucd: 'stat.error;phys.temperature;phys.electron', export: dbl('te_oiii_err', '1σ error of te_oiii'),
   },
   {
-    key: 'teNii', kind: 'number', from: 'result', path: ['temperature', 'nii', 'te'], group: 'temperature', description: 'electron temperature from [N II] (6548+6584)/5755',
-    unit: 'K', ucd: 'phys.temperature;phys.electron', export: dbl('te_nii', 'electron temperature from [N II] (6548+6584)/5755'),
+    key: 'teNii', kind: 'number', from: 'result', path: ['temperature', 'nii', 'te'], group: 'temperature', description: `electron temperature from ${ionLabel('nii')} (6548+6584)/5755`,
+    unit: 'K', ucd: 'phys.temperature;phys.electron', export: dbl('te_nii', `electron temperature from ${ionLabel('nii')} (6548+6584)/5755`),
   },
-  ...metallicityFields('n2Pp04', 'N2, Pettini & Pagel 2004', { column: 'n2_pp04', label: '12+log O/H (N2)', defaultOn: true }),
-  ...metallicityFields('o3n2Pp04', 'O3N2, Pettini & Pagel 2004', { column: 'o3n2_pp04', label: '12+log O/H (O3N2)' }),
-  ...metallicityFields('n2M13', 'N2, Marino et al. 2013'),
-  ...metallicityFields('o3n2M13', 'O3N2, Marino et al. 2013'),
-  ...metallicityFields('n2s2haD16', 'N2S2Hα, Dopita et al. 2016'),
+  ...metallicityFields('n2Pp04', { column: 'n2_pp04', defaultOn: true }),
+  ...metallicityFields('o3n2Pp04', { column: 'o3n2_pp04' }),
+  ...metallicityFields('n2M13'),
+  ...metallicityFields('o3n2M13'),
+  ...metallicityFields('n2s2haD16'),
   {
     key: 'luminosityDistanceMpc', kind: 'number', from: 'result', path: ['sfr', 'luminosityDistanceMpc'], group: 'sfr', description: 'luminosity distance, flat ΛCDM',
     unit: 'Mpc', ucd: 'pos.distance;pos.lumDist', export: dbl('lum_dist', 'luminosity distance, flat ΛCDM'),
   },
   {
     key: 'luminosityHalpha', kind: 'number', from: 'result', path: ['sfr', 'luminosityHalpha'], group: 'sfr', description: 'dust-corrected Hα luminosity',
-    unit: 'erg.s**-1', ucd: 'phys.luminosity;em.line.Halpha', export: dbl('lum_halpha', 'dust-corrected Hα luminosity'),
+    unit: 'erg.s**-1', ucd: `phys.luminosity;${HALPHA_UCD}`, export: dbl('lum_halpha', 'dust-corrected Hα luminosity'),
   },
   {
     key: 'sfrHalpha', kind: 'number', from: 'result', path: ['sfr', 'sfrHalpha'], group: 'sfr', description: 'Hα star-formation rate (calibration of the revision)',
@@ -307,7 +313,7 @@ export const RESULT_FIELDS: readonly ResultField[] = [
   },
   {
     key: 'ewHalpha', kind: 'number', from: 'input', path: ['ew', 'halpha'], group: 'measurements', description: 'equivalent width of Hα as given, emission positive',
-    unit: 'Angstrom', ucd: 'spect.line.eqWidth;em.line.Halpha', stored: results('ew_halpha'), range: true,
+    unit: 'Angstrom', ucd: `spect.line.eqWidth;${HALPHA_UCD}`, stored: results('ew_halpha'), range: true,
     notExported: 'an input of the galaxy rather than a derived quantity; the exports hold derived values',
   },
   {

@@ -7,9 +7,10 @@
 import { z } from 'zod'
 import { IMFS, METALLICITY_KEYS, type MetallicityKey } from '../vocabulary/calibrations.ts'
 import { DIAGRAM_CLASSES, NII_SUBTYPES } from '../vocabulary/classes.ts'
+import type { DemarcationKey } from '../vocabulary/curves.ts'
 import { DENSITY_LIMIT_FLAGS } from '../vocabulary/flags.ts'
 import { LINE_IDS, type LineId } from '../vocabulary/lines.ts'
-import { LIMIT_KINDS, RATIO_KEYS, type RatioKey } from '../vocabulary/ratios.ts'
+import { BALMER_DECREMENT_KEYS, LIMIT_KINDS, RATIO_KEYS, type RatioKey } from '../vocabulary/ratios.ts'
 
 const num = z.number()
 const nullableNum = z.number().nullable()
@@ -31,7 +32,7 @@ const ExtinctionSchema = withPercentiles({
   ebv: nullableNum.meta({ description: 'E(B−V) in mag, clipped at 0 (flag balmer-below-intrinsic)' }),
   ebvError: nullableNum.meta({ description: 'error of the unclipped E(B−V) estimate, mag' }),
   av: nullableNum, avError: nullableNum,
-  source: z.enum(['halpha-hbeta', 'hgamma-hbeta']).nullable(),
+  source: z.enum(BALMER_DECREMENT_KEYS).nullable(),
   flags,
 }, ['balmerDecrement', 'ebv', 'av'])
 
@@ -60,10 +61,10 @@ const ClassesSchema = z.object({
 
 const NiiDistancesSchema = withPercentiles({
   ka03: num, ka03Error: num, ke01: num, ke01Error: num, s07: num, s07Error: num,
-  nearest: z.enum(['ka03', 'ke01']), nearestDistance: num,
+  nearest: z.enum(['ka03', 'ke01'] as const satisfies readonly DemarcationKey[]), nearestDistance: num,
 }, ['ka03', 'ke01', 's07', 'nearestDistance'])
 const SeyfertLinerDistancesSchema = withPercentiles({
-  ke01: num, ke01Error: num, ke06: num, ke06Error: num, nearest: z.literal('ke01'), nearestDistance: num,
+  ke01: num, ke01Error: num, ke06: num, ke06Error: num, nearest: z.literal('ke01' satisfies DemarcationKey), nearestDistance: num,
 }, ['ke01', 'ke06', 'nearestDistance'])
 
 const DensitySchema = withPercentiles({

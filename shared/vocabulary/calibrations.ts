@@ -17,6 +17,14 @@ export const METALLICITY_CALIBRATION_LIST = [
 export type MetallicityKey = (typeof METALLICITY_CALIBRATION_LIST)[number]['key']
 export const METALLICITY_KEYS: readonly MetallicityKey[] = METALLICITY_CALIBRATION_LIST.map((c) => c.key)
 
+/**
+ * The strong-line index and the paper of a metallicity calibration.
+ * @example metallicityCalibration('n2M13').source // 'Marino et al. 2013'
+ */
+export function metallicityCalibration(key: MetallicityKey): (typeof METALLICITY_CALIBRATION_LIST)[number] {
+  return METALLICITY_CALIBRATION_LIST.find((c) => c.key === key)!
+}
+
 /** Initial mass functions the SFR calibrations assume (result `sfr.imf`). */
 export const IMF_LIST = [
   { key: 'salpeter', label: 'Salpeter' },

@@ -12,6 +12,8 @@
  * the same hue for the same physical meaning in every diagram: star formation blue, composite green,
  * strong AGN / Seyfert vermillion, weak AGN / LINER orange, retired purple, passive yellow.
  */
+import { ionLabel } from './lines.ts'
+
 export const OKABE_ITO = {
   black: '#000000',
   orange: '#E69F00',
@@ -70,7 +72,7 @@ export const CLASS_PASSIVE = CLASS_CODE['passive']
 /**
  * Name of a kernel class code.
  * @param code  CLASS_* code
- * @returns the contract's class name
+ * @returns the class name of the public API
  * @example className(CLASS_SEYFERT) // 'seyfert'
  */
 export function className(code: number): ClassName {
@@ -100,13 +102,14 @@ export type BptDiagram = (typeof BPT_DIAGRAMS)[number]
 export const DIAGRAMS = [...BPT_DIAGRAMS, 'whan'] as const
 export type Diagram = (typeof DIAGRAMS)[number]
 
-export const DIAGRAM_LABELS: Readonly<Record<ClassDiagram, string>> = {
-  overall: 'Overall',
-  nii: '[N II] diagram',
-  sii: '[S II] diagram',
-  oi: '[O I] diagram',
-  whan: 'WHAN diagram',
+/** Short name of each class column (table headings, curve names): the BPT diagrams by their ion. */
+const DIAGRAM_SHORT_LABELS: Readonly<Record<ClassDiagram, string>> = {
+  overall: 'Overall', nii: ionLabel('nii'), sii: ionLabel('sii'), oi: ionLabel('oi'), whan: 'WHAN',
 }
+
+/** Label of each class column: "[N II] diagram", …, and "Overall". */
+export const DIAGRAM_LABELS: Readonly<Record<ClassDiagram, string>> = Object.fromEntries(CLASS_DIAGRAMS.map((d) =>
+  [d, d === 'overall' ? DIAGRAM_SHORT_LABELS[d] : `${DIAGRAM_SHORT_LABELS[d]} diagram`])) as Record<ClassDiagram, string>
 
 export type NiiClass = (typeof DIAGRAM_CLASSES.nii)[number]
 export type SiiOiClass = (typeof DIAGRAM_CLASSES.sii)[number]
@@ -163,6 +166,14 @@ export function classColour(name: string | null | undefined): string {
 /** Text colour on a chip of the class's colour. */
 export function classTextColour(name: string | null | undefined): string {
   return entry(name)?.textColour ?? LIGHT_TEXT
+}
+
+/**
+ * Short name of a diagram or of the overall class.
+ * @example diagramShortLabel('oi') // '[O I]'
+ */
+export function diagramShortLabel(key: string): string {
+  return (DIAGRAM_SHORT_LABELS as Record<string, string>)[key] ?? key
 }
 
 /**

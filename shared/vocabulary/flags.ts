@@ -18,7 +18,8 @@ import { DENSITY_FIT_MAX_CM3, DENSITY_FIT_MIN_CM3 } from '../diagnostics/density
 import { ASSUMED_DENSITY_CM3, TEMPERATURE_MAX_K, TEMPERATURE_MIN_K } from '../diagnostics/temperature.ts'
 import { WHAN } from '../diagnostics/whan.ts'
 import { calibrationLabel, METALLICITY_KEYS, type MetallicityKey } from './calibrations.ts'
-import { DIAGRAMS, diagramLabel } from './classes.ts'
+import { DIAGRAMS, diagramLabel, diagramShortLabel, type BptDiagram } from './classes.ts'
+import { curveName, type DemarcationKey } from './curves.ts'
 import { ionLabel, lineLabel } from './lines.ts'
 import { BROAD_COVERAGE_KM_PER_S, COVERAGE_KM_PER_S } from '../spectra/lines.ts'
 import { ratioLabel, type LimitKind } from './ratios.ts'
@@ -58,10 +59,9 @@ export function numberInWords(v: number): string {
 const doublet = (key: string): string => ionLabel(key === '' ? 'sii' : key)
 
 /** `nii-ka03` → "Kauffmann 2003 [N II]" (the demarcation curves of shared/diagnostics/demarcation.ts). */
-function curveName(key: string): string {
+function curveOnDiagram(key: string): string {
   const [diagram, curve] = key.split('-')
-  const paper = curve === 'ka03' ? 'Kauffmann 2003' : curve === 'ke01' ? 'Kewley 2001' : curve ?? key
-  return `${paper} ${diagram ? diagramLabel(diagram).replace(' diagram', '') : ''}`.trim()
+  return `${curve === undefined ? key : curveName(curve)} ${diagram ? diagramShortLabel(diagram) : ''}`.trim()
 }
 
 const caution = (text: FlagFamily['text']): FlagFamily => ({ severity: 'caution', text })
@@ -75,8 +75,8 @@ const FAMILIES = {
   'balmer-from-hgamma': info(() => 'Hα was missing, so the dust correction comes from Hγ/Hβ instead of Hα/Hβ.'),
   'no-balmer-decrement': caution(() => 'No usable Balmer line pair, so E(B−V) is unknown and fluxes are not dereddened.'),
   // diagrams (§2.2–2.5, §9)
-  'curve-crossing-region': info(() => 'The point lies where the Kauffmann 2003 curve runs above Kewley 2001 (far left of the [N II] diagram); it was called star-forming by convention.'),
-  'beyond-asymptote': info((a) => `The point lies at or right of the asymptote of the ${curveName(a)} curve, which puts it on the AGN side of that curve whatever its [O III]/Hβ.`),
+  'curve-crossing-region': info(() => `The point lies where the ${curveName('ka03')} curve runs above ${curveName('ke01')} (far left of the ${diagramLabel('nii')}); it was called star-forming by convention.`),
+  'beyond-asymptote': info((a) => `The point lies at or right of the asymptote of the ${curveOnDiagram(a)} curve, which puts it on the AGN side of that curve whatever its [O III]/Hβ.`),
   'missing-line': info((a) => `Not on the ${diagramLabel(a)}: one of its lines was not measured.`),
   'limit-not-decisive': caution((a) => a === 'nii-subtype'
     ? 'A limit leaves open whether this AGN is Seyfert-like or LINER-like on the [N II] diagram.'
@@ -89,7 +89,7 @@ const FAMILIES = {
   'overall-needs-nii': caution(() => 'No overall class: the [N II] diagram is required and could not be placed.'),
   'overall-without-sii': info(() => 'The overall class uses the [N II] and [O I] diagrams only: [S II] was not available.'),
   'overall-without-oi': info(() => 'The overall class uses the [N II] and [S II] diagrams only: [O I] was not available.'),
-  'overall-from-nii-only': caution(() => 'The overall class rests on the [N II] diagram alone (neither [S II] nor [O I] available); AGN were split into Seyfert and LINER by the Schawinski 2007 line.'),
+  'overall-from-nii-only': caution(() => `The overall class rests on the [N II] diagram alone (neither [S II] nor [O I] available); AGN were split into Seyfert and LINER by the ${curveName('s07')} line.`),
   // limits (§9)
   'below-min-snr': caution((a) => `${lineLabel(a)} is below the project's minimum signal-to-noise, so it is treated as an upper limit (S/N threshold × error).`),
   'ratio-limit': info((a) => {
@@ -182,7 +182,7 @@ export const ROW_FLAGS: readonly string[] = [
   flagName('no-balmer-decrement'),
   // diagrams (§2.2–2.4, §9)
   flagName('curve-crossing-region'),
-  ...['nii-ka03', 'nii-ke01', 'sii-ke01', 'oi-ke01'].map((c) => flagName('beyond-asymptote', c)),
+  ...(['nii-ka03', 'nii-ke01', 'sii-ke01', 'oi-ke01'] as const satisfies readonly `${BptDiagram}-${DemarcationKey}`[]).map((c) => flagName('beyond-asymptote', c)),
   ...perDiagram('missing-line'),
   ...perDiagram('limit-not-decisive'),
   ...perDiagram('nonpositive-flux'),

@@ -1,13 +1,13 @@
 import { http, type Query } from './http'
 import { projectPath } from './projects'
+import { CLASS_FILTERS } from '../../shared/results/registry.ts'
 import type { DiagramColumns, GalaxyDetail, GalaxyFilters, GalaxyPage, GalaxyQuery, GalaxyRevisionResults } from './types'
 
 /** Filters as query parameters; shared with the export links so a download matches what is on screen. */
 export function filterQuery(filters: GalaxyFilters): Query {
   return {
-    class: filters.class, classNii: filters.classNii, classSii: filters.classSii, classOi: filters.classOi,
-    classWhan: filters.classWhan, q: filters.q, zMin: filters.zMin, zMax: filters.zMax, minSnr: filters.minSnr,
-    range: filters.range,
+    ...Object.fromEntries(CLASS_FILTERS.map(({ param }) => [param, filters[param]])),
+    q: filters.q, zMin: filters.zMin, zMax: filters.zMax, minSnr: filters.minSnr, range: filters.range,
   }
 }
 

@@ -12,6 +12,7 @@ import type {
   IntakeProblemSchema, IntakeReportSchema, IntakeUndoneSchema, NonDetectionSchema, OnExisting as OnExistingDto, StagedIntakeSchema,
 } from '../../shared/schemas/intake.schema.ts'
 import type { GalaxyDetailSchema, GalaxyRevisionResultsSchema } from '../../shared/results/responses.ts'
+import type { ClassParam } from '../../shared/results/registry.ts'
 import type { LineValue } from '../../shared/diagnostics/types.ts'
 import type { ClassDiagram, Diagram, LineId } from '../../shared/vocabulary/index.ts'
 
@@ -79,13 +80,11 @@ export interface GalaxySummary {
 
 export interface GalaxyPage { items: GalaxySummary[]; nextCursor: string | null; total: number }
 
-/** Filters shared by the galaxies list, the diagram columns and the exports. */
-export interface GalaxyFilters {
-  class?: string
-  classNii?: string
-  classSii?: string
-  classOi?: string
-  classWhan?: string
+/**
+ * Filters shared by the galaxies list, the diagram columns and the exports, as the screens hold them:
+ * each class filter (the registry's `ClassParam`s) a comma-separated list of class names.
+ */
+export interface GalaxyFilters extends Partial<Record<ClassParam, string>> {
   q?: string
   zMin?: number | null
   zMax?: number | null

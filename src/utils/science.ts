@@ -6,7 +6,7 @@ import {
   DEFAULT_SETTINGS, defaultRvFor, demarcationCurves, diagnoseGalaxy as diagnoseWithLibrary, reddeningVector, siiRatioCurve, whanLines,
   type DiagnosticSettings, type ExtinctionLaw, type GalaxyInput, type GalaxyResult,
 } from '../../shared/science.ts'
-import type { BptDiagram } from '../../shared/vocabulary/index.ts'
+import { curveTag, type BptDiagram, type DemarcationKey } from '../../shared/vocabulary/index.ts'
 
 export type RatioDiagram = BptDiagram
 export type { ExtinctionLaw }
@@ -14,12 +14,9 @@ export type { ExtinctionLaw }
 /** A line drawn on a diagram, in the diagram's own coordinates (WHAN: x = log [N II]/Hα, y = EW(Hα) in Å). */
 export interface DiagramLine { id: string; label: string; short: string; x: number[]; y: number[]; dash: 'solid' | 'dash' | 'dot' }
 
-// short names written on the plot; the full reference is the hover text
-const CURVE_STYLE: Record<string, { short: string; dash: DiagramLine['dash'] }> = {
-  ka03: { short: 'Ka03', dash: 'solid' },
-  ke01: { short: 'Ke01', dash: 'dash' },
-  ke06: { short: 'Ke06', dash: 'dot' },
-  s07: { short: 'S07', dash: 'dot' },
+// how each curve is drawn; the tag written on the plot is the vocabulary's, the paper the hover text
+const CURVE_DASH: Record<DemarcationKey, DiagramLine['dash']> = { ka03: 'solid', ke01: 'dash', ke06: 'dot', s07: 'dot' }
+const WHAN_STYLE: Record<string, { short: string; dash: DiagramLine['dash'] }> = {
   'sf-agn': { short: '', dash: 'solid' },
   'strong-weak-agn': { short: '', dash: 'dash' },
   retired: { short: '3 Å', dash: 'dot' },
@@ -28,13 +25,13 @@ const CURVE_STYLE: Record<string, { short: string; dash: DiagramLine['dash'] }> 
 
 export function curvesFor(diagram: RatioDiagram): DiagramLine[] {
   return demarcationCurves(diagram).map((c) => ({
-    id: c.key, label: c.label, x: c.x, y: c.y, short: CURVE_STYLE[c.key]?.short ?? c.key, dash: CURVE_STYLE[c.key]?.dash ?? 'solid',
+    id: c.key, label: c.label, x: c.x, y: c.y, short: curveTag(c.key), dash: CURVE_DASH[c.key] ?? 'solid',
   }))
 }
 
 export function whanDiagramLines(): DiagramLine[] {
   return whanLines().map((l) => ({
-    id: l.key, label: `WHAN ${l.label}`, x: l.x, y: l.y, short: CURVE_STYLE[l.key]?.short ?? '', dash: CURVE_STYLE[l.key]?.dash ?? 'solid',
+    id: l.key, label: `WHAN ${l.label}`, x: l.x, y: l.y, short: WHAN_STYLE[l.key]?.short ?? '', dash: WHAN_STYLE[l.key]?.dash ?? 'solid',
   }))
 }
 

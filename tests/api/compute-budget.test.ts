@@ -46,7 +46,7 @@ describe('compute budget of POST /diagnostics', () => {
     expect(over.body.errors[0].message).toBe('galaxies × (draws + 10) may be at most 2,500,000 per request; that allows at most 4980 draws for 501 galaxies, or 500 galaxies with 4990 draws')
   })
 
-  it('still serves 10,000 galaxies without Monte Carlo to anonymous callers (the contract limit), and 10,001 is a 413', async () => {
+  it('still serves 10,000 galaxies without Monte Carlo to anonymous callers (the per-request limit), and 10,001 is a 413', async () => {
     const gals = lantern(10_000, 4)
     const res = await request(t.app).post('/api/v1/diagnostics').send({ galaxies: gals })
     expect(res.status).toBe(200)

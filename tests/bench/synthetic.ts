@@ -1,6 +1,6 @@
 /**
  * Synthetic (invented) galaxies for the benchmark only: a star-forming sequence, composites, Seyferts
- * and LINER-like nuclei with random dust E(B−V) 0–1, every contract line, noise consistent with the
+ * and LINER-like nuclei with random dust E(B−V) 0–1, every line of the public API, noise consistent with the
  * errors and some weak auroral lines below S/N 3. Seeded, so every run sees the same sample.
  */
 import { createKernelInput, type KernelInput } from '../../shared/diagnostics/kernel.ts'

@@ -1,7 +1,7 @@
 import type { Annotation, Config, Data, Layout } from 'plotly.js-dist-min'
 import type { DiagramKey } from '../../api/types'
 import { curvesFor, reddeningShift, whanDiagramLines, type DiagramLine, type ExtinctionLaw } from '../../utils/science'
-import { diagramLabel } from '../../../shared/vocabulary/index.ts'
+import { diagramLabel, ratioDefinition } from '../../../shared/vocabulary/index.ts'
 
 /** Axis titles, ranges and line styles of the four diagrams, shared by the sample and single-galaxy plots. */
 export interface DiagramSpec {
@@ -16,10 +16,10 @@ export interface DiagramSpec {
 }
 
 export const DIAGRAM_SPECS: Record<DiagramKey, DiagramSpec> = {
-  nii: { key: 'nii', title: diagramLabel('nii'), xTitle: 'log [N II] 6584 / Hα', yTitle: 'log [O III] 5007 / Hβ', xRange: [-2.1, 1.0], yRange: [-1.5, 1.6], yLog: false },
-  sii: { key: 'sii', title: diagramLabel('sii'), xTitle: 'log [S II] 6717+6731 / Hα', yTitle: 'log [O III] 5007 / Hβ', xRange: [-1.6, 0.9], yRange: [-1.5, 1.6], yLog: false },
-  oi: { key: 'oi', title: diagramLabel('oi'), xTitle: 'log [O I] 6300 / Hα', yTitle: 'log [O III] 5007 / Hβ', xRange: [-2.8, 0.4], yRange: [-1.5, 1.6], yLog: false },
-  whan: { key: 'whan', title: diagramLabel('whan'), xTitle: 'log [N II] 6584 / Hα', yTitle: 'EW(Hα) (Å)', xRange: [-2.1, 1.0], yRange: [-1, 3], yLog: true },
+  nii: { key: 'nii', title: diagramLabel('nii'), xTitle: ratioDefinition('niiHa'), yTitle: ratioDefinition('oiiiHb'), xRange: [-2.1, 1.0], yRange: [-1.5, 1.6], yLog: false },
+  sii: { key: 'sii', title: diagramLabel('sii'), xTitle: ratioDefinition('siiHa'), yTitle: ratioDefinition('oiiiHb'), xRange: [-1.6, 0.9], yRange: [-1.5, 1.6], yLog: false },
+  oi: { key: 'oi', title: diagramLabel('oi'), xTitle: ratioDefinition('oiHa'), yTitle: ratioDefinition('oiiiHb'), xRange: [-2.8, 0.4], yRange: [-1.5, 1.6], yLog: false },
+  whan: { key: 'whan', title: diagramLabel('whan'), xTitle: ratioDefinition('niiHa'), yTitle: 'EW(Hα) (Å)', xRange: [-2.1, 1.0], yRange: [-1, 3], yLog: true },
 }
 
 const LINE_COLOURS = ['#2B2B2B', '#4A4A4A', '#6E6E6E']

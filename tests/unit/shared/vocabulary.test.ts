@@ -10,7 +10,10 @@ import { GalaxyResultSchema } from '../../../shared/schemas/diagnostics-result.s
 import { GalaxyInputSchema, SettingsInputSchema } from '../../../shared/schemas/galaxy.schema.ts'
 import { ColumnMappingSchema } from '../../../shared/schemas/intake.schema.ts'
 import { GalaxyFilterSchema } from '../../../shared/schemas/query.schema.ts'
+import { demarcationCurves } from '../../../shared/diagnostics/plotting.ts'
 import {
+  BALMER_DECREMENT_KEYS, BALMER_DECREMENTS, balmerDecrementLabel, curveLabel, curveName, curveTag, DEMARCATION_CURVE_LIST, diagramShortLabel,
+  lineUcd, ratioDefinition,
   belowMinSnrFlag, calibrationLabel, CLASS_CODE, CLASS_DIAGRAMS, CLASS_KEYS, classAt, classCode, classColour, classLabel, classLabelAt,
   className, CLASSES, DENSITY_DOUBLETS, DENSITY_LIMIT_FLAGS, describeFlag, describeFlags, DIAGRAM_CLASSES, DIAGRAM_LABELS, DIAGRAMS,
   EXTINCTION_LAW_LIST, EXTINCTION_LAWS, extinctionLawLabel, FLAG_FAMILIES, SPECTRUM_FLAG_FAMILIES, IMFS, ionLabel, LIMIT_KINDS, LINE_IDS, lineLabel, LINES,
@@ -68,6 +71,9 @@ describe('zod schemas are built from the vocabulary', () => {
     expect(keysOf(field(GalaxyResultSchema, 'density'))).toEqual([...DENSITY_DOUBLETS])
     expect(enumOf(field(GalaxyResultSchema, 'density', 'sii', 'flag'))).toEqual([...DENSITY_LIMIT_FLAGS])
     expect(keysOf(field(GalaxyResultSchema, 'temperature'))).toEqual([...TEMPERATURE_IONS])
+    expect(enumOf(field(GalaxyResultSchema, 'extinction', 'source'))).toEqual([...BALMER_DECREMENT_KEYS])
+    // the [N II] diagram's nearest curve is one of its two star-forming boundaries (shared/science/README.md §2.2)
+    expect(enumOf(field(GalaxyResultSchema, 'distances', 'nii', 'nearest')).every((k) => DEMARCATION_CURVE_LIST.some((c) => c.key === k))).toBe(true)
   })
 
   it('the science modules keyed by the same names', () => {
@@ -75,6 +81,9 @@ describe('zod schemas are built from the vocabulary', () => {
     expect(METALLICITY_CALIBRATIONS.map((c) => c.key)).toEqual([...METALLICITY_KEYS])
     expect(Object.keys(EXTINCTION_RANGE_ANGSTROM)).toEqual([...EXTINCTION_LAWS])
     expect(SFR_CALIBRATION_LIST.every((c) => (IMFS as readonly string[]).includes(c.imf))).toBe(true)
+    // every plotted demarcation curve is a vocabulary curve, labelled with its paper
+    for (const c of demarcationCurves()) expect(c.label).toBe(curveLabel(c.key))
+    expect(new Set(demarcationCurves().map((c) => c.key))).toEqual(new Set(DEMARCATION_CURVE_LIST.map((c) => c.key)))
   })
 })
 
@@ -129,6 +138,12 @@ describe('every entry has what its consumers show', () => {
     for (const k of [...METALLICITY_KEYS, ...SFR_CALIBRATIONS]) expect(calibrationLabel(k)).not.toBe(k)
     for (const k of [...DENSITY_DOUBLETS, ...TEMPERATURE_IONS]) expect(ionLabel(k)).toMatch(/^\[[A-Z][a-z]? I+\]$/)
     expect(lineLabel('hepsilon')).toBe('hepsilon')
+    // IVOA UCD1+ words: em.line or one of its narrower words (the list from memory, shared/science/README.md §12)
+    for (const l of LINES) expect(lineUcd(l.id)).toMatch(/^em\.line(\.[A-Za-z]+)?$/)
+    for (const r of RATIOS) expect(ratioDefinition(r.key)).not.toBe('')
+    for (const d of BALMER_DECREMENTS) expect(balmerDecrementLabel(d.key)).toBe(d.label)
+    for (const c of DEMARCATION_CURVE_LIST) expect([curveLabel(c.key), curveName(c.key), curveTag(c.key)]).toEqual([c.label, c.name, c.tag])
+    for (const d of CLASS_DIAGRAMS) expect(DIAGRAM_LABELS[d]).toContain(diagramShortLabel(d))
   })
 })
 

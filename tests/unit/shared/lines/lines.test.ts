@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { AIR_WAVELENGTH_ANGSTROM, isLineId, LINE_IDS, LINES } from '../../../../shared/vocabulary/lines.ts'
 
-describe('contract lines', () => {
+describe('the lines of the public API', () => {
   it('are the 16 identifiers of the public API in kernel order', () => {
     expect(LINE_IDS).toEqual(['halpha', 'hbeta', 'hgamma', 'hdelta', 'oiii_5007', 'oiii_4959', 'oiii_4363', 'nii_6584', 'nii_6548',
       'nii_5755', 'sii_6717', 'sii_6731', 'oi_6300', 'oii_3726', 'oii_3729', 'halpha_broad'])
