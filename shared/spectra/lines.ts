@@ -2,15 +2,16 @@
  * The lines a spectrum fit measures, grouped into complexes fitted in one window each, and the
  * Na I D doublet (shared/science/README.md §13.5, §14).
  *
- * Rest wavelengths are in air: the 15 narrow contract lines from shared/vocabulary/lines.ts (NIST values;
- * README §0), He I 5876 and Na I D from the same database as usually quoted (from memory; README §12).
+ * Rest wavelengths are in air: the 15 narrow lines of the public API from shared/vocabulary/lines.ts (NIST values;
+ * shared/science/README.md §0), He I 5876 and Na I D from the same database as usually quoted (from memory;
+ * shared/science/README.md §12).
  * Fixed doublet ratios are those of the T_e diagnostics (`OIII_5007_TO_4959`, `NII_6584_TO_6548` in temperature.ts;
  * README §4, §12).
  */
 import { AIR_WAVELENGTH_ANGSTROM, FIT_ONLY_LINES, type LineId } from '../vocabulary/lines.ts'
 import { NII_6584_TO_6548, OIII_5007_TO_4959 } from '../diagnostics/temperature.ts'
 
-/** Emission lines a fit reports: the narrow contract lines plus He I 5876 (fitted beside Na I D). */
+/** Emission lines a fit reports: the narrow lines of the public API plus He I 5876 (fitted beside Na I D). */
 export type FitLineId = Exclude<LineId, 'halpha_broad'> | 'hei_5876'
 
 /** He I 5876 (air, Å), from the line vocabulary (shared/vocabulary/lines.ts). */
@@ -36,7 +37,7 @@ export const TIED_LINES: readonly TiedLine[] = [
   { line: 'nii_6548', parent: 'nii_6584', ratio: NII_6584_TO_6548 },
 ]
 
-/** Na I D (air, Å) and oscillator strengths: Morton 2003, ApJS 149, 205 (values from memory; README §12, §14). */
+/** Na I D (air, Å) and oscillator strengths: Morton 2003, ApJS 149, 205 (values from memory; shared/science/README.md §12, §14). */
 export const NAD = Object.freeze({
   d2: Object.freeze({ airAngstrom: 5889.95, f: 0.6408 }),
   d1: Object.freeze({ airAngstrom: 5895.92, f: 0.3201 }),
