@@ -18,6 +18,8 @@ export interface Config {
   jwtSecret: string
   dataDir: string
   uploadLimitBytes: number
+  /** largest spectrum file of an upload, or entry of a zip in one (413 beyond) */
+  spectrumFileLimitBytes: number
   /** EMBEDDED_PG_PORT when set (then exactly that port); unset → 54329, or a free port when taken */
   embeddedPgPort: number | undefined
   appUrl: string
@@ -131,6 +133,7 @@ const EnvSchema = z.object({
   JWT_SECRET: optional(z.string()),
   DATA_DIR: optional(z.string()),
   UPLOAD_LIMIT_MB: atLeast(1).default(50),
+  SPECTRUM_FILE_LIMIT_MB: atLeast(1).default(64),
   EMBEDDED_PG_PORT: port(1),
   APP_URL: url(['http:', 'https:'], 'https://ratiograph.example.org'),
   SECURE_COOKIES: flag.default(false),
@@ -184,6 +187,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     jwtSecret: e.JWT_SECRET ?? readOrCreateSecret(dataDir),
     dataDir,
     uploadLimitBytes: e.UPLOAD_LIMIT_MB * 1024 * 1024,
+    spectrumFileLimitBytes: e.SPECTRUM_FILE_LIMIT_MB * 1024 * 1024,
     embeddedPgPort: e.EMBEDDED_PG_PORT,
     appUrl,
     secureCookies: e.SECURE_COOKIES || (e.APP_URL ?? '').startsWith('https:'),

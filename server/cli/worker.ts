@@ -3,6 +3,7 @@ import { connect } from '../db/client.ts'
 import { startJobQueue, startRecomputeWorker } from '../services/jobs.service.ts'
 import { DiagramCache } from '../services/diagram-cache.ts'
 import { galaxyContext } from '../services/galaxy-context.ts'
+import '../services/spectra-fit.service.ts' // a recompute refits the spectra of galaxies whose lines came from a fit
 
 // `npm run worker`: a recompute worker in its own process (this machine or another) on DATABASE_URL.
 const config = loadConfig()

@@ -7,6 +7,8 @@ import { diagnoseTask, isFailure, type DiagnoseTask, type OutputMode, type TaskF
 import { GALAXY_COST } from './budget.ts'
 import { encodeDiagramTask, type DiagramTask } from './diagram.task.ts'
 import { parseBodyTask, type ParseBodyOutput, type ParseBodyTask } from './parse-body.task.ts'
+import { readSpectraTask, type ReadSpectraOutput, type ReadSpectraTask } from './read-spectra.task.ts'
+import { fitSpectrumTask, type FitSpectrumOutput, type FitSpectrumTask } from './fit-spectra.task.ts'
 
 /** The pool's part of the configuration (server/config.ts). */
 export type ComputeSettings = Pick<Config, 'computeThreads' | 'computeQueue' | 'computeTimeoutMs'>
@@ -39,6 +41,13 @@ export interface ComputePool {
    * like background work (no 503 for a full queue), under the time budget of one chunk.
    */
   parseBody(task: Omit<ParseBodyTask, 'kind'>, signal?: AbortSignal): Promise<ParseBodyOutput>
+  /** Reads one spectrum file (FITS or text) and checks its spectra; the bytes are handed over, not copied. */
+  readSpectra(bytes: Uint8Array): Promise<ReadSpectraOutput>
+  /**
+   * Fits one spectrum. Background work waits its turn; `interactive` (a request waiting for the
+   * answer) is refused with 503 when the queue is full and stopped at the time budget.
+   */
+  fitSpectrum(task: Omit<FitSpectrumTask, 'kind'>, opts?: { interactive?: boolean }): Promise<FitSpectrumOutput>
   close(): Promise<void>
 }
 
@@ -162,6 +171,18 @@ export function createComputePool(s: ComputeSettings): ComputePool {
         whole ? [task.bytes.buffer as ArrayBuffer] : undefined)
         .catch((err: unknown) => { throw deadline?.aborted ? tooLong(s.computeTimeoutMs) : signal?.aborted ? gone() : err })
     },
+    readSpectra: (bytes) => {
+      const whole = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength && bytes.buffer instanceof ArrayBuffer
+      const deadline = timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined
+      return submit<ReadSpectraOutput>({ kind: 'read-spectra', bytes } satisfies ReadSpectraTask, deadline, whole ? [bytes.buffer as ArrayBuffer] : undefined)
+        .catch((err: unknown) => { throw deadline?.aborted ? tooLong(s.computeTimeoutMs) : err })
+    },
+    fitSpectrum: (task, opts = {}) => {
+      if (opts.interactive && waiting.length >= s.computeQueue) return Promise.reject(busy())
+      const deadline = timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined
+      return submit<FitSpectrumOutput>({ kind: 'fit-spectrum', ...task } satisfies FitSpectrumTask, deadline)
+        .catch((err: unknown) => { throw deadline?.aborted ? tooLong(s.computeTimeoutMs) : err })
+    },
     async close() {
       closed = true
       for (const job of waiting.splice(0)) job.fail(new Error('the compute pool was closed'))
@@ -177,6 +198,8 @@ export function inProcessCompute(s: ComputeSettings = { computeThreads: 1, compu
     threads: 1, closed: false, queued: 0, run: runner(1, exec, () => 0, s),
     encodeDiagram: async (json) => encodeDiagramTask({ kind: 'diagram', json }),
     parseBody: async (task) => parseBodyTask({ kind: 'parse-body', ...task }),
+    readSpectra: async (bytes) => readSpectraTask({ kind: 'read-spectra', bytes }),
+    fitSpectrum: async (task) => fitSpectrumTask({ kind: 'fit-spectrum', ...task }),
     async close() {},
   }
 }

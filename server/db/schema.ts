@@ -1,9 +1,12 @@
 import { sql } from 'drizzle-orm'
 import {
-  bigint, bigserial, boolean, doublePrecision, index, integer, json, jsonb, pgEnum, pgTable, primaryKey,
+  bigint, bigserial, boolean, customType, doublePrecision, index, integer, json, jsonb, pgEnum, pgTable, primaryKey,
   real, smallint, text, timestamp, uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core'
 import { RESULTS_COLUMNS } from '../../shared/results/storage.ts'
+
+/** Raw bytes (the spectra's arrays, little-endian). */
+const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'bytea' })
 
 const createdAt = () => timestamp({ withTimezone: true }).notNull().defaultNow()
 
@@ -169,6 +172,11 @@ export const galaxies = pgTable('galaxies', {
   fluxUnit: doublePrecision().notNull().default(1),
   /** `json`, not `jsonb`: stored and returned as sent, never queried inside, and much cheaper to write. */
   input: json().notNull(),
+  /**
+   * Where the lines came from when not from an intake's rows: `{ source: 'line-fit', spectrumId,
+   * revision }` for lines measured from the galaxy's spectrum under that assumptions revision.
+   */
+  provenance: jsonb(),
   lastIntakeId: uuid(),
   createdAt: createdAt(),
   updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
@@ -197,6 +205,7 @@ export const galaxyVersions = pgTable('galaxy_versions', {
   dec: doublePrecision(),
   fluxUnit: doublePrecision().notNull(),
   input: json().notNull(),
+  provenance: jsonb(),
   /** When the superseded record had been written (its `updated_at`). */
   writtenAt: timestamp({ withTimezone: true }).notNull(),
   replacedAt: createdAt(),
@@ -252,6 +261,69 @@ export const jobs = pgTable('jobs', {
   createdAt: createdAt(),
   finishedAt: timestamp({ withTimezone: true }),
 }, (t) => [index('jobs_project_time').on(t.projectId, t.createdAt), index('jobs_unfinished').on(t.status).where(sql`status in ('queued', 'running')`)])
+
+/** One upload of spectra files: what each file held, or why it was refused (`skipInvalid`). */
+export const spectrumUploads = pgTable('spectrum_uploads', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+  fileCount: integer().notNull(),
+  spectrumCount: integer().notNull(),
+  /** the intake under which the fit writes the galaxies' lines (their earlier records go to galaxy_versions with it) */
+  intakeId: uuid().references(() => intakes.id, { onDelete: 'set null' }),
+  /** per file: name, size, spectra [{ galaxyId, pixels, source, spectrumId, stored }] or error { message, line? } */
+  report: jsonb().notNull(),
+}, (t) => [index('spectrum_uploads_project_time').on(t.projectId, t.createdAt)])
+
+/**
+ * The current 1-D spectrum of a galaxy (one per galaxy and project), its arrays as stored bytes:
+ * wavelength Float64 LE (observed Å), flux and noise Float32 LE (a bad pixel: ivar 0 or error NaN).
+ */
+export const spectra = pgTable('spectra', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  /** the galaxy's public ID (galaxies.key) */
+  galaxyId: text().notNull(),
+  uploadId: uuid().notNull().references(() => spectrumUploads.id, { onDelete: 'cascade' }),
+  fileName: text().notNull(),
+  /** where in the file the arrays came from (HDU, columns) */
+  source: text().notNull(),
+  redshift: doublePrecision().notNull(),
+  wavelengthMedium: text().notNull(), // 'air' | 'vacuum'
+  /** erg s⁻¹ cm⁻² Å⁻¹ per flux unit */
+  fluxUnit: doublePrecision().notNull().default(1),
+  /** the instrument's line-spread FWHM: { fwhmAngstrom } | { fwhmKmPerS } | { resolvingPower } */
+  resolution: jsonb(),
+  pixels: integer().notNull(),
+  /** the first and last wavelengths (observed Å), for the fit-quality table */
+  wavelengthMin: doublePrecision().notNull(),
+  wavelengthMax: doublePrecision().notNull(),
+  wavelength: bytea().notNull(),
+  flux: bytea().notNull(),
+  noiseKind: text().notNull(), // 'error' | 'ivar'
+  noise: bytea().notNull(),
+  /** SHA-256 of the three arrays' bytes, hex */
+  sha256: text().notNull(),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('spectra_project_galaxy').on(t.projectId, t.galaxyId), index('spectra_upload').on(t.uploadId, t.id)])
+
+/** The line fit of one spectrum under one assumptions revision (its fit settings). */
+export const lineFits = pgTable('line_fits', {
+  spectrumId: bigint({ mode: 'number' }).notNull().references(() => spectra.id, { onDelete: 'cascade' }),
+  revision: integer().notNull(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  /** the fit settings as resolved (every default filled) and the detection threshold */
+  settings: jsonb().notNull(),
+  /** lines, absorption, fit statistics, measurements and flags, as the fit returned them */
+  result: jsonb().notNull(),
+  chi2: doublePrecision(),
+  dof: integer(),
+  detections: smallint().notNull().default(0),
+  flags: text().array().notNull().default(sql`'{}'::text[]`),
+  methodVersion: text().notNull(),
+  createdAt: createdAt(),
+}, (t) => [primaryKey({ columns: [t.spectrumId, t.revision] }), index('line_fits_project_revision').on(t.projectId, t.revision)])
 
 /** Mail received by the local catcher (development and tests); site admins read it on the Outbox. */
 export const outboxMessages = pgTable('outbox_messages', {

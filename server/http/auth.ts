@@ -152,8 +152,9 @@ export function guardFor(db: Db) {
   return (spec: AnySpec) =>
     async (req: Request, _res: Response, next: (err?: unknown) => void) => {
       const access = spec.access
-      if (spec.body && !req.is('application/json') && req.headers['content-type'] !== undefined) {
-        return next(new HttpProblem(415, 'Unsupported Media Type', 'send application/json'))
+      const media = spec.bodyContentType ?? 'application/json'
+      if (spec.body && !req.is(media) && req.headers['content-type'] !== undefined) {
+        return next(new HttpProblem(415, 'Unsupported Media Type', `send ${media}`))
       }
       if (access === 'public' || access === 'optional') return next()
       const auth = req.auth

@@ -18,9 +18,10 @@ export const TAGS = {
   Diagrams: 'Columnar data of the diagnostic diagrams',
   Diagnostics: 'Stateless diagnostics: nothing is stored',
   Assumptions: 'The analysis settings of a project, as numbered revisions',
-  Jobs: 'Background work (recomputes, large intakes and undos) and its progress',
+  Jobs: 'Background work (recomputes, large intakes, undos and spectrum fits) and its progress',
   Intake: 'CSV files: upload, mapping, validation, commit and undo',
   Exports: 'Results as CSV or VOTable',
+  Spectra: '1-D spectra of a project\'s galaxies: upload, the fit-quality table, one galaxy\'s spectrum with its fit and model',
   'Site admin': 'Accounts and the local mail catcher, for site administrators',
 } as const
 export type Tag = keyof typeof TAGS

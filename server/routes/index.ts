@@ -15,6 +15,7 @@ import { assumptionsRoutes } from './assumptions.routes.ts'
 import { intakeRoutes } from './intake.routes.ts'
 import { exportRoutes } from './exports.routes.ts'
 import { adminRoutes } from './admin.routes.ts'
+import { spectraRoutes } from './spectra.routes.ts'
 
 export const JSON_LIMIT = '32mb'
 /** Sign-in, sign-up, reset, verification and invitations need little; anyone can call them. */
@@ -44,6 +45,7 @@ export function buildRoutes(deps: RouteDeps, registry: RouteRegistry): Router {
   assumptionsRoutes(v1, deps)
   intakeRoutes(v1, deps)
   exportRoutes(v1, deps)
+  spectraRoutes(v1, deps)
   adminRoutes(v1, deps)
   router.use('/v1', v1.router)
   return router

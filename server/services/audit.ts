@@ -5,7 +5,7 @@ export type AuditAction =
   | 'sign-in' | 'sign-in-failed' | 'sign-up' | 'sign-up-existing-address' | 'password-reset' | 'api-key-created' | 'api-key-revoked'
   | 'email-verified' | 'email-change-requested' | 'email-changed'
   | 'member-added' | 'member-role-changed' | 'member-removed' | 'invitation-sent' | 'invitation-revoked'
-  | 'assumptions-changed' | 'intake-undone' | 'project-created' | 'project-renamed' | 'project-deleted' | 'user-disabled' | 'user-enabled'
+  | 'assumptions-changed' | 'intake-undone' | 'spectra-uploaded' | 'project-created' | 'project-renamed' | 'project-deleted' | 'user-disabled' | 'user-enabled'
 
 /** Appends one audit event; runs inside the caller's transaction when given one. */
 export async function audit(db: Pick<Db, 'insert'>, e: {

@@ -31,13 +31,13 @@ export const safeCell = (v: string | number | null) =>
   (typeof v === 'string' ? v.replace(/(^|;)(?=[\s"]*[=+\-@]|[\t\r])/g, "$1'") : v)
 
 /** The CSV writer's options: fields holding `;` are quoted as well as those holding `,`. */
-const CSV_OPTIONS = { quoted_match: [';'], cast: { number: (v: number) => String(v) } }
+export const CSV_OPTIONS = { quoted_match: [';'], cast: { number: (v: number) => String(v) } }
 
 /** Settings as `key=value` words, so the provenance line needs no CSV quoting and stays a `#` line. */
-export function settingsWords(settings: Record<string, unknown>): string {
-  return Object.entries(settings).flatMap(([k, v]) => (v && typeof v === 'object'
-    ? Object.entries(v as Record<string, unknown>).map(([k2, v2]) => `${k}.${k2}=${String(v2)}`)
-    : [`${k}=${String(v)}`])).join(' ')
+export function settingsWords(settings: Record<string, unknown>, prefix = ''): string {
+  return Object.entries(settings).map(([k, v]) => (v && typeof v === 'object' && !Array.isArray(v)
+    ? settingsWords(v as Record<string, unknown>, `${prefix}${k}.`)
+    : `${prefix}${k}=${String(v)}`)).join(' ')
 }
 
 /**
@@ -74,7 +74,7 @@ async function* rowsOf(db: Db, projectId: string, revision: number, f: GalaxyFil
   }
 }
 
-const xml = (s: string) => s.replace(/[<>&"']/g, (c) => ({ '<': '&lt;', '>': '&gt;', '&': '&amp;', '"': '&quot;', "'": '&apos;' })[c]!)
+export const xml = (s: string) => s.replace(/[<>&"']/g, (c) => ({ '<': '&lt;', '>': '&gt;', '&': '&amp;', '"': '&quot;', "'": '&apos;' })[c]!)
   // XML 1.0 forbids most control characters even escaped
   .replace(/[\u0000-\u0008\u000b\u000c\u000e-\u001f]/g, '')
 

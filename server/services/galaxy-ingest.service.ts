@@ -107,6 +107,8 @@ export interface WriteOptions {
   onExisting?: OnExisting
   /** Bump the project's data version (the diagram cache key); a long intake bumps it once, at its end. */
   bumpVersion?: boolean
+  /** Where each galaxy's lines came from when not from the intake's rows (line fits), by index; else null. */
+  provenance?: ReadonlyArray<object | null>
 }
 
 /**
@@ -129,22 +131,22 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
     if (onExisting !== 'skip') {
       const kept = await tx.execute<{ id: number }>(sql`
         with old as (
-          select id, last_intake_id, redshift, ra, dec, flux_unit, input, updated_at from galaxies
+          select id, last_intake_id, redshift, ra, dec, flux_unit, input, provenance, updated_at from galaxies
           where project_id = ${projectId}::uuid and key = ${anyKey(keys)} for update),
         saved as (
-          insert into galaxy_versions (galaxy_id, intake_id, previous_intake_id, redshift, ra, dec, flux_unit, input, written_at)
-          select id, ${intakeId}::uuid, last_intake_id, redshift, ra, dec, flux_unit, input, updated_at from old)
+          insert into galaxy_versions (galaxy_id, intake_id, previous_intake_id, redshift, ra, dec, flux_unit, input, provenance, written_at)
+          select id, ${intakeId}::uuid, last_intake_id, redshift, ra, dec, flux_unit, input, provenance, updated_at from old)
         select id from old`)
       locked = kept.rows.map((r) => r.id)
     }
-    const rows = part.map((g) => ({ key: g.id, redshift: g.redshift ?? null, ra: g.ra ?? null, dec: g.dec ?? null, flux_unit: g.fluxUnit ?? 1, input: storedInput(g) }))
+    const rows = part.map((g, j) => ({ key: g.id, redshift: g.redshift ?? null, ra: g.ra ?? null, dec: g.dec ?? null, flux_unit: g.fluxUnit ?? 1, input: storedInput(g), provenance: opts.provenance?.[start + j] ?? null }))
     const onConflict = onExisting === 'skip' ? sql`do nothing` : sql`do update set redshift = excluded.redshift, ra = excluded.ra, dec = excluded.dec,
-        flux_unit = excluded.flux_unit, input = excluded.input, last_intake_id = excluded.last_intake_id, updated_at = now()
+        flux_unit = excluded.flux_unit, input = excluded.input, provenance = excluded.provenance, last_intake_id = excluded.last_intake_id, updated_at = now()
         where galaxies.id = any(${idArray(locked)})`
     const ids = await tx.execute<{ id: number; key: string; inserted: boolean }>(sql`
-      insert into galaxies (project_id, key, redshift, ra, dec, flux_unit, input, last_intake_id)
-      select ${projectId}::uuid, t.key, t.redshift, t.ra, t.dec, t.flux_unit, t.input, ${intakeId}::uuid
-      from json_to_recordset(${JSON.stringify(rows)}::json) as t(key text, redshift float8, ra float8, dec float8, flux_unit float8, input json)
+      insert into galaxies (project_id, key, redshift, ra, dec, flux_unit, input, provenance, last_intake_id)
+      select ${projectId}::uuid, t.key, t.redshift, t.ra, t.dec, t.flux_unit, t.input, t.provenance, ${intakeId}::uuid
+      from json_to_recordset(${JSON.stringify(rows)}::json) as t(key text, redshift float8, ra float8, dec float8, flux_unit float8, input json, provenance jsonb)
       on conflict (project_id, key) ${onConflict}
       returning id, key, (xmax = 0) as inserted`)
     const idByKey = new Map<string, number>()

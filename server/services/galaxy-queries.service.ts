@@ -77,6 +77,8 @@ export function galaxiesService(db: Db) {
       return {
         id: g.key, redshift: g.redshift, fluxUnit: g.fluxUnit, ra: g.ra, dec: g.dec,
         lines: input.lines, ew: input.ew ?? null, fwhm: input.fwhm ?? null,
+        // where the lines came from when not from an intake's rows: { source: 'line-fit', spectrumId, revision }
+        provenance: g.provenance ?? null,
         revision: res?.revision ?? null, methodVersion: res?.methodVersion ?? null, computedAt: res?.computedAt.toISOString() ?? null,
         results: res?.result ?? null,
         // change: what the intake did (created, replaced, merged); earlier records: GET …/versions

@@ -481,7 +481,7 @@ async function undoChecks(tx: Tx, projectId: string, intakeId: string, lock: boo
 async function undoIntake(tx: Tx, pool: ComputePool, by: { id: string; name: string | null }, projectId: string, intakeId: string, progress?: (n: number) => Promise<void>) {
   const { intake: i, created } = await undoChecks(tx, projectId, intakeId, true)
   await tx.execute(sql`
-    update galaxies g set redshift = v.redshift, ra = v.ra, dec = v.dec, flux_unit = v.flux_unit, input = v.input,
+    update galaxies g set redshift = v.redshift, ra = v.ra, dec = v.dec, flux_unit = v.flux_unit, input = v.input, provenance = v.provenance,
       last_intake_id = v.previous_intake_id, updated_at = v.written_at
     from galaxy_versions v where v.intake_id = ${intakeId}::uuid and v.galaxy_id = g.id`)
   await tx.execute(sql`delete from galaxies where id in (select galaxy_id from galaxy_intakes where intake_id = ${intakeId}::uuid and change = 'created')`)

@@ -11,7 +11,7 @@ import { revisionSettings } from './projects.service.ts'
 import { computeRows, upsertResultsJson } from './galaxy-ingest.service.ts'
 import { warmDiagramSoon } from './diagrams.service.ts'
 import type { GalaxyContext } from './galaxy-context.ts'
-import type { GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
+import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
 
 export const RECOMPUTE_QUEUE = 'recompute'
 const CHUNK = 2000
@@ -45,11 +45,11 @@ export async function startJobQueue(databaseUrl: string): Promise<{ queue: JobQu
 type JobRow = typeof jobs.$inferSelect
 
 export function jobDto(j: JobRow) {
-  const params = j.params as { intakeId?: string } | null
+  const params = j.params as { intakeId?: string; uploadId?: string } | null
   return {
     id: j.id, kind: j.kind, status: j.status, revision: j.revision, total: j.total, done: j.done, error: j.error,
     createdAt: j.createdAt.toISOString(), finishedAt: j.finishedAt?.toISOString() ?? null,
-    intakeId: params?.intakeId ?? null, heartbeatAt: j.heartbeatAt?.toISOString() ?? null,
+    intakeId: params?.intakeId ?? null, uploadId: params?.uploadId ?? null, heartbeatAt: j.heartbeatAt?.toISOString() ?? null,
     resumedAt: j.resumedAt?.toISOString() ?? null, resumeCount: j.resumeCount, resumedFrom: j.resumedFrom,
   }
 }
@@ -242,6 +242,16 @@ export async function reportProgress(db: Db, jobId: string, set: { done: number;
 // ---- recompute ----------------------------------------------------------------------------------
 
 /**
+ * A step of every recompute chunk, given its galaxies (`rows`, with the inputs built from their
+ * records): it may replace inputs (lines measured anew from a spectrum) and returns the writes to
+ * commit with the chunk's results. The spectra fit registers one (spectra-fit.service.ts).
+ */
+export type RecomputeStage = (ctx: GalaxyContext, job: JobRow, rows: Array<{ id: number; key: string; ra: number | null; dec: number | null }>, inputs: GalaxyInputDto[], settings: Settings) =>
+  Promise<((tx: Parameters<Parameters<Db['transaction']>[0]>[0]) => Promise<void>) | undefined>
+const recomputeStages: RecomputeStage[] = []
+export function registerRecomputeStage(stage: RecomputeStage) { recomputeStages.push(stage) }
+
+/**
  * Recomputes every galaxy of a project under one revision, in chunks by id. Each chunk's results
  * and the job's cursor (`lastId`, `done`) are committed together on the lease's connection, so a
  * resumed job continues after the last committed chunk; results are upserted, so a repeated chunk
@@ -261,11 +271,14 @@ async function recompute(lease: JobLease, job: JobRow, ctx: GalaxyContext) {
     const inputs: GalaxyInputDto[] = rows.map((r) => ({
       id: r.key, ...(r.redshift !== null ? { redshift: r.redshift } : {}), fluxUnit: r.fluxUnit, ...(r.input as Pick<GalaxyInputDto, 'lines' | 'ew' | 'fwhm'>),
     }))
+    const writes: Array<Awaited<ReturnType<RecomputeStage>>> = []
+    for (const stage of recomputeStages) writes.push(await stage(ctx, job, rows, inputs, settings))
     // the compute threads also serialise the stored rows: the event loop only joins strings
     const results = await computeRows(ctx.compute, inputs, settings)
     done += rows.length
     lastId = rows[rows.length - 1].id
     await lease.db.transaction(async (tx) => {
+      for (const write of writes) await write?.(tx)
       await upsertResultsJson(tx, job.projectId, job.revision!, results.json(rows.map((r) => r.id), 0))
       await tx.update(jobs).set({ done, lastId, heartbeatAt: sql`now()` }).where(eq(jobs.id, job.id))
     })

@@ -22,6 +22,30 @@ async function histogram(db: Db, projectId: string, revision: number, column: st
   return { edges, counts, log }
 }
 
+/** Velocity offsets (km/s) and intrinsic widths (km/s) shown: narrow Hα, else [O III] 5007, when detected. */
+const NARROW = (k: string) => `coalesce(case when (result->'lines'->'halpha'->>'detected')::boolean then (result->'lines'->'halpha'->>'${k}')::float8 end,
+  case when (result->'lines'->'oiii_5007'->>'detected')::boolean then (result->'lines'->'oiii_5007'->>'${k}')::float8 end)`
+export const KINEMATICS_BINS = { velocity: { lo: -500, hi: 500, bins: 40 }, sigma: { lo: 0, hi: 500, bins: 25 } } as const
+
+/** The line fits under a revision: how many, the share with a broad Hα, and histograms of velocity and σ. */
+async function kinematics(db: Db, projectId: string, revision: number) {
+  const where = sql`project_id = ${projectId}::uuid and revision = ${revision} and result->'fit' is not null and result->>'fit' <> 'null'`
+  const [c] = (await db.execute<{ fitted: number; broad: number }>(sql`select count(*)::int as fitted,
+    count(*) filter (where (result->'fit'->>'broadHalpha')::boolean)::int as broad from line_fits where ${where}`)).rows
+  const hist = async (key: 'velocity' | 'sigmaIntrinsic', b: { lo: number; hi: number; bins: number }) => {
+    const expr = sql.raw(NARROW(key))
+    const rows = (await db.execute<{ b: number; n: number }>(sql`select width_bucket(v, ${b.lo}::float8, ${b.hi}::float8, ${b.bins}::int) as b, count(*)::int as n
+      from (select ${expr} as v from line_fits where ${where}) t where v is not null group by 1`)).rows
+    const counts = new Array(b.bins).fill(0)
+    for (const { b: k, n } of rows) counts[Math.min(Math.max(k, 1), b.bins) - 1] += n // the outliers fold into the end bins
+    return { bins: Array.from({ length: b.bins + 1 }, (_, i) => b.lo + ((b.hi - b.lo) * i) / b.bins), counts }
+  }
+  return {
+    fitted: c.fitted, broadFraction: c.fitted ? c.broad / c.fitted : null,
+    velocity: await hist('velocity', KINEMATICS_BINS.velocity), sigma: await hist('sigmaIntrinsic', KINEMATICS_BINS.sigma),
+  }
+}
+
 export async function overview(db: Db, projectId: string, role: Role) {
   const projects = projectsService(db)
   const project = await projects.get(projectId, role)
@@ -45,5 +69,7 @@ export async function overview(db: Db, projectId: string, role: Role) {
     classCounts,
     histograms,
     latestIntakes: await projects.intakes(projectId, 5),
+    // narrow Hα (else [O III] 5007) velocity offsets and intrinsic σ of the fitted spectra; bins are the edges
+    kinematics: await kinematics(db, projectId, revision),
   }
 }

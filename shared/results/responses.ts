@@ -59,6 +59,8 @@ export const GalaxyDetailSchema = z.object({
   lines: line.lines.meta({ description: 'the lines as stored' }),
   ew: line.ew.unwrap().nullable(),
   fwhm: line.fwhm.unwrap().nullable(),
+  provenance: z.object({ source: z.literal('line-fit'), spectrumId: z.number().int(), revision: z.number().int() }).nullable()
+    .meta({ description: 'where the lines came from when not from an intake\'s rows: measured by the fit of the galaxy\'s spectrum under that assumptions revision' }),
   ...GalaxyResultsSchema.shape,
   history: z.array(z.object({
     intakeId: z.uuid(), kind: IntakeSchema.shape.kind, fileName: z.string().nullable(), createdAt: z.string(), by: z.string().nullable(),
@@ -85,4 +87,10 @@ export const ProjectOverviewSchema = z.object({
   histograms: z.object(Object.fromEntries(HISTOGRAM_FIELDS.map((f) => [f.key, HistogramSchema])))
     .meta({ description: HISTOGRAM_FIELDS.map((f) => `${f.key}: ${f.histogram!.log ? 'log10 of ' : ''}${f.description}${f.unit ? ` (${f.unit})` : ''}`).join('; ') }),
   latestIntakes: z.array(IntakeSchema),
+  kinematics: z.object({
+    fitted: z.number().int().meta({ description: 'spectra with a line fit under the revision' }),
+    broadFraction: z.number().nullable().meta({ description: 'share of the fits with a broad Hα component (null: none fitted)' }),
+    velocity: z.object({ bins: z.array(z.number()), counts: z.array(z.number().int()) }).meta({ description: 'narrow Hα (else [O III] 5007) velocity offsets from the redshift, km/s; bins are the edges' }),
+    sigma: z.object({ bins: z.array(z.number()), counts: z.array(z.number().int()) }).meta({ description: 'their intrinsic σ, km/s' }),
+  }),
 }).meta({ id: 'ProjectOverview' })

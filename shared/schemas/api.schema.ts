@@ -63,7 +63,7 @@ export const ProjectSchema = z.object({
   galaxyCount: z.number().int(), currentRevision: z.number().int(), resultsRevision: z.number().int(),
 }).meta({ id: 'Project' })
 export const IntakeSchema = z.object({
-  id: uuid, kind: z.enum(['api', 'csv']), status: z.enum(['staged', 'committing', 'committed', 'undone', 'rejected', 'failed']), fileName: z.string().nullable(),
+  id: uuid, kind: z.enum(['api', 'csv', 'spectra']).meta({ description: '`spectra`: the lines measured by the fit of uploaded spectra (or a refit)' }), status: z.enum(['staged', 'committing', 'committed', 'undone', 'rejected', 'failed']), fileName: z.string().nullable(),
   createdAt: z.string(), finishedAt: z.string().nullable(), by: z.object({ id: uuid, name: z.string().nullable() }).nullable(),
   rowsTotal: z.number().int(), rowsAccepted: z.number().int(), rowsRejected: z.number().int(), revision: z.number().int().nullable(),
 }).meta({ id: 'Intake' })
@@ -74,7 +74,8 @@ export const BatchResponseSchema = z.object({
 export const JobSchema = z.object({
   id: uuid, kind: z.string(), status: z.enum(['queued', 'running', 'done', 'failed']), revision: z.number().int().nullable(),
   total: z.number().int(), done: z.number().int(), error: z.string().nullable(), createdAt: z.string(), finishedAt: z.string().nullable(),
-  intakeId: uuid.nullable().meta({ description: 'the intake an `intake` job stores' }),
+  intakeId: uuid.nullable().meta({ description: 'the intake an `intake` job stores, or under which a `fit` job writes the galaxies\' lines' }),
+  uploadId: uuid.nullable().meta({ description: 'the spectra upload a `fit` job fits' }),
   heartbeatAt: z.string().nullable().meta({ description: 'last progress of the worker' }),
   resumedAt: z.string().nullable().meta({ description: 'when a job whose worker had gone (a crash, a restart) was taken up again' }),
   resumeCount: z.number().int(),

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { textLine } from './text.ts'
+import { FitOptionsSchema } from './fit-options.schema.ts'
 import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
 import { SFR_CALIBRATIONS } from '../vocabulary/calibrations.ts'
 import { defaultRvFor, EXTINCTION_LAWS } from '../vocabulary/extinction-laws.ts'
@@ -74,6 +75,7 @@ export const SettingsInputSchema = z.object({
     draws: z.number().int().min(0).max(5000).default(0),
     seed: z.number().int().min(0).max(2 ** 32 - 1).default(1),
   }).strict().prefault({}),
+  fit: FitOptionsSchema.prefault({}).meta({ description: 'how galaxies\' spectra are fitted (their lines are measured under these settings)' }),
 }).strict()
 
 /** Settings as the science uses them and answers show them: every default applied, R_V resolved. */

@@ -18,8 +18,6 @@ export const WAVELENGTH_MIN = 100
 export const WAVELENGTH_MAX = 1e6
 /** Inverse variance bound: 1/ERROR_MIN². */
 export const IVAR_MAX = 1 / (ERROR_MIN * ERROR_MIN)
-/** Most Monte Carlo refits per spectrum (each is a full fit). */
-export const SPECTRUM_MAX_MONTE_CARLO_DRAWS = 1000
 
 export const ResolutionSchema = z.object({
   fwhmAngstrom: z.number().gt(0).max(1000).optional().meta({ description: 'instrumental FWHM in observed Å' }),
@@ -61,17 +59,5 @@ export const SpectrumSchema = z.object({
 }).meta({ id: 'Spectrum' })
 export type SpectrumDto = z.infer<typeof SpectrumSchema>
 
-export const FitOptionsSchema = z.object({
-  profile: z.enum(['gaussian', 'lorentzian', 'voigt']).default('gaussian'),
-  components: z.union([z.literal(1), z.literal(2), z.literal('auto')]).default(1)
-    .meta({ description: 'narrow kinematic components; auto keeps the second when BIC falls by > 10 and it is detected' }),
-  broadHalpha: z.enum(['off', 'on', 'auto']).default('auto'),
-  absorption: z.array(z.enum(['nad'])).max(1).default(['nad']),
-  monteCarlo: z.object({
-    draws: z.number().int().min(0).max(SPECTRUM_MAX_MONTE_CARLO_DRAWS).default(0),
-    seed: z.number().int().min(0).max(2 ** 32 - 1).default(1),
-  }).strict().prefault({}),
-  balmerAbsorptionEw: z.number().min(0).max(20).default(0)
-    .meta({ description: 'fixed rest-frame stellar absorption EW (Å) added back to the narrow Balmer lines; 0 = none' }),
-}).strict().meta({ id: 'SpectrumFitOptions' })
-export type FitOptionsDto = z.output<typeof FitOptionsSchema>
+// in a module of their own: the assumptions (galaxy.schema.ts) hold them as `settings.fit`, and this module imports galaxy.schema.ts
+export { FitOptionsSchema, SPECTRUM_MAX_MONTE_CARLO_DRAWS, type FitOptionsDto } from './fit-options.schema.ts'

@@ -296,6 +296,12 @@ export function fitSpectrum(spectrum: SpectrumInput, options: FitOptions = {}, c
   }
   if (setup.pixels.windows.length === 0) return result
   const best = chooseModel(setup, opts, minSnr)
+  // what redraws the model on the spectrum (shared/spectra/redraw.ts): the windows' set-up, the configuration, the parameters by name
+  result.model = {
+    setup: { broad: opts.broadHalpha !== 'off', nad: wantNad, components: opts.components === 1 ? 1 : 2 },
+    config: { ...best.model.config },
+    parameters: Object.fromEntries(best.model.names.map((name, j) => [name, best.p[j]])),
+  }
   if (!best.converged) flags.push(flagName('fit-not-converged'))
   const zf = setup.zFactor
   const q = quantities(best.model, best.p, zf)

@@ -133,4 +133,14 @@ export interface SpectrumFitResult {
     fwhm: Partial<Record<LineId, number>>
   }
   flags: string[]
+  /** the fitted model, to redraw it on the spectrum (shared/spectra/redraw.ts); absent when no window was fitted */
+  model?: FitModelParameters
 }
+
+/** The fitted model by name: the windows' set-up (setupFit's arguments), the configuration chosen, the parameters. */
+export interface FitModelParameters {
+  setup: { broad: boolean; nad: boolean; components: 1 | 2 }
+  config: { profile: ProfileKind; components: 1 | 2; broad: boolean; hasInstrument: boolean }
+  parameters: Record<string, number>
+}
+

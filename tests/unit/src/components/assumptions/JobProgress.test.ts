@@ -6,7 +6,7 @@ import type { Job } from '../../../../../src/api/types'
 
 const base: Job = {
   id: 'j', kind: 'recompute', status: 'running', revision: 2, total: 200_000, done: 120_000, error: null,
-  createdAt: '2026-12-01T10:00:00Z', finishedAt: null, intakeId: null, heartbeatAt: null, resumedAt: null, resumeCount: 0, resumedFrom: null,
+  createdAt: '2026-12-01T10:00:00Z', finishedAt: null, intakeId: null, uploadId: null, heartbeatAt: null, resumedAt: null, resumeCount: 0, resumedFrom: null,
 }
 // fmtInt groups digits with a thin space (120 000)
 const text = (job: Job) => mount(JobProgress, { props: { job }, global: { plugins: [createVuetify()] } }).text().replace(/\u2009/g, ',')

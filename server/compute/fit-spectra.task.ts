@@ -1,0 +1,54 @@
+// Fitting stored spectra on a compute thread (server/compute/worker.mjs loads this file): one task
+// per spectrum, so a batch spreads over every thread. Pure: the same function runs in-process.
+import { fitSpectrum, SPECTRUM_FIT_METHOD_VERSION } from '../../shared/spectra/fit.ts'
+import { modelOf as redraw } from '../../shared/spectra/redraw.ts'
+import type { Resolution, SpectrumFitResult, SpectrumInput } from '../../shared/spectra/types.ts'
+import type { FitOptionsDto } from '../../shared/schemas/fit-options.schema.ts'
+
+/** A stored spectrum in its stored form (see server/db/schema.ts `spectra`). */
+export interface StoredSpectrumArrays {
+  galaxyId: string
+  redshift: number
+  fluxUnit: number
+  wavelengthMedium: 'air' | 'vacuum'
+  resolution: Resolution | null
+  wavelength: Float64Array
+  flux: Float32Array
+  noiseKind: 'error' | 'ivar'
+  noise: Float32Array
+}
+
+/** The fit settings of an assumptions revision: the `fit` options and the detection threshold. */
+export type FitSettings = FitOptionsDto & { minSnr: number }
+
+export interface FitSpectrumTask { kind: 'fit-spectrum'; spectrum: StoredSpectrumArrays; settings: FitSettings }
+export type FitSpectrumOutput = { ok: true; result: SpectrumFitResult } | { ok: false; error: string }
+
+/** Version of the fit method stored beside each fit (a new version refits on the next recompute). */
+export const FIT_METHOD_VERSION = SPECTRUM_FIT_METHOD_VERSION
+
+/** The science library's input: errors with null for bad pixels, or the inverse variance. */
+export function spectrumInput(s: StoredSpectrumArrays): SpectrumInput {
+  const base = {
+    id: s.galaxyId, redshift: s.redshift, fluxUnit: s.fluxUnit, wavelengthMedium: s.wavelengthMedium,
+    wavelength: s.wavelength, flux: s.flux, ...(s.resolution ? { resolution: s.resolution } : {}),
+  }
+  if (s.noiseKind === 'ivar') return { ...base, ivar: s.noise }
+  return { ...base, error: Array.from(s.noise, (e) => (Number.isNaN(e) ? null : e)) }
+}
+
+export function fitSpectrumTask(task: FitSpectrumTask): FitSpectrumOutput {
+  const { minSnr, ...options } = task.settings
+  try {
+    return { ok: true, result: fitSpectrum(spectrumInput(task.spectrum), options, { minSnr }) }
+  } catch (err) {
+    // a spectrum the fit cannot take (the upload's checks should have refused it): reported, not thrown,
+    // so one spectrum does not stop a batch
+    return { ok: false, error: err instanceof Error ? err.message : String(err) }
+  }
+}
+
+/** The model of a fit on the spectrum's pixels: continuum, total and each component, for drawing and model.csv. */
+export function modelOf(a: StoredSpectrumArrays, result: unknown) {
+  return redraw(spectrumInput(a), (result ?? {}) as Pick<SpectrumFitResult, 'model'>)
+}
