@@ -3,7 +3,7 @@ import { stringify } from 'csv-stringify'
 import { stringify as stringifyRecords } from 'csv-stringify/sync'
 import { sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
-import { LINE_EXPORT_COLUMNS, type LineExportRow } from '../../shared/schemas/line-export-columns.ts'
+import { LINE_EXPORT_COLUMNS } from '../../shared/results/line-fit-fields.ts'
 import { APP_VERSION } from '../lib/version.ts'
 import { CSV_OPTIONS, safeCell, settingsWords, xml } from './exports.service.ts'
 import { projectRevisionForQueries } from './galaxy-filters.ts'
@@ -19,19 +19,20 @@ import { notFound } from '../http/problem.ts'
 
 const CHUNK = 500
 
-async function* rowsOf(db: Db, projectId: string, revision: number): AsyncGenerator<LineExportRow> {
+/** A fitted galaxy: its record as the exports read it (with the spectrum's ID) and the fit result. */
+interface LineRow { galaxy: { key: string; spectrumId: number; redshift: number; ra: null; dec: null; fluxUnit: number }; result: unknown }
+
+async function* rowsOf(db: Db, projectId: string, revision: number): AsyncGenerator<LineRow> {
   let lastId = 0
   for (;;) {
     const res = await db.execute<{ id: number; galaxy_id: string; redshift: number; flux_unit: number; result: unknown }>(sql`
       select s.id, s.galaxy_id, s.redshift, s.flux_unit, f.result from spectra s join line_fits f on f.spectrum_id = s.id and f.revision = ${revision}
       where s.project_id = ${projectId}::uuid and s.id > ${lastId} order by s.id limit ${CHUNK}`)
     if (!res.rows.length) return
-    for (const r of res.rows) yield { galaxyId: r.galaxy_id, spectrumId: Number(r.id), redshift: r.redshift, fluxUnit: r.flux_unit, result: r.result }
+    for (const r of res.rows) yield { galaxy: { key: r.galaxy_id, spectrumId: Number(r.id), redshift: r.redshift, ra: null, dec: null, fluxUnit: r.flux_unit }, result: r.result }
     lastId = Number(res.rows[res.rows.length - 1].id)
   }
 }
-
-const cell = (v: string | number | boolean | null) => (typeof v === 'boolean' ? Number(v) : v)
 
 export function linesExportService(db: Db, spectra: ReturnType<typeof spectraService>) {
   async function context(projectId: string, revision?: number) {
@@ -52,10 +53,11 @@ export function linesExportService(db: Db, spectra: ReturnType<typeof spectraSer
         ['# fluxes observed (not corrected for dust) in erg s-1 cm-2; velocities are offsets from the redshift; sigma is the Gaussian width; EWs rest-frame, emission positive'],
         ['# units: ' + LINE_EXPORT_COLUMNS.filter((k) => k.unit).map((k) => `${k.name}=${k.unit}`).join(' ')],
       ], CSV_OPTIONS))
-      const out = stringify({ header: true, columns: LINE_EXPORT_COLUMNS.map((k) => k.name), ...CSV_OPTIONS })
+      // booleans as the words VOTable uses too (the writer's default is 1 and an empty cell)
+      const out = stringify({ header: true, columns: LINE_EXPORT_COLUMNS.map((k) => k.name), ...CSV_OPTIONS, cast: { ...CSV_OPTIONS.cast, boolean: (v: boolean) => String(v) } })
       out.pipe(res)
       for await (const row of rowsOf(db, projectId, c.revision)) {
-        if (!out.write(LINE_EXPORT_COLUMNS.map((k) => safeCell(cell(k.get(row)) as string | number | null)))) await new Promise((ok) => out.once('drain', ok))
+        if (!out.write(LINE_EXPORT_COLUMNS.map((k) => safeCell(k.get(row.galaxy, row.result))))) await new Promise((ok) => out.once('drain', ok))
       }
       out.end()
     },
@@ -80,7 +82,7 @@ ${fields.join('\n')}
 `)
       let buf = ''
       for await (const row of rowsOf(db, projectId, c.revision)) {
-        buf += '        <TR>' + LINE_EXPORT_COLUMNS.map((k) => { const v = cell(k.get(row)); return v === null ? '<TD/>' : `<TD>${xml(String(v))}</TD>` }).join('') + '</TR>\n'
+        buf += '        <TR>' + LINE_EXPORT_COLUMNS.map((k) => { const v = k.get(row.galaxy, row.result); return v === null ? '<TD/>' : `<TD>${xml(String(v))}</TD>` }).join('') + '</TR>\n'
         if (buf.length > 1 << 16) { if (!res.write(buf)) await new Promise((ok) => res.once('drain', ok)); buf = '' }
       }
       res.end(buf + '      </TABLEDATA></DATA>\n    </TABLE>\n  </RESOURCE>\n</VOTABLE>\n')

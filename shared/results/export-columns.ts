@@ -28,7 +28,10 @@ function exportGetter(f: ResultField): ExportColumn['get'] {
   }
 }
 
-export const EXPORT_COLUMNS: ExportColumn[] = RESULT_FIELDS.filter((f) => f.export).map((f) => ({
+/** The export columns of a list of fields, in its order (those with an `export`). */
+export const exportColumnsOf = (fields: readonly ResultField[]): ExportColumn[] => fields.filter((f) => f.export).map((f) => ({
   name: f.export!.name, description: f.export!.description, unit: f.unit, ucd: f.ucd, datatype: f.export!.datatype, group: f.group, field: f.key,
   get: exportGetter(f),
 }))
+
+export const EXPORT_COLUMNS: ExportColumn[] = exportColumnsOf(RESULT_FIELDS)

@@ -177,6 +177,7 @@ describe('reading the fits', () => {
     const sf3 = rows.find((r) => r[0] === 'SF-3')!
     const g = (await get('/galaxies/SF-3')).body
     expect(Number(sf3[header.indexOf('halpha_flux')])).toBe(g.lines.halpha.flux * g.fluxUnit)
+    expect(sf3[header.indexOf('broad_halpha')]).toBe('false')
 
     const vot = (await get('/exports/lines.vot')).text
     expect(vot).toContain('<FIELD name="halpha_flux" datatype="double" unit="erg.s**-1.cm**-2" ucd="phot.flux;em.line.Halpha">')
