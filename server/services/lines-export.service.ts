@@ -95,7 +95,8 @@ ${fields.join('\n')}
       if (!fit) throw notFound(revision === undefined ? 'fit of this spectrum yet' : 'fit of this spectrum under that revision')
       const a = arraysOf(row)
       const model = modelOf(a, fit.result)
-      const names = model.components.map((k) => `${k.line}_${k.kind}`)
+      // a line's column (with the lines tied to it), its second narrow component, broad Hα, the Na I D absorption
+      const names = model.components.map((k) => (k.kind === 'narrow2' ? `${k.line}_2` : k.kind === 'absorption' ? `${k.line}_absorption` : k.line))
       res.setHeader('Content-Type', 'text/csv; charset=utf-8')
       res.setHeader('Content-Disposition', `attachment; filename="ratiograph-${projectId.slice(0, 8)}-model-rev${fit.revision}.csv"`)
       res.write(stringifyRecords([

@@ -7,6 +7,7 @@ import { Ajv2020 } from 'ajv/dist/2020.js'
 import { PROJECT_ROOT } from '../../server/config.ts'
 import { signedInAgent, startTestApp, type TestApp } from '../helpers/app.ts'
 import { galaxy, seyfert } from '../helpers/fixtures.ts'
+import { STAR_FORMING, syntheticCsv } from '../helpers/spectra.ts'
 
 let t: TestApp
 let doc: any // eslint-disable-line @typescript-eslint/no-explicit-any
@@ -232,6 +233,19 @@ describe('OpenAPI document', () => {
     const again2 = await upload()
     expect(again2.body.savedMappings.map((m: { name: string }) => m.name)).toEqual(['two'])
     check('post', `${V1}/intakes/csv`, again2)
+    // a spectrum: the upload (202), the fit-quality table, the galaxy's spectrum with its fit, a trial refit, the jobs and overview with a fit
+    const spectrum = await send(o.agent.post(`${url}/spectra`)).field('defaults', JSON.stringify({ redshift: 0.02 }))
+      .attach('files', Buffer.from(syntheticCsv({ redshift: 0.02, lines: STAR_FORMING })), { filename: 'S-1.csv' })
+    check('post', `${V1}/spectra`, spectrum)
+    for (let i = 0; i < 500 && (await o.agent.get(`${url}/jobs/${spectrum.body.job.id}`)).body.status !== 'done'; i++) await new Promise((ok) => setTimeout(ok, 20))
+    check('get', `${V1}/spectra`, await o.agent.get(`${url}/spectra`))
+    const fitted = await o.agent.get(`${url}/galaxies/S-1/spectrum`)
+    expect(fitted.body.fit.revision).toBeGreaterThan(0)
+    check('get', `${V1}/galaxies/{galaxyId}/spectrum`, fitted)
+    check('post', `${V1}/galaxies/{galaxyId}/spectrum/fit`, await send(o.agent.post(`${url}/galaxies/S-1/spectrum/fit`)).send({ fit: { broadHalpha: 'off' } }))
+    check('get', `${V1}/galaxies/{galaxyId}`, await o.agent.get(`${url}/galaxies/S-1`))
+    check('get', `${V1}/overview`, await o.agent.get(`${url}/overview`))
+    check('get', `${V1}/jobs/{jobId}`, await o.agent.get(`${url}/jobs/${spectrum.body.job.id}`))
     check('get', '/api/v1/me', await o.agent.get('/api/v1/me'))
     check('get', '/api/v1/admin/users', await o.agent.get('/api/v1/admin/users'))
     check('get', '/api/v1/admin/outbox', await o.agent.get('/api/v1/admin/outbox'))
