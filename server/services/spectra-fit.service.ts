@@ -2,6 +2,7 @@ import { and, asc, eq, gt, sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { intakes, jobs, lineFits, projects, spectra } from '../db/schema.ts'
 import { logger } from '../lib/logger.ts'
+import { flagName } from '../../shared/vocabulary/flags.ts'
 import { GalaxyInputSchema, type GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 import { FIT_METHOD_VERSION, type FitSettings } from '../compute/fit-spectra.task.ts'
 import { bumpDataVersion, computeRows, revisionsToCompute, writeGalaxies, type PreparedResults, type RevisionPlan } from './galaxy-ingest.service.ts'
@@ -70,7 +71,7 @@ async function fitsFor(ex: Executor, compute: ComputePool, rows: SpectrumRow[], 
       if (!arrays.has(row.id)) arrays.set(row.id, arraysOf(row))
       pending.set(k, compute.fitSpectrum({ spectrum: arrays.get(row.id)!, settings }).then((o) => (o.ok
         ? o.result as unknown as StoredFit
-        : { fit: null, lines: {}, flags: ['fit-failed'], error: o.error })))
+        : { fit: null, lines: {}, flags: [flagName('fit-failed')], error: o.error })))
     }
     out.get(revision)!.set(row.id, { result: await pending.get(k)!, settings, methodVersion: FIT_METHOD_VERSION, origin: 'fitted' })
   }))

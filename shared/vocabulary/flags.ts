@@ -127,6 +127,7 @@ const SPECTRUM_FAMILIES = {
   'no-instrumental-correction': caution(() => 'No instrumental resolution was given, so the line widths include the instrument\'s own broadening.'),
   'blended': caution((a) => `${lineLabel(a)} emission lies inside the Na I D absorption; both were fitted together, but their equivalent widths depend on each other.`),
   'fit-not-converged': caution(() => 'The line fit stopped before it converged; its numbers and errors are doubtful.'),
+  'fit-failed': caution(() => 'The stored spectrum could not be fitted, so it has no measurements and the galaxy\'s lines were left as they were.'),
   'doublet-ratio-linear': info(() => 'The Na I D doublet ratio is at its optically thin value: the column density uses the linear part of the curve of growth, and the Doppler parameter b is not constrained.'),
   'doublet-ratio-saturated': caution(() => 'The Na I D lines are saturated (doublet ratio near 1): only a lower limit on the column density follows, so none is given.'),
   'doublet-ratio-undefined': caution(() => 'The Na I D doublet ratio is outside the range the curve of growth allows (noise, or the stellar part), so no column density is given.'),
