@@ -1,10 +1,10 @@
 import type { Response } from 'express'
-import { stringify } from 'csv-stringify'
+import { stringify, type Options as CsvOptions } from 'csv-stringify'
 import { stringify as stringifyRecords } from 'csv-stringify/sync'
 import { sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { HttpProblem } from '../http/problem.ts'
-import { EXPORT_COLUMNS, type ExportColumn } from '../../shared/results/export-columns.ts'
+import { EXPORT_COLUMNS, type ExportColumn, type ExportGalaxy } from '../../shared/results/export-columns.ts'
 import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
 import { filterSql, projectRevisionForQueries } from './galaxy-filters.ts'
 import { revisionSettings } from './projects.service.ts'
@@ -102,13 +102,7 @@ export function exportsService(db: Db) {
       res.setHeader('Content-Type', 'text/csv; charset=utf-8')
       res.setHeader('Content-Disposition', `attachment; filename="ratiograph-${projectId.slice(0, 8)}-rev${revision}.csv"`)
       res.write(csvHeaderBlock({ projectName, revision, settings, generated: new Date().toISOString(), columns }))
-      const out = stringify({ header: true, columns: columns.map((c) => c.name), ...CSV_OPTIONS })
-      out.pipe(res)
-      for await (const row of rows) {
-        const g = { key: row.key, redshift: row.redshift, ra: row.ra, dec: row.dec, fluxUnit: row.flux_unit }
-        if (!out.write(columns.map((c) => safeCell(c.get(g, row.result))))) await new Promise((ok) => out.once('drain', ok))
-      }
-      out.end()
+      await streamCsvRows(res, columns, exportRows(rows))
     },
 
     /** Streams a VOTable 1.4 document with a unit and a UCD on every field. */
@@ -117,28 +111,53 @@ export function exportsService(db: Db) {
       const rows = await primedRows(db, projectId, revision, f)
       res.setHeader('Content-Type', 'application/x-votable+xml; charset=utf-8')
       res.setHeader('Content-Disposition', `attachment; filename="ratiograph-${projectId.slice(0, 8)}-rev${revision}.vot"`)
-      const fields = columns.map((c) => {
-        const type = c.datatype === 'char' ? 'datatype="char" arraysize="*"' : c.datatype === 'int' ? 'datatype="int"' : 'datatype="double"'
-        return `      <FIELD name="${xml(c.name)}" ${type}${c.unit ? ` unit="${xml(c.unit)}"` : ''} ucd="${xml(c.ucd)}"><DESCRIPTION>${xml(c.description)}</DESCRIPTION></FIELD>`
+      await streamVotable(res, {
+        resource: 'ratiograph', table: 'galaxies', columns, rows: exportRows(rows),
+        description: `Ratiograph ${APP_VERSION} export of project "${projectName}"; assumptions revision ${revision}; method version ${METHOD_VERSION}`,
+        infos: [['assumptionsRevision', String(revision)], ['methodVersion', METHOD_VERSION], ['settings', JSON.stringify(settings)]],
       })
-      res.write(`<?xml version="1.0" encoding="UTF-8"?>
+    },
+  }
+}
+
+/** A row of an export: the galaxy's record and the result document its columns read. */
+export interface ExportRecord { galaxy: ExportGalaxy; result: unknown }
+
+async function* exportRows(rows: AsyncIterable<ExportRow>): AsyncGenerator<ExportRecord> {
+  for await (const row of rows) yield { galaxy: { key: row.key, redshift: row.redshift, ra: row.ra, dec: row.dec, fluxUnit: row.flux_unit }, result: row.result }
+}
+
+/** Streams the CSV records of the rows (a header line of the column names first), waiting for the socket when it is full. */
+export async function streamCsvRows(res: Response, columns: ExportColumn[], rows: AsyncIterable<ExportRecord>, options: CsvOptions = {}) {
+  const out = stringify({ header: true, columns: columns.map((c) => c.name), ...CSV_OPTIONS, ...options })
+  out.pipe(res)
+  for await (const row of rows) {
+    if (!out.write(columns.map((c) => safeCell(c.get(row.galaxy, row.result))))) await new Promise((ok) => out.once('drain', ok))
+  }
+  out.end()
+}
+
+/** Streams a VOTable 1.4 document: the resource's description and INFOs, a FIELD per column with its unit and UCD, the rows. */
+export async function streamVotable(res: Response, doc: {
+  resource: string; description: string; infos: Array<[string, string]>; table: string; columns: ExportColumn[]; rows: AsyncIterable<ExportRecord>
+}) {
+  const fields = doc.columns.map((c) => {
+    const type = c.datatype === 'char' ? 'datatype="char" arraysize="*"' : c.datatype === 'int' ? 'datatype="int"' : 'datatype="double"'
+    return `      <FIELD name="${xml(c.name)}" ${type}${c.unit ? ` unit="${xml(c.unit)}"` : ''} ucd="${xml(c.ucd)}"><DESCRIPTION>${xml(c.description)}</DESCRIPTION></FIELD>`
+  })
+  res.write(`<?xml version="1.0" encoding="UTF-8"?>
 <VOTABLE version="1.4" xmlns="http://www.ivoa.net/xml/VOTable/v1.3" xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">
-  <RESOURCE type="results" name="ratiograph">
-    <DESCRIPTION>Ratiograph ${xml(APP_VERSION)} export of project "${xml(projectName)}"; assumptions revision ${revision}; method version ${xml(METHOD_VERSION)}</DESCRIPTION>
-    <INFO name="assumptionsRevision" value="${revision}"/>
-    <INFO name="methodVersion" value="${xml(METHOD_VERSION)}"/>
-    <INFO name="settings" value="${xml(JSON.stringify(settings))}"/>
-    <TABLE name="galaxies">
+  <RESOURCE type="results" name="${xml(doc.resource)}">
+    <DESCRIPTION>${xml(doc.description)}</DESCRIPTION>
+${doc.infos.map(([name, value]) => `    <INFO name="${xml(name)}" value="${xml(value)}"/>`).join('\n')}
+    <TABLE name="${xml(doc.table)}">
 ${fields.join('\n')}
       <DATA><TABLEDATA>
 `)
-      let buf = ''
-      for await (const row of rows) {
-        const g = { key: row.key, redshift: row.redshift, ra: row.ra, dec: row.dec, fluxUnit: row.flux_unit }
-        buf += '        <TR>' + columns.map((c) => { const v = c.get(g, row.result); return v === null ? '<TD/>' : `<TD>${xml(String(v))}</TD>` }).join('') + '</TR>\n'
-        if (buf.length > 1 << 16) { if (!res.write(buf)) await new Promise((ok) => res.once('drain', ok)); buf = '' }
-      }
-      res.end(buf + '      </TABLEDATA></DATA>\n    </TABLE>\n  </RESOURCE>\n</VOTABLE>\n')
-    },
+  let buf = ''
+  for await (const row of doc.rows) {
+    buf += '        <TR>' + doc.columns.map((c) => { const v = c.get(row.galaxy, row.result); return v === null ? '<TD/>' : `<TD>${xml(String(v))}</TD>` }).join('') + '</TR>\n'
+    if (buf.length > 1 << 16) { if (!res.write(buf)) await new Promise((ok) => res.once('drain', ok)); buf = '' }
   }
+  res.end(buf + '      </TABLEDATA></DATA>\n    </TABLE>\n  </RESOURCE>\n</VOTABLE>\n')
 }

@@ -5,7 +5,7 @@ import { sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { LINE_EXPORT_COLUMNS } from '../../shared/results/line-fit-fields.ts'
 import { APP_VERSION } from '../lib/version.ts'
-import { CSV_OPTIONS, safeCell, settingsWords, xml } from './exports.service.ts'
+import { CSV_OPTIONS, safeCell, settingsWords, streamCsvRows, streamVotable } from './exports.service.ts'
 import { projectRevisionForQueries } from './galaxy-filters.ts'
 import { revisionSettings } from './projects.service.ts'
 import { arraysOf, f32, fitOf, type spectraService } from './spectra.service.ts'
@@ -54,38 +54,18 @@ export function linesExportService(db: Db, spectra: ReturnType<typeof spectraSer
         ['# units: ' + LINE_EXPORT_COLUMNS.filter((k) => k.unit).map((k) => `${k.name}=${k.unit}`).join(' ')],
       ], CSV_OPTIONS))
       // booleans as the words VOTable uses too (the writer's default is 1 and an empty cell)
-      const out = stringify({ header: true, columns: LINE_EXPORT_COLUMNS.map((k) => k.name), ...CSV_OPTIONS, cast: { ...CSV_OPTIONS.cast, boolean: (v: boolean) => String(v) } })
-      out.pipe(res)
-      for await (const row of rowsOf(db, projectId, c.revision)) {
-        if (!out.write(LINE_EXPORT_COLUMNS.map((k) => safeCell(k.get(row.galaxy, row.result))))) await new Promise((ok) => out.once('drain', ok))
-      }
-      out.end()
+      await streamCsvRows(res, LINE_EXPORT_COLUMNS, rowsOf(db, projectId, c.revision), { cast: { ...CSV_OPTIONS.cast, boolean: (v: boolean) => String(v) } })
     },
 
     async votable(res: Response, projectId: string, projectName: string, revision?: number) {
       const c = await context(projectId, revision)
       res.setHeader('Content-Type', 'application/x-votable+xml; charset=utf-8')
       res.setHeader('Content-Disposition', `attachment; filename="ratiograph-${projectId.slice(0, 8)}-lines-rev${c.revision}.vot"`)
-      const fields = LINE_EXPORT_COLUMNS.map((k) => {
-        const type = k.datatype === 'char' ? 'datatype="char" arraysize="*"' : k.datatype === 'int' ? 'datatype="int"' : 'datatype="double"'
-        return `      <FIELD name="${xml(k.name)}" ${type}${k.unit ? ` unit="${xml(k.unit)}"` : ''} ucd="${xml(k.ucd)}"><DESCRIPTION>${xml(k.description)}</DESCRIPTION></FIELD>`
+      await streamVotable(res, {
+        resource: 'ratiograph-lines', table: 'lines', columns: LINE_EXPORT_COLUMNS, rows: rowsOf(db, projectId, c.revision),
+        description: `Ratiograph ${APP_VERSION} line measurements of project "${projectName}"; assumptions revision ${c.revision}`,
+        infos: [['assumptionsRevision', String(c.revision)], ['fitSettings', JSON.stringify({ ...c.settings.fit, minSnr: c.settings.minSnr })]],
       })
-      res.write(`<?xml version="1.0" encoding="UTF-8"?>
-<VOTABLE version="1.4" xmlns="http://www.ivoa.net/xml/VOTable/v1.3" xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">
-  <RESOURCE type="results" name="ratiograph-lines">
-    <DESCRIPTION>Ratiograph ${xml(APP_VERSION)} line measurements of project "${xml(projectName)}"; assumptions revision ${c.revision}</DESCRIPTION>
-    <INFO name="assumptionsRevision" value="${c.revision}"/>
-    <INFO name="fitSettings" value="${xml(JSON.stringify({ ...c.settings.fit, minSnr: c.settings.minSnr }))}"/>
-    <TABLE name="lines">
-${fields.join('\n')}
-      <DATA><TABLEDATA>
-`)
-      let buf = ''
-      for await (const row of rowsOf(db, projectId, c.revision)) {
-        buf += '        <TR>' + LINE_EXPORT_COLUMNS.map((k) => { const v = k.get(row.galaxy, row.result); return v === null ? '<TD/>' : `<TD>${xml(String(v))}</TD>` }).join('') + '</TR>\n'
-        if (buf.length > 1 << 16) { if (!res.write(buf)) await new Promise((ok) => res.once('drain', ok)); buf = '' }
-      }
-      res.end(buf + '      </TABLEDATA></DATA>\n    </TABLE>\n  </RESOURCE>\n</VOTABLE>\n')
     },
 
     /** The best-fit model of a galaxy's spectrum per pixel: data, continuum, model, each component, residual. */
