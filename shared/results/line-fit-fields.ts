@@ -1,4 +1,4 @@
-import { LINE_IDS } from '../vocabulary/lines.ts'
+import { LINE_IDS, lineLabel, lineUcd, type LineId } from '../vocabulary/lines.ts'
 import { exportColumnsOf } from './export-columns.ts'
 import type { ResultField } from './registry.ts'
 
@@ -13,16 +13,15 @@ import type { ResultField } from './registry.ts'
 
 const FLUX = 'erg.s**-1.cm**-2'
 const KMS = 'km.s**-1'
-const LINE_UCD: Record<string, string> = { halpha: 'em.line.Halpha', hbeta: 'em.line.Hbeta', hgamma: 'em.line.Hgamma', hdelta: 'em.line.Hdelta', oiii_5007: 'em.line.OIII', oiii_4959: 'em.line.OIII', oiii_4363: 'em.line.OIII', halpha_broad: 'em.line.Halpha' }
 
 const field = (key: string, kind: ResultField['kind'], from: 'galaxy' | 'result', path: readonly string[], description: string, unit: string | null, ucd: string,
   datatype: 'char' | 'double' | 'int' = 'double', group: ResultField['group'] = 'measurements'): ResultField =>
   ({ key, kind, from, path, group, description, unit, ucd, export: { name: key, description, datatype } })
 
-const lineFields = (id: string): ResultField[] => {
-  const em = LINE_UCD[id] ?? 'em.line'
+const lineFields = (id: LineId): ResultField[] => {
+  const em = lineUcd(id)
   const f = (suffix: string, kind: 'flux' | 'number', k: string, description: string, unit: string | null, ucd: string) =>
-    field(`${id}_${suffix}`, kind, 'result', ['lines', id, k], `${id}: ${description}`, unit, ucd)
+    field(`${id}_${suffix}`, kind, 'result', ['lines', id, k], `${lineLabel(id)}: ${description}`, unit, ucd)
   return [
     f('flux', 'flux', 'flux', 'line flux (observed, not corrected for dust)', FLUX, `phot.flux;${em}`),
     f('flux_err', 'flux', 'error', '1σ error of the flux', FLUX, `stat.error;phot.flux;${em}`),
