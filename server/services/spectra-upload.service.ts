@@ -10,7 +10,7 @@ import { HttpProblem } from '../http/problem.ts'
 import { parseRequest } from '../http/parse-request.ts'
 import type { ComputePool } from '../compute/pool.ts'
 import type { ReadProblem, ReadSpectrum } from '../compute/read-spectra.task.ts'
-import { textLine } from '../../shared/schemas/text.ts'
+import { CONTROL_MESSAGE, isCleanText, textLine } from '../../shared/schemas/text.ts'
 import { SPECTRA_PER_UPLOAD_MAX, SPECTRUM_FILE_EXTENSIONS, SPECTRUM_PIXELS_MAX } from '../../shared/schemas/project-spectra.schema.ts'
 
 /**
@@ -79,6 +79,9 @@ export function spectraReceiver(dataDir: string, fileLimitBytes: number, form: z
   }
 }
 
+/** Text from a file (an entry's name, column names) as it can be stored and shown: control characters and lone surrogates as '?'. */
+export const printable = (s: string) => s.replace(/[\u0000-\u001f\u007f-\u009f]|[\ud800-\udbff](?![\udc00-\udfff])|(?<![\ud800-\udbff])[\udc00-\udfff]/g, '?')
+
 const isZip = (name: string) => extname(name).toLowerCase() === '.zip'
 const isSpectrumFile = (name: string) => (SPECTRUM_FILE_EXTENSIONS as readonly string[]).includes(extname(name).toLowerCase())
 /** Entries an archiver adds beside the files (macOS resource forks, hidden files): passed over. */
@@ -116,7 +119,8 @@ async function* zipEntries(file: UploadedFile, fileLimitBytes: number): AsyncGen
     }
     if (!entries.length) yield { name: file.originalname, size: file.size, problem: { path: '', message: 'the archive holds no files' } }
     for (const entry of entries) {
-      const name = `${file.originalname}/${entry.fileName}`
+      const name = `${file.originalname}/${printable(entry.fileName)}`
+      if (!isCleanText(entry.fileName)) { yield { name, size: entry.uncompressedSize, problem: { path: '', message: `the name of "${name}" in the archive ${CONTROL_MESSAGE}` } }; continue }
       if (!isSpectrumFile(entry.fileName)) { yield { name, size: entry.uncompressedSize, problem: wrongKind(entry.fileName) }; continue }
       try {
         const chunks: Buffer[] = []

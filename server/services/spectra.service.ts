@@ -11,7 +11,7 @@ import { anyKey } from './galaxy-ingest.service.ts'
 import type { GalaxyContext } from './galaxy-context.ts'
 import { dispatchJob, jobDto } from './jobs.service.ts'
 import { revisionSettings } from './projects.service.ts'
-import { readUpload, removeStaged, type FileOutcome, type UploadedFile } from './spectra-upload.service.ts'
+import { printable, readUpload, removeStaged, type FileOutcome, type UploadedFile } from './spectra-upload.service.ts'
 import type { ReadSpectrum } from '../compute/read-spectra.task.ts'
 import { FIT_METHOD_VERSION, modelOf, type FitSettings, type StoredSpectrumArrays } from '../compute/fit-spectra.task.ts'
 import type { Settings } from '../../shared/schemas/galaxy.schema.ts'
@@ -134,7 +134,7 @@ async function storeSpectrum(tx: Tx, projectId: string, uploadId: string, fileNa
     replaced = gone.length > 0
   }
   const [row] = await tx.insert(spectra).values({
-    projectId, galaxyId: p.galaxyId, uploadId, fileName: fileName.slice(0, 255), source: p.s.source, redshift: p.redshift!,
+    projectId, galaxyId: p.galaxyId, uploadId, fileName: fileName.slice(0, 255), source: printable(p.s.source).slice(0, 500), redshift: p.redshift!,
     wavelengthMedium: p.s.wavelengthMedium ?? defaults.wavelengthMedium ?? 'air', fluxUnit: p.s.fluxUnit ?? defaults.fluxUnit ?? 1,
     resolution: defaults.resolution ?? null, pixels: p.s.pixels, wavelengthMin: p.s.wavelength[0]!, wavelengthMax: p.s.wavelength[p.s.pixels - 1]!,
     wavelength, flux, noiseKind: p.s.noiseKind, noise, sha256,
@@ -191,7 +191,8 @@ export function spectraService(galaxy: GalaxyContext, limits: { fileLimitBytes: 
           for await (const f of readUpload(galaxy.compute, files, limits.fileLimitBytes)) {
             let problems: FieldError[] = []
             let placed: Placed[] = []
-            if (f.problems) problems = f.problems.map((p) => ({ path: `/files/${f.index}${p.path}`, message: p.message }))
+            // messages quote the file (column names, cells): stored and shown, so printable
+            if (f.problems) problems = f.problems.map((p) => ({ path: `/files/${f.index}${p.path}`, message: printable(p.message) }))
             else ({ placed, problems } = await placeSpectra(tx, projectId, f, defaults, seen))
             if (problems.length) {
               bad++
@@ -206,7 +207,7 @@ export function spectraService(galaxy: GalaxyContext, limits: { fileLimitBytes: 
             for (const p of placed) {
               const s = await storeSpectrum(tx, projectId, upload.id, f.name, p, defaults, form.onExisting)
               if (s.id !== null) stored++
-              entries.push({ galaxyId: p.galaxyId, pixels: p.s.pixels, source: p.s.source, spectrumId: s.id, stored: s.stored })
+              entries.push({ galaxyId: p.galaxyId, pixels: p.s.pixels, source: printable(p.s.source).slice(0, 500), spectrumId: s.id, stored: s.stored })
             }
             report.push({ name: f.name, size: f.size, spectra: entries })
           }

@@ -144,6 +144,11 @@ describe('uploading spectra', () => {
     ])
     expect(res.body.upload.spectrumCount).toBe(1)
     await untilDone(res.body.job.id)
+    // a report quoting a file's control characters is stored and shown with them replaced
+    const nul = await upload([['nul.csv', 'wave\u0000,flux\u001b,error\n' + Array.from({ length: 12 }, (_, i) => `${6500 + i},1,0.1`).join('\n')]], { skipInvalid: 'true' })
+    expect(nul.status, JSON.stringify(nul.body)).toBe(202)
+    expect(nul.body.upload.files[0].error.message).toBe('no wavelength column: name one wavelength, wave or lambda (columns: wave?, flux?, error)')
+    await untilDone(nul.body.job.id)
   })
 
   it('keeps a galaxy\'s spectrum with onExisting=skip and replaces it with onExisting=replace', async () => {
