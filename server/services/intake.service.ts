@@ -485,6 +485,8 @@ async function undoIntake(tx: Tx, pool: ComputePool, by: { id: string; name: str
       last_intake_id = v.previous_intake_id, updated_at = v.written_at
     from galaxy_versions v where v.intake_id = ${intakeId}::uuid and v.galaxy_id = g.id`)
   await tx.execute(sql`delete from galaxies where id in (select galaxy_id from galaxy_intakes where intake_id = ${intakeId}::uuid and change = 'created')`)
+  // undoing a spectra upload's intake takes its spectra (and their fits) away too: what it wrote came from them
+  await tx.execute(sql`delete from spectra where upload_id in (select id from spectrum_uploads where intake_id = ${intakeId}::uuid)`)
   await progress?.(created)
   const restored = await recomputeRestored(tx, pool, projectId, intakeId, (n) => progress?.(created + n))
   await tx.delete(galaxyVersions).where(eq(galaxyVersions.intakeId, intakeId))

@@ -168,6 +168,25 @@ describe('uploading spectra', () => {
   })
 })
 
+describe('undo', () => {
+  it('undoing a spectra upload restores the records it replaced, removes the galaxies it created and its spectra', async () => {
+    await owner.agent.post(`${P()}/galaxies/batch`).set('X-CSRF-Token', owner.csrf)
+      .send({ galaxies: [{ id: 'UNDO-1', redshift: 0.02, lines: { halpha: { flux: 300, error: 6 }, hbeta: { flux: 80, error: 3 } } }] })
+    const res = await upload([['UNDO-1.csv', syntheticCsv({ redshift: 0.02, lines: STAR_FORMING })], ['UNDO-2.csv', syntheticCsv({ redshift: 0.02, lines: STAR_FORMING, seed: 3 })]],
+      { defaults: JSON.stringify({ redshift: 0.02 }) })
+    await untilDone(res.body.job.id)
+    expect((await get('/galaxies/UNDO-1')).body.provenance).toMatchObject({ source: 'line-fit' })
+    const undo = await owner.agent.post(`${P()}/intakes/${res.body.upload.intakeId}/undo`).set('X-CSRF-Token', owner.csrf)
+    expect(undo.status, JSON.stringify(undo.body)).toBe(200)
+    expect(undo.body).toMatchObject({ restored: 1, removed: 1 })
+    const g = (await get('/galaxies/UNDO-1')).body
+    expect(g).toMatchObject({ provenance: null, lines: { halpha: { flux: 300, error: 6 }, hbeta: { flux: 80, error: 3 } } })
+    expect((await get('/galaxies/UNDO-2')).status).toBe(404)
+    expect((await get('/galaxies/UNDO-1/spectrum')).status).toBe(404)
+    expect(await q('select count(*)::int as n from spectra where upload_id = $1', [res.body.upload.id])).toEqual([{ n: 0 }])
+  })
+})
+
 describe('limits and bad archives', () => {
   it('answers 413 for a spectrum of more than 50,000 pixels, a file above the limit, a zip entry that expands beyond it, and more than 1,000 spectra', async () => {
     const before = await counts()
