@@ -84,10 +84,13 @@ interface FileReport {
   error?: { message: string; line?: number }
 }
 
+/** Problems listed in a 422 at the most (the count in its detail is of all). */
+const MAX_PROBLEMS = 500
+
 /** The 422 of an upload with bad files: nothing was stored. */
 export class SpectraFileProblems extends HttpProblem {
   constructor(errors: FieldError[], files: number) {
-    super(422, 'Unprocessable Content', `${files} file(s) could not be stored; nothing was stored (send skipInvalid=true to store the others)`, errors)
+    super(422, 'Unprocessable Content', `${files} file(s) could not be stored; nothing was stored (send skipInvalid=true to store the others)`, errors.slice(0, MAX_PROBLEMS))
   }
 }
 
@@ -104,10 +107,13 @@ async function placeSpectra(tx: Tx, projectId: string, f: FileOutcome, defaults:
     s, k, galaxyId: (s.id ?? '').trim() || (f.spectra!.length === 1 ? stem(f.name) : `${stem(f.name)}-${k + 1}`),
     redshift: s.redshift ?? defaults.redshift,
   }))
+  const inFile = new Map<string, number>()
   for (const p of placed) {
     const ok = GalaxyIdSchema.safeParse(p.galaxyId)
-    if (!ok.success) problems.push({ path: at(p.k, 'id'), message: `galaxy ID "${p.galaxyId.slice(0, 40)}": ${ok.error.issues[0]!.message}` })
+    if (!ok.success) problems.push({ path: at(p.k, 'id'), message: `galaxy ID "${printable(p.galaxyId.slice(0, 40))}": ${ok.error.issues[0]!.message}` })
     else if (seen.has(p.galaxyId)) problems.push({ path: at(p.k, 'id'), message: `galaxy ${p.galaxyId} has a spectrum in file ${seen.get(p.galaxyId)} of this upload too` })
+    else if (inFile.has(p.galaxyId)) problems.push({ path: at(p.k, 'id'), message: `galaxy ${p.galaxyId} has spectrum ${inFile.get(p.galaxyId)} of this file too` })
+    inFile.set(p.galaxyId, p.k)
     if (p.redshift !== undefined && !(p.redshift >= 0 && p.redshift <= 20)) problems.push({ path: at(p.k, 'redshift'), message: `redshift ${p.redshift} is not from 0 to 20` })
   }
   const unknownZ = placed.filter((p) => p.redshift === undefined)

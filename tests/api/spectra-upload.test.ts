@@ -215,6 +215,11 @@ describe('limits and bad archives', () => {
     expect(res.status).toBe(422)
     expect(res.body.errors.map((e: { path: string }) => e.path)).toEqual(['/files/0/spectra/0/wavelength', '/files/1', '/files/2'])
     expect(res.body.errors[1].message).toMatch(/evil.zip: the archive cannot be read: invalid relative path: \.\.\/evil\.csv/)
+    // one spectrum per galaxy and upload: the same galaxy in two files is refused at the second
+    const twice = await zipOf([['a/DUP.csv', syntheticCsv({ redshift: 0.02, lines: STAR_FORMING })], ['b/DUP.csv', syntheticCsv({ redshift: 0.02, lines: STAR_FORMING, seed: 2 })]])
+    const dup = await upload([['twice.zip', twice]], { defaults: JSON.stringify({ redshift: 0.02 }) })
+    expect(dup.status).toBe(422)
+    expect(dup.body.errors).toEqual([{ path: '/files/1/spectra/0/id', message: 'twice.zip/b/DUP.csv: galaxy DUP has a spectrum in file 0 of this upload too' }])
   })
 
   it('refuses form fields that are not what they should be, by name', async () => {
