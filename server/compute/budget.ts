@@ -37,3 +37,31 @@ export function overBudget(galaxies: number, draws: number, budget: number, opts
   if (opts.anonymous && opts.authenticatedBudget > budget) message += `; signing in or sending an API key raises the limit to ${opts.authenticatedBudget.toLocaleString('en-US')}`
   return { path: opts.path, message }
 }
+
+/**
+ * Compute units of one spectrum fit with the default options (≈ 60 ms of one core for a 4,000-pixel
+ * spectrum with broad Hα `auto` and Na I D; shared/science/README.md §13.11 has the timings);
+ * `components: "auto"` fits every model twice and more (≈ 2.5×), and each Monte Carlo refit costs a fit.
+ */
+export const SPECTRUM_FIT_COST = 10_000
+
+/** Cost of a spectra-fit request: its fits, then the diagnostics of their measurements. */
+export function spectraFitCost(spectra: number, fit: { components: 1 | 2 | 'auto'; monteCarlo: { draws: number } }, diagnosticsDraws: number): number {
+  const perFit = SPECTRUM_FIT_COST * (fit.components === 'auto' ? 2.5 : 1) * (Math.max(0, fit.monteCarlo.draws) + 1)
+  return spectra * perFit + computeCost(spectra, diagnosticsDraws)
+}
+
+/** The field at fault when a spectra-fit request exceeds `budget`, or null when it fits. */
+export function spectraOverBudget(
+  spectra: number, fit: { components: 1 | 2 | 'auto'; monteCarlo: { draws: number } }, diagnosticsDraws: number, budget: number,
+  opts: { anonymous: boolean; authenticatedBudget: number },
+): FieldError | null {
+  const cost = spectraFitCost(spectra, fit, diagnosticsDraws)
+  if (cost <= budget) return null
+  const maxSpectra = Math.floor(budget / spectraFitCost(1, fit, diagnosticsDraws))
+  const path = fit.monteCarlo.draws > 0 ? '/fit/monteCarlo/draws' : diagnosticsDraws > 0 ? '/settings/monteCarlo/draws' : '/spectra'
+  let message = `${spectra} spectra cost ${Math.ceil(cost).toLocaleString('en-US')} compute units (${SPECTRUM_FIT_COST.toLocaleString('en-US')} a fit, ×2.5 with components "auto", × (fit Monte Carlo draws + 1)); `
+    + `at most ${budget.toLocaleString('en-US')} per request${opts.anonymous ? ' without credentials' : ''}, which allows ${maxSpectra} spectra with these options`
+  if (opts.anonymous && opts.authenticatedBudget > budget) message += `; signing in or sending an API key raises the limit to ${opts.authenticatedBudget.toLocaleString('en-US')}`
+  return { path, message }
+}

@@ -21,7 +21,8 @@ export interface StoredSpectrumArrays {
 /** The fit settings of an assumptions revision: the `fit` options and the detection threshold. */
 export type FitSettings = FitOptionsDto & { minSnr: number }
 
-export interface FitSpectrumTask { kind: 'fit-spectrum'; spectrum: StoredSpectrumArrays; settings: FitSettings }
+/** A stored spectrum, or one as a request sent it (POST /spectra/fit). */
+export interface FitSpectrumTask { kind: 'fit-spectrum'; spectrum: StoredSpectrumArrays | SpectrumInput; settings: FitSettings }
 export type FitSpectrumOutput = { ok: true; result: SpectrumFitResult } | { ok: false; error: string }
 
 /** Version of the fit method stored beside each fit (a new version refits on the next recompute). */
@@ -40,7 +41,8 @@ export function spectrumInput(s: StoredSpectrumArrays): SpectrumInput {
 export function fitSpectrumTask(task: FitSpectrumTask): FitSpectrumOutput {
   const { minSnr, ...options } = task.settings
   try {
-    return { ok: true, result: fitSpectrum(spectrumInput(task.spectrum), options, { minSnr }) }
+    const input = 'noiseKind' in task.spectrum ? spectrumInput(task.spectrum) : task.spectrum
+    return { ok: true, result: fitSpectrum(input, options, { minSnr }) }
   } catch (err) {
     // a spectrum the fit cannot take (the upload's checks should have refused it): reported, not thrown,
     // so one spectrum does not stop a batch

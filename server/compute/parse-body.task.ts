@@ -5,15 +5,20 @@ import { createHash } from 'node:crypto'
 import { serialize } from 'node:v8'
 import type { z } from 'zod'
 import { BatchRequestSchema, DiagnosticsRequestSchema, MAX_GALAXIES_PER_REQUEST } from '../../shared/schemas/galaxy.schema.ts'
+import { SpectraFitRequestSchema, spectraOverLimit } from '../../shared/schemas/spectra.schema.ts'
 import { fieldErrors } from '../http/parse-request.ts'
 import type { FieldError } from '../http/problem.ts'
 
 /** The bodies read this way, by name (a schema cannot be sent to a thread). */
-export const BULK_SCHEMAS = { diagnostics: DiagnosticsRequestSchema, batch: BatchRequestSchema } as const satisfies Record<string, z.ZodType>
+export const BULK_SCHEMAS = { diagnostics: DiagnosticsRequestSchema, batch: BatchRequestSchema, spectraFit: SpectraFitRequestSchema } as const satisfies Record<string, z.ZodType>
 export type BulkSchemaName = keyof typeof BULK_SCHEMAS
 
-/** Galaxies per chunk handed back: the event loop parses one chunk (≈ 3–6 ms) between other work. */
-export const GALAXIES_PER_CHUNK = 500
+/** The array of each bulk body that is handed back in chunks, and how many of its items make a chunk. */
+const BULK_ITEMS: Record<BulkSchemaName, { key: 'galaxies' | 'spectra'; perChunk: number }> = {
+  diagnostics: { key: 'galaxies', perChunk: 500 }, batch: { key: 'galaxies', perChunk: 500 },
+  // a spectrum of 50,000 pixels is ≈ 1.5 MB of JSON: one a chunk keeps each parse to a few ms
+  spectraFit: { key: 'spectra', perChunk: 1 },
+}
 
 export interface ParseBodyTask {
   kind: 'parse-body'
@@ -30,12 +35,16 @@ export interface ParseBodyTask {
 export type ParseBodyOutput =
   | { failed: 'syntax' }
   | { failed: 'count'; count: number }
+  /** a size limit other than the galaxy count (spectra, pixels): 413 before validation */
+  | { failed: 'too-large'; path: string; message: string }
   | { failed: 'invalid'; errors: FieldError[] }
   | {
     failed?: undefined
-    /** the validated body without its galaxies */
+    /** the validated body without its items */
     rest: Record<string, unknown>
-    /** the validated galaxies, in order: JSON text, or V8's serialisation where JSON would lose a −0 */
+    /** the member the items go back into */
+    items: 'galaxies' | 'spectra'
+    /** the validated items, in order: JSON text, or V8's serialisation where JSON would lose a −0 */
     chunks: Array<string | Uint8Array>
     hashes: Record<string, string>
   }
@@ -70,17 +79,23 @@ export function parseBodyTask(task: ParseBodyTask): ParseBodyOutput {
   } catch {
     return { failed: 'syntax' }
   }
-  const count = tooManyGalaxies(body)
-  if (count !== null) return { failed: 'count', count }
+  const { key, perChunk } = BULK_ITEMS[task.schema]
+  if (key === 'galaxies') {
+    const count = tooManyGalaxies(body)
+    if (count !== null) return { failed: 'count', count }
+  } else {
+    const over = spectraOverLimit(body)
+    if (over) return { failed: 'too-large', ...over }
+  }
   const result = BULK_SCHEMAS[task.schema].safeParse(body)
   if (!result.success) return { failed: 'invalid', errors: fieldErrors(result.error.issues) }
-  const { galaxies, ...rest } = result.data as { galaxies: unknown[] } & Record<string, unknown>
+  const { [key]: items, ...rest } = result.data as Record<string, unknown[]>
   const chunks: Array<string | Uint8Array> = []
-  for (let i = 0; i < galaxies.length; i += GALAXIES_PER_CHUNK) {
-    const part = galaxies.slice(i, i + GALAXIES_PER_CHUNK)
+  for (let i = 0; i < items!.length; i += perChunk) {
+    const part = items!.slice(i, i + perChunk)
     chunks.push(hasNegativeZero(part) ? new Uint8Array(serialize(part)) : JSON.stringify(part))
   }
-  return { rest, chunks, hashes: wrappedHashes(body, task.hashes ?? {}) }
+  return { rest, items: key, chunks, hashes: wrappedHashes(body, task.hashes ?? {}) }
 }
 
 /** One pass over the body's text per distinct prefix; the suffixes continue copies of that state. */

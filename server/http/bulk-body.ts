@@ -87,11 +87,11 @@ export function jsonBodies(compute: ComputePool, bulkRoutes: readonly BulkRoute[
 export async function bulkValue(out: ParseBodyOutput): Promise<unknown> {
   if (out.failed === 'invalid') throw invalidValues(out.errors)
   if (out.failed !== undefined) throw new Error(`bulk body not handled before validation: ${out.failed}`)
-  const galaxies: unknown[] = []
+  const items: unknown[] = []
   for (const chunk of out.chunks) {
     await new Promise((ok) => setImmediate(ok))
     const part = (typeof chunk === 'string' ? JSON.parse(chunk) : deserialize(chunk)) as unknown[]
-    for (const g of part) galaxies.push(g)
+    for (const g of part) items.push(g)
   }
-  return { ...out.rest, galaxies }
+  return { ...out.rest, [out.items]: items }
 }

@@ -15,6 +15,8 @@ import { assumptionsRoutes } from './assumptions.routes.ts'
 import { intakeRoutes } from './intake.routes.ts'
 import { exportRoutes } from './exports.routes.ts'
 import { adminRoutes } from './admin.routes.ts'
+import { spectraFitRoutes } from './spectra-fit.routes.ts'
+import { SPECTRA_FIT_BODY_LIMIT } from '../../shared/schemas/spectra.schema.ts'
 import { spectraRoutes } from './spectra.routes.ts'
 
 export const JSON_LIMIT = '32mb'
@@ -29,8 +31,13 @@ export function buildRoutes(deps: RouteDeps, registry: RouteRegistry): Router {
   const jsonTypes = ['application/json', 'application/*+json']
   // the small limit first: a body read here is not read again by the general parser (413 beyond it)
   router.use(['/v1/auth', '/v1/invitations'], express.json({ limit: AUTH_JSON_LIMIT, strict: false, type: jsonTypes }))
-  // express.json, except that large bulk bodies (diagnostics, batch) are read on a compute thread
-  router.use('/v1', jsonBodies(deps.compute ?? inProcessCompute(), registry.bulk, { limit: JSON_LIMIT, type: jsonTypes }))
+  // spectra to fit may be larger than other bodies; read like the other bulk bodies, on a compute thread
+  const compute = deps.compute ?? inProcessCompute()
+  const spectraBodies = jsonBodies(compute, registry.bulk, { limit: SPECTRA_FIT_BODY_LIMIT, type: jsonTypes })
+  router.use('/v1', (req, res, next) => (req.method === 'POST' && /^\/spectra\/fit\/?$/i.test(req.path) ? spectraBodies(req, res, next) : next()))
+  // express.json, except that large bulk bodies (diagnostics, batch) are read on a compute thread;
+  // a body read above is not read again (body-parser skips a finished request)
+  router.use('/v1', jsonBodies(compute, registry.bulk, { limit: JSON_LIMIT, type: jsonTypes }))
   router.use('/v1', authenticate(deps.db, deps.config))
   // per key (or signed-in user) and per address
   router.use('/v1', rateLimit({
@@ -42,6 +49,7 @@ export function buildRoutes(deps: RouteDeps, registry: RouteRegistry): Router {
   projectsRoutes(v1, deps)
   galaxiesRoutes(v1, deps)
   diagnosticsRoutes(v1, deps)
+  spectraFitRoutes(v1, deps)
   assumptionsRoutes(v1, deps)
   intakeRoutes(v1, deps)
   exportRoutes(v1, deps)

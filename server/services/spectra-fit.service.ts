@@ -106,13 +106,24 @@ async function insertFits(tx: Tx, projectId: string, fits: FitsByRevision) {
 export function galaxyFromFit(row: Pick<SpectrumRow, 'galaxyId' | 'redshift' | 'fluxUnit'>, f: FitRecord | undefined, position: { ra: number | null; dec: number | null } | undefined): GalaxyInputDto | null {
   const m = f?.result.measurements
   if (!m || f.result.error) return null
-  const parsed = GalaxyInputSchema.safeParse({
+  return galaxyFromMeasurements({
     id: row.galaxyId, redshift: row.redshift, fluxUnit: row.fluxUnit,
     ...(position?.ra != null ? { ra: position.ra } : {}), ...(position?.dec != null ? { dec: position.dec } : {}),
-    lines: m.lines, ...(Object.keys(m.ew ?? {}).length ? { ew: m.ew } : {}), ...(Object.keys(m.fwhm ?? {}).length ? { fwhm: m.fwhm } : {}),
+  }, m)
+}
+
+/**
+ * A galaxy record from a fit's measurements (the same record `POST /diagnostics` takes), or null
+ * when they do not make one (logged: the fit's output should always be a valid record).
+ */
+export function galaxyFromMeasurements(
+  base: { id: string; redshift: number; fluxUnit?: number; ra?: number; dec?: number }, m: NonNullable<StoredFit['measurements']>,
+): GalaxyInputDto | null {
+  const parsed = GalaxyInputSchema.safeParse({
+    ...base, lines: m.lines, ...(Object.keys(m.ew ?? {}).length ? { ew: m.ew } : {}), ...(Object.keys(m.fwhm ?? {}).length ? { fwhm: m.fwhm } : {}),
   })
   if (!parsed.success) {
-    logger.warn({ galaxyId: row.galaxyId, issue: parsed.error.issues[0] }, 'the measurements of a fit do not make a galaxy record; the record is left as it was')
+    logger.warn({ galaxyId: base.id, issue: parsed.error.issues[0] }, 'the measurements of a fit do not make a galaxy record')
     return null
   }
   return parsed.data

@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import jwt from 'jsonwebtoken'
 import { signedInAgent, startTestApp, type TestApp } from '../helpers/app.ts'
+import { tinySpectrum } from '../helpers/spectra.ts'
 import { galaxy } from '../helpers/fixtures.ts'
 import { STAR_FORMING, syntheticCsv } from '../helpers/spectra.ts'
 
@@ -71,6 +72,7 @@ const TABLE: Row[] = [
   { method: 'get', path: `${P}/galaxies/:galaxyId/results/:revision`, level: 'viewer' },
   { method: 'get', path: `${P}/diagram`, level: 'viewer' },
   { method: 'post', path: '/diagnostics', level: 'optional', body: { galaxies: [galaxy('M-1')] } },
+  { method: 'post', path: '/spectra/fit', level: 'optional', body: { spectra: [tinySpectrum()] } },
   { method: 'get', path: `${P}/assumptions`, level: 'viewer' },
   { method: 'put', path: `${P}/assumptions`, level: 'analyst', body: { settings: {} } },
   { method: 'get', path: `${P}/jobs`, level: 'viewer' },

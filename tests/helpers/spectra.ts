@@ -58,3 +58,8 @@ export async function zipOf(entries: Array<[string, string | Buffer]>): Promise<
   for await (const c of zip.outputStream) chunks.push(c as Buffer)
   return Buffer.concat(chunks)
 }
+
+/** A small valid spectrum object for POST /spectra/fit: Hα and [N II] only, rest 6480–6650 Å. */
+export function tinySpectrum(id = 'S-TINY') {
+  return { id, redshift: 0.01, fluxUnit: 1e-17, ...syntheticSpectrum({ redshift: 0.01, lines: { halpha: 300, nii_6584: 90 }, from: 6480, to: 6650 }), resolution: { fwhmAngstrom: 2.5 } }
+}
