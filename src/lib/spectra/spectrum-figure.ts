@@ -1,0 +1,190 @@
+import type { Data, Layout } from 'plotly.js-dist-min'
+import type { ModelComponentKind, SpectrumData, SpectrumModelCurves } from '../../api/spectra-types'
+import { OKABE_ITO } from '../../../shared/vocabulary/index.ts'
+import { displayIndices, take } from './downsample'
+import { fitLineLabel } from './fit-numbers'
+import { errorBand, onContinuum, residuals, trimComponent } from './residuals'
+
+/**
+ * The spectrum view's plotly figure: the data with its error band, the continuum, each component on
+ * the continuum, the total model, and below them the residuals in units of σ, sharing the x axis.
+ * `prepareCurves` does the per-pixel work once; `spectrumTraces` picks the pixels of the shown window.
+ */
+
+type Values = (number | null)[]
+
+export interface PreparedModel {
+  continuum: Values
+  total: Values
+  residual: Values
+  /** each component added to the continuum, trimmed to where it matters */
+  components: { line: string; kind: ModelComponentKind; values: Values }[]
+}
+
+export interface PreparedCurves {
+  wavelength: number[]
+  flux: Values
+  band: { lower: Values; upper: Values }
+  model: PreparedModel | null
+  /** a trial refit drawn over the stored one */
+  trial: PreparedModel | null
+}
+
+function prepareModel(s: SpectrumData, m: SpectrumModelCurves): PreparedModel {
+  return {
+    continuum: m.continuum,
+    total: m.total,
+    residual: residuals(s.flux, m.total, s.error),
+    components: m.components.map((c) => ({ line: c.line, kind: c.kind, values: onContinuum(trimComponent(c.values), m.continuum) })),
+  }
+}
+
+export function prepareCurves(s: SpectrumData, model: SpectrumModelCurves | null, trial: SpectrumModelCurves | null = null): PreparedCurves {
+  return {
+    wavelength: s.wavelength, flux: s.flux, band: errorBand(s.flux, s.error),
+    model: model ? prepareModel(s, model) : null,
+    trial: trial ? prepareModel(s, trial) : null,
+  }
+}
+
+export const COMPONENT_STYLE: Record<ModelComponentKind, { name: string; colour: string; dash?: string }> = {
+  narrow: { name: 'Narrow lines', colour: OKABE_ITO.bluishGreen },
+  narrow2: { name: 'Second narrow component', colour: OKABE_ITO.skyBlue },
+  broad: { name: 'Broad Hα', colour: OKABE_ITO.reddishPurple },
+  absorption: { name: 'Na I D absorption', colour: OKABE_ITO.orange },
+}
+
+export const MODEL_COLOUR = OKABE_ITO.vermillion
+export const TRIAL_COLOUR = OKABE_ITO.blue
+
+export interface FigureOptions {
+  /** the shown window (Å); null = the whole spectrum */
+  range: [number, number] | null
+  /** a flux range chosen by the user's zoom; null = fit the shown pixels */
+  yRange?: [number, number] | null
+  /** about the plot's width in CSS pixels */
+  buckets: number
+  dark: boolean
+  fluxUnit: number
+  /** names of the stored and trial models in the legend */
+  modelName?: string
+  trialName?: string
+}
+
+/** The whole wavelength span of a spectrum. */
+export function fullRange(wavelength: ArrayLike<number>): [number, number] {
+  return wavelength.length ? [wavelength[0], wavelength[wavelength.length - 1]] : [0, 1]
+}
+
+const SUPERSCRIPT: Record<string, string> = { '-': '⁻', 0: '⁰', 1: '¹', 2: '²', 3: '³', 4: '⁴', 5: '⁵', 6: '⁶', 7: '⁷', 8: '⁸', 9: '⁹' }
+
+/**
+ * The flux axis title for a flux unit in erg s⁻¹ cm⁻² Å⁻¹.
+ * @example fluxAxisTitle(1e-17) // 'F_λ (10⁻¹⁷ erg s⁻¹ cm⁻² Å⁻¹)'
+ */
+export function fluxAxisTitle(fluxUnit: number): string {
+  const unit = 'erg s⁻¹ cm⁻² Å⁻¹'
+  if (!(fluxUnit > 0) || fluxUnit === 1) return `F_λ (${unit})`
+  const e = Math.log10(fluxUnit)
+  if (Math.abs(e - Math.round(e)) < 1e-9) return `F_λ (10${String(Math.round(e)).split('').map((ch) => SUPERSCRIPT[ch] ?? ch).join('')} ${unit})`
+  return `F_λ (${fluxUnit.toExponential(2)} ${unit})`
+}
+
+function line(x: number[], y: Values, name: string, colour: string, width: number, extra: Record<string, unknown> & { dash?: string } = {}): Data {
+  const { dash, ...rest } = extra
+  return {
+    type: 'scatter', mode: 'lines', x, y, name, line: { color: colour, width, ...(dash ? { dash } : {}) },
+    connectgaps: false, hovertemplate: `${name}<br>λ %{x:.2f} Å<br>%{y:.4g}<extra></extra>`, ...rest,
+  } as Data
+}
+
+/** A kind's components as one trace, each component a separate run (null between them). */
+function componentTraces(m: PreparedModel, idx: Int32Array, x: number[], legendPrefix = ''): Data[] {
+  const byKind = new Map<ModelComponentKind, { x: (number | null)[]; y: Values; text: string[] }>()
+  for (const c of m.components) {
+    const y = take(c.values, idx)
+    if (!y.some((v) => v !== null)) continue
+    const t = byKind.get(c.kind) ?? { x: [], y: [], text: [] }
+    const label = fitLineLabel(c.line)
+    for (let k = 0; k < y.length; k++) {
+      if (y[k] === null) continue
+      t.x.push(x[k]); t.y.push(y[k]); t.text.push(label)
+    }
+    t.x.push(null); t.y.push(null); t.text.push('')
+    byKind.set(c.kind, t)
+  }
+  return [...byKind.entries()].map(([kind, t]) => {
+    const s = COMPONENT_STYLE[kind]
+    return {
+      type: 'scatter', mode: 'lines', x: t.x, y: t.y, text: t.text, name: `${legendPrefix}${s.name}`, connectgaps: false,
+      line: { color: s.colour, width: 1.2, dash: legendPrefix ? 'dot' : undefined },
+      hovertemplate: '%{text}<br>λ %{x:.2f} Å<br>%{y:.4g}<extra></extra>',
+    } as Data
+  })
+}
+
+/** The traces of the shown window. */
+export function spectrumTraces(c: PreparedCurves, o: FigureOptions): Data[] {
+  const [from, to] = o.range ?? fullRange(c.wavelength)
+  const extremes: Values[] = [c.flux]
+  if (c.model) extremes.push(c.model.total)
+  if (c.trial) extremes.push(c.trial.total)
+  const idx = displayIndices(c.wavelength, extremes, from, to, o.buckets)
+  const x = Array.from(idx, (i) => c.wavelength[i])
+  const fg = o.dark ? '#D8DCE3' : '#2B2F36'
+  const bandFill = o.dark ? 'rgba(216,220,227,0.18)' : 'rgba(43,47,54,0.14)'
+  const out: Data[] = [
+    { type: 'scatter', mode: 'lines', x, y: take(c.band.lower, idx), line: { width: 0 }, hoverinfo: 'skip', showlegend: false, connectgaps: false, name: 'error band lower' } as Data,
+    { type: 'scatter', mode: 'lines', x, y: take(c.band.upper, idx), line: { width: 0 }, fill: 'tonexty', fillcolor: bandFill, hoverinfo: 'skip', name: '±1σ', connectgaps: false } as Data,
+    line(x, take(c.flux, idx), 'Data', fg, 1, { line: { color: fg, width: 1, shape: 'hvh' } }),
+  ]
+  if (c.model) {
+    out.push(line(x, take(c.model.continuum, idx), 'Continuum', OKABE_ITO.blue, 1.2, { dash: 'dash' }))
+    out.push(...componentTraces(c.model, idx, x))
+    out.push(line(x, take(c.model.total, idx), o.modelName ?? 'Model', MODEL_COLOUR, 1.8))
+    out.push(line(x, take(c.model.residual, idx), 'Residual', fg, 1, { yaxis: 'y2', showlegend: false, hovertemplate: 'λ %{x:.2f} Å<br>(data − model)/σ %{y:.2f}<extra></extra>' }))
+  }
+  if (c.trial) {
+    out.push(...componentTraces(c.trial, idx, x, 'Refit: '))
+    out.push(line(x, take(c.trial.total, idx), o.trialName ?? 'Refit', TRIAL_COLOUR, 1.8, { dash: 'dash' }))
+    out.push(line(x, take(c.trial.residual, idx), 'Refit residual', TRIAL_COLOUR, 1, { yaxis: 'y2', showlegend: false, hovertemplate: 'refit<br>λ %{x:.2f} Å<br>(data − model)/σ %{y:.2f}<extra></extra>' }))
+  }
+  return out
+}
+
+/** A symmetric residual range: at least ±3σ, at most ±10σ, 10 % beyond the largest shown residual. */
+export function residualRange(traces: Data[]): [number, number] {
+  let max = 0
+  for (const t of traces) {
+    if ((t as { yaxis?: string }).yaxis !== 'y2') continue
+    for (const v of ((t as { y?: Values }).y ?? [])) if (typeof v === 'number' && Math.abs(v) > max) max = Math.abs(v)
+  }
+  const r = Math.min(10, Math.max(3, 1.1 * max))
+  return [-r, r]
+}
+
+export function spectrumLayout(traces: Data[], o: FigureOptions, hasModel: boolean): Partial<Layout> {
+  const fg = o.dark ? '#E3E6EC' : '#1D2330'
+  const grid = o.dark ? 'rgba(255,255,255,0.08)' : 'rgba(0,0,0,0.07)'
+  const axis = { gridcolor: grid, zeroline: false, linecolor: fg, mirror: true, ticks: 'outside' as const, color: fg, automargin: true }
+  const range = o.range ?? null
+  return {
+    margin: { l: 64, r: 16, t: 8, b: 46 },
+    paper_bgcolor: 'rgba(0,0,0,0)',
+    plot_bgcolor: 'rgba(0,0,0,0)',
+    font: { family: 'Roboto, sans-serif', size: 12, color: fg },
+    hovermode: 'closest',
+    dragmode: 'zoom',
+    showlegend: true,
+    legend: { orientation: 'h', x: 0, y: 1.02, yanchor: 'bottom', font: { size: 11 } },
+    hoverlabel: { font: { family: 'Roboto Mono, monospace', size: 12 } },
+    xaxis: { ...axis, anchor: hasModel ? 'y2' : 'y', title: { text: 'Observed wavelength (Å)' }, ...(range ? { range: [...range], autorange: false } : { autorange: true }) },
+    yaxis: {
+      ...axis, domain: hasModel ? [0.3, 1] : [0, 1], title: { text: fluxAxisTitle(o.fluxUnit) },
+      ...(o.yRange ? { range: [...o.yRange], autorange: false } : { autorange: true }),
+    },
+    ...(hasModel ? {
+      yaxis2: { ...axis, domain: [0, 0.22], title: { text: 'Δ/σ' }, range: residualRange(traces), autorange: false, zeroline: true, zerolinecolor: grid, fixedrange: true },
+    } : {}),
+  }
+}
