@@ -15,6 +15,7 @@ import type { GalaxyDetailSchema, GalaxyRevisionResultsSchema } from '../../shar
 import type { ClassParam } from '../../shared/results/registry.ts'
 import type { LineValue } from '../../shared/diagnostics/types.ts'
 import type { ClassDiagram, Diagram, LineId } from '../../shared/vocabulary/index.ts'
+import type { FitSettings, Kinematics } from './spectra-types'
 
 /**
  * What the dashboard reads and sends. Where the shared zod schemas (shared/schemas/) describe a
@@ -33,8 +34,8 @@ export type Me = z.infer<typeof MeSchema>
 
 export type Project = z.infer<typeof ProjectSchema>
 
-/** The project's assumptions, complete (the server fills the defaults). */
-export type Settings = SettingsDto
+/** The project's assumptions, complete (the server fills the defaults); `fit` until the schema carries it. */
+export type Settings = SettingsDto & { fit?: FitSettings }
 
 /** One revision of the assumptions. */
 export type Revision = z.infer<typeof AssumptionsRevisionSchema>
@@ -60,6 +61,8 @@ export interface ProjectOverview {
   classCounts: Record<ClassDiagram, Record<string, number>>
   histograms: { ebv: Histogram; neSii: Histogram }
   latestIntakes: Intake[]
+  /** gas kinematics of the line fits; absent before a spectrum has been fitted (and from older servers) */
+  kinematics?: Kinematics | null
 }
 
 export interface GalaxySummary {

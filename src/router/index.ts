@@ -47,6 +47,7 @@ const routes: RouteRecordRaw[] = [
       },
       { path: 'galaxies', name: 'galaxies', component: () => import('../views/GalaxiesView.vue'), props: true, meta: { title: 'Galaxies' } },
       { path: 'galaxies/:galaxyId', name: 'galaxy', component: () => import('../views/GalaxyView.vue'), props: true, meta: { title: 'Galaxy' } },
+      { path: 'spectra', name: 'spectra', component: () => import('../views/SpectraView.vue'), props: true, meta: { title: 'Spectra' } },
       { path: 'intake', name: 'intake', component: () => import('../views/IntakeView.vue'), props: true, meta: { title: 'Intake' } },
       { path: 'exports', name: 'exports', component: () => import('../views/ExportsView.vue'), props: true, meta: { title: 'Exports' } },
       { path: 'assumptions', name: 'assumptions', component: () => import('../views/AssumptionsView.vue'), props: true, meta: { title: 'Assumptions' } },

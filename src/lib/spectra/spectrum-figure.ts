@@ -188,3 +188,24 @@ export function spectrumLayout(traces: Data[], o: FigureOptions, hasModel: boole
     } : {}),
   }
 }
+
+export interface WindowChange {
+  /** a new x window, 'auto' for the whole spectrum (double click), undefined when x did not change */
+  x?: [number, number] | 'auto'
+  y?: [number, number] | 'auto'
+}
+
+function rangeIn(ev: Record<string, unknown>, axis: string): [number, number] | 'auto' | undefined {
+  if (ev[`${axis}.autorange`] === true) return 'auto'
+  const whole = ev[`${axis}.range`]
+  if (Array.isArray(whole) && whole.length === 2) return [Number(whole[0]), Number(whole[1])]
+  const a = ev[`${axis}.range[0]`], b = ev[`${axis}.range[1]`]
+  if (typeof a === 'number' && typeof b === 'number') return a <= b ? [a, b] : [b, a]
+  return undefined
+}
+
+/** What a `plotly_relayout` did to the spectrum's window (zoom box, pan, double click). */
+export function windowChange(ev: Record<string, unknown> | null | undefined): WindowChange {
+  if (!ev) return {}
+  return { x: rangeIn(ev, 'xaxis'), y: rangeIn(ev, 'yaxis') }
+}

@@ -28,6 +28,13 @@ describe('JobProgress', () => {
     expect(text({ ...job, status: 'done', done: 7_000, finishedAt: '2026-12-01T10:06:00Z' })).toMatch(/Done: 7,000 rows stored/)
   })
 
+  it('a fit job counts spectra and resumes from its last chunk', () => {
+    const job: Job = { ...base, kind: 'fit', done: 40, total: 120 }
+    expect(text(job)).toMatch(/Fitting spectra: 40 of 120 fitted\s*33 %/)
+    expect(text({ ...job, resumedAt: '2026-12-01T10:05:00Z', resumeCount: 1, resumedFrom: 20 })).toMatch(/at 20 of 120: it continued from there/)
+    expect(text({ ...job, status: 'done', done: 120, finishedAt: '2026-12-01T10:06:00Z' })).toMatch(/Done: 120 spectra fitted/)
+  })
+
   it('says nothing of a restart for a job that ran through', () => {
     expect(text(base)).not.toMatch(/Resumed/)
   })

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import type { SpectrumData, SpectrumModelCurves } from '../../../../../src/api/spectra-types'
-import { fluxAxisTitle, prepareCurves, residualRange, spectrumLayout, spectrumTraces } from '../../../../../src/lib/spectra/spectrum-figure'
+import { fluxAxisTitle, prepareCurves, residualRange, spectrumLayout, spectrumTraces, windowChange } from '../../../../../src/lib/spectra/spectrum-figure'
 
 const n = 2000
 const wavelength = Array.from({ length: n }, (_, i) => 6400 + 0.5 * i)
@@ -67,5 +67,15 @@ describe('spectrum figure', () => {
     expect(layout.xaxis?.range).toEqual([6590, 6610])
     expect(layout.yaxis?.autorange).toBe(true)
     expect(spectrumLayout([], { ...o, range: null }, false).yaxis2).toBeUndefined()
+  })
+})
+
+describe('window changes from plotly', () => {
+  it('reads a zoom box, a pan, a double click and an unrelated event', () => {
+    expect(windowChange({ 'xaxis.range[0]': 6550, 'xaxis.range[1]': 6600, 'yaxis.range[0]': 0, 'yaxis.range[1]': 40 })).toEqual({ x: [6550, 6600], y: [0, 40] })
+    expect(windowChange({ 'xaxis.range': [6500, 6520] })).toEqual({ x: [6500, 6520], y: undefined })
+    expect(windowChange({ 'xaxis.autorange': true, 'yaxis.autorange': true })).toEqual({ x: 'auto', y: 'auto' })
+    expect(windowChange({ dragmode: 'pan' })).toEqual({ x: undefined, y: undefined })
+    expect(windowChange(null)).toEqual({})
   })
 })
