@@ -176,7 +176,7 @@ export function spectrumLayout(traces: Data[], o: FigureOptions, hasModel: boole
     hovermode: 'closest',
     dragmode: 'zoom',
     showlegend: true,
-    legend: { orientation: 'h', x: 0, y: 1.02, yanchor: 'bottom', font: { size: 11 } },
+    legend: { orientation: 'h', x: 0, y: 1.02, yanchor: 'bottom', font: { size: 11 }, traceorder: 'normal' },
     hoverlabel: { font: { family: 'Roboto Mono, monospace', size: 12 } },
     xaxis: { ...axis, anchor: hasModel ? 'y2' : 'y', title: { text: 'Observed wavelength (Å)' }, ...(range ? { range: [...range], autorange: false } : { autorange: true }) },
     yaxis: {
