@@ -1,91 +1,41 @@
+import type { FitOptionsDto } from '../../shared/schemas/spectra.schema.ts'
+import type { SpectrumFitResult } from '../../shared/spectra/types.ts'
+import type { Job } from './types'
+
 /**
- * Spectra, line fits and the fit-quality table as the server's routes answer them. Typed by hand
- * after the shared design until the spectrum schemas are on main; then these become `z.infer` of
- * those schemas (DEVELOPERS.md "Types").
+ * Spectra, line fits and the fit-quality table as the server's routes answer them. The fit settings
+ * and the fit result are the shared schema's and the science library's types; the project views
+ * (upload report, fit-quality table, stored spectrum and model) are typed by hand after the shared
+ * design until their schemas are on main, then they become `z.infer` of those (DEVELOPERS.md "Types").
  */
 
-export type FitProfile = 'gaussian' | 'lorentzian' | 'voigt'
-export type FitComponents = 1 | 2 | 'auto'
-export type BroadHalpha = 'off' | 'on' | 'auto'
-export type AbsorptionFeature = 'nad'
+export type { SpectrumFitResult, LineResult as FittedLine, DetectedLine, UndetectedLine, NadResult, LineComponent as FittedComponent } from '../../shared/spectra/types.ts'
 
-/** The fit settings (`settings.fit` of the assumptions, the `fit` of a trial refit). */
-export interface FitSettings {
-  profile: FitProfile
-  components: FitComponents
-  broadHalpha: BroadHalpha
-  absorption: AbsorptionFeature[]
-  monteCarlo: { draws: number; seed: number }
-}
+/** The fit settings (`settings.fit` of the assumptions, the `fit` of a trial refit), resolved. */
+export type FitSettings = FitOptionsDto
+export type FitProfile = FitSettings['profile']
+export type FitComponents = FitSettings['components']
+export type BroadHalpha = FitSettings['broadHalpha']
+export type AbsorptionFeature = FitSettings['absorption'][number]
 
 export type SpectralResolution = { fwhmAngstrom: number } | { fwhmKmPerS: number } | { resolvingPower: number } | null
 
+/** The stored spectrum (error: null for a bad pixel). */
 export interface SpectrumData {
-  id: string | number
+  id: number
   galaxyId: string
   redshift: number
   wavelengthMedium: 'air' | 'vacuum'
   fluxUnit: number
   resolution: SpectralResolution
+  fileName?: string
+  source?: string
+  createdAt?: string
   /** observed wavelengths (Å), ascending */
   wavelength: number[]
   flux: (number | null)[]
   /** 1σ per pixel; null for a bad pixel */
   error: (number | null)[]
-}
-
-export interface FittedComponent {
-  flux: number
-  error: number
-  velocity: number
-  velocityError: number
-  sigma: number
-  sigmaError: number
-  sigmaIntrinsic: number
-}
-
-export interface DetectedLine {
-  detected: true
-  flux: number
-  error: number
-  snr: number
-  ew?: number | null
-  ewError?: number | null
-  velocity: number
-  velocityError: number
-  sigma: number
-  sigmaError: number
-  sigmaInstrumental?: number | null
-  sigmaIntrinsic: number
-  components?: FittedComponent[]
-}
-
-export interface UndetectedLine { detected: false; upperLimit: number }
-
-export type FittedLine = DetectedLine | UndetectedLine
-
-export interface NaDAbsorption {
-  detected: boolean
-  ew?: number
-  ewError?: number
-  ewUpperLimit?: number
-  doubletRatio?: number
-  logN?: number
-  logNError?: number
-  b?: number
-  bError?: number
-  velocity?: number
-  velocityError?: number
-  flags?: string[]
-  note?: string
-}
-
-export interface SpectrumFitResult {
-  id: string
-  lines: Record<string, FittedLine>
-  absorption: { nad?: NaDAbsorption }
-  fit: { chi2: number; dof: number; components: number; broadHalpha: boolean }
-  flags: string[]
 }
 
 export type ModelComponentKind = 'narrow' | 'narrow2' | 'broad' | 'absorption'
@@ -101,9 +51,11 @@ export interface SpectrumModelCurves {
 }
 
 export interface SpectrumFit {
-  /** the assumptions revision it was stored under; a trial refit has none */
-  revision?: number | null
-  settings: FitSettings
+  /** the assumptions revision it was stored under; null for a trial refit */
+  revision: number | null
+  /** the fit settings, resolved, and the detection threshold */
+  settings: FitSettings & { minSnr?: number }
+  methodVersion?: string
   result: SpectrumFitResult
   model: SpectrumModelCurves
 }
@@ -116,7 +68,7 @@ export interface FitQualityQuery { sort?: FitQualitySort; flag?: string; q?: str
 
 export interface FitQualityRow {
   galaxyId: string
-  spectrumId: string | number
+  spectrumId: number
   pixels: number
   wavelengthMin: number
   wavelengthMax: number
@@ -139,19 +91,27 @@ export interface SpectrumUploadDefaults {
   resolution?: SpectralResolution
 }
 
-/** One file of an upload: the spectra read from it, or why it was refused. */
+/** What an upload did with one spectrum of a file. */
+export type StoredAs = 'created' | 'replaced' | 'skipped'
+
+/** One file of an upload (an entry of a zip is `archive.zip/path/in/archive`): its spectra, or why it was refused. */
 export interface SpectrumUploadFile {
   name: string
   size: number
-  spectra?: { galaxyId: string; pixels: number; source: string }[]
+  spectra?: { galaxyId: string; pixels: number; source: string; spectrumId: number | null; stored: StoredAs }[]
   error?: { message: string; line?: number }
-  /** what the upload did with a galaxy that had a spectrum already */
-  skipped?: boolean
 }
 
-export interface SpectrumUpload { id: string; files: SpectrumUploadFile[] }
+export interface SpectrumUpload {
+  id: string
+  createdAt?: string
+  fileCount?: number
+  spectrumCount?: number
+  intakeId?: string | null
+  files: SpectrumUploadFile[]
+}
 
-export interface SpectrumUploadAnswer { upload: SpectrumUpload; job: import('./types').Job }
+export interface SpectrumUploadAnswer { upload: SpectrumUpload; job: Job }
 
 /** `bins` are the edges (one more than the counts). */
 export interface BinnedCounts { bins: number[]; counts: number[] }

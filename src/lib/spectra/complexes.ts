@@ -1,4 +1,5 @@
-import { AIR_WAVELENGTH_ANGSTROM } from '../../../shared/vocabulary/index.ts'
+import { FIT_LINE_AIR_ANGSTROM, NAD } from '../../../shared/spectra/lines.ts'
+import { SPEED_OF_LIGHT_KM_PER_S } from '../../../shared/diagnostics/luminosity.ts'
 
 /**
  * The line complexes the spectrum view zooms to: a chip per complex opens the observed window from
@@ -6,14 +7,7 @@ import { AIR_WAVELENGTH_ANGSTROM } from '../../../shared/vocabulary/index.ts'
  * (wider than the lines so the continuum on both sides shows), not the fit's own windows.
  */
 
-const C_KM_PER_S = 299_792.458
-
-/**
- * Air rest wavelengths (Å) of the lines a fit reports that are not among the contract lines: He I 5876
- * (NIST) and Na I D2/D1 (Morton 2003, ApJS 149, 205), values from memory, shared/science/README.md §12.
- * They only place zoom windows here (±1500 km/s ≈ ±30 Å), so the last digit does not matter.
- */
-export const EXTRA_LINES_AIR_ANGSTROM = { hei_5876: 5875.62, nad_d2: 5889.95, nad_d1: 5895.92 } as const
+const C_KM_PER_S = SPEED_OF_LIGHT_KM_PER_S
 
 export interface LineComplexView {
   id: string
@@ -25,8 +19,8 @@ export interface LineComplexView {
 }
 
 const PAD = 1500
-const A = AIR_WAVELENGTH_ANGSTROM
-const X = EXTRA_LINES_AIR_ANGSTROM
+// the fit's own rest wavelengths (air, Å; shared/science/README.md §0, §14)
+const A = FIT_LINE_AIR_ANGSTROM
 
 /** Blue to red. */
 export const LINE_COMPLEX_VIEWS: readonly LineComplexView[] = [
@@ -36,7 +30,7 @@ export const LINE_COMPLEX_VIEWS: readonly LineComplexView[] = [
   { id: 'oiii_4363', label: '[O III] 4363', restAngstrom: [A.oiii_4363], blueKmPerS: 1000, redKmPerS: PAD },
   { id: 'hbeta', label: 'Hβ + [O III]', restAngstrom: [A.hbeta, A.oiii_4959, A.oiii_5007], blueKmPerS: PAD, redKmPerS: PAD },
   { id: 'nii_5755', label: '[N II] 5755', restAngstrom: [A.nii_5755], blueKmPerS: PAD, redKmPerS: PAD },
-  { id: 'nad', label: 'Na I D + He I', restAngstrom: [X.hei_5876, X.nad_d2, X.nad_d1], blueKmPerS: PAD, redKmPerS: PAD },
+  { id: 'nad', label: 'Na I D + He I', restAngstrom: [A.hei_5876, NAD.d2.airAngstrom, NAD.d1.airAngstrom], blueKmPerS: PAD, redKmPerS: PAD },
   { id: 'oi', label: '[O I] 6300', restAngstrom: [A.oi_6300], blueKmPerS: PAD, redKmPerS: PAD },
   { id: 'halpha', label: 'Hα + [N II]', restAngstrom: [A.nii_6548, A.halpha, A.nii_6584], blueKmPerS: PAD, redKmPerS: PAD },
   { id: 'sii', label: '[S II] 6717,6731', restAngstrom: [A.sii_6717, A.sii_6731], blueKmPerS: PAD, redKmPerS: PAD },

@@ -33,21 +33,42 @@ export function mergeFiles<T extends { name: string }>(current: readonly T[], ad
   return [...byName.values()]
 }
 
+export interface RefusedFile {
+  /** the file's index in the upload, counting each entry of a zip as a file */
+  index: number
+  /** as the server names it: `spectra.zip/a.csv` for an entry of a zip; null when no message says */
+  name: string | null
+  messages: string[]
+}
+
 /**
- * The messages of a refused upload per file: `/files/3` and `/files/3/spectra/0/wavelength/12` both
- * belong to the fourth file; errors without a file index are returned under -1.
+ * The files a refused upload (422) names, from its errors: `/files/3` and `/files/3/spectra/0/id` both
+ * belong to file 3, whose messages begin with its name ("a.csv: no wavelength column"). Errors with
+ * no file index (a form field) come back under index −1.
  */
-export function errorsByFile(errors: readonly ProblemFieldError[]): Map<number, string[]> {
-  const out = new Map<number, string[]>()
+export function refusedFiles(errors: readonly ProblemFieldError[]): RefusedFile[] {
+  const byIndex = new Map<number, RefusedFile>()
   for (const e of errors) {
-    const m = /^\/files\/(\d+)(\/.*)?$/.exec(e.path)
+    const m = /^\/files\/(\d+)(?:\/|$)/.exec(e.path)
     const index = m ? Number(m[1]) : -1
-    const where = m?.[2] ? `${m[2].slice(1)}: ` : ''
-    const list = out.get(index) ?? []
-    list.push(`${where}${e.message}`)
-    out.set(index, list)
+    const r = byIndex.get(index) ?? { index, name: null, messages: [] }
+    const colon = e.message.indexOf(': ')
+    const head = colon > 0 ? e.message.slice(0, colon) : ''
+    // the server writes "<file name>: <message>"; a name has an extension, a message's opening words do not
+    if (index >= 0 && head && /\.[A-Za-z0-9]{1,6}$/.test(head)) {
+      r.name ??= head
+      r.messages.push(e.message.slice(colon + 2))
+    } else {
+      r.messages.push(e.message)
+    }
+    byIndex.set(index, r)
   }
-  return out
+  return [...byIndex.values()].sort((a, b) => a.index - b.index)
+}
+
+/** Whether a chosen file is among the refused: itself, or (a zip) one of its entries. */
+export function isRefused(chosenName: string, refused: readonly RefusedFile[]): boolean {
+  return refused.some((r) => r.name !== null && (r.name === chosenName || r.name.startsWith(`${chosenName}/`)))
 }
 
 /** "12.3 MB", "840 kB", "512 B" */

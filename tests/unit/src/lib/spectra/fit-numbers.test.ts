@@ -16,6 +16,7 @@ const before: SpectrumFitResult = {
   },
   absorption: {},
   fit: { chi2: 1230, dof: 1000, components: 1, broadHalpha: false },
+  measurements: { lines: {}, ew: {}, fwhm: {} },
   flags: [],
 }
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { errorsByFile, fileProblem, fmtBytes, mergeFiles, MAX_SPECTRUM_FILE_BYTES } from '../../../../../src/lib/spectra/upload-files'
+import { fileProblem, fmtBytes, isRefused, mergeFiles, MAX_SPECTRUM_FILE_BYTES, refusedFiles } from '../../../../../src/lib/spectra/upload-files'
 
 describe('spectrum upload files', () => {
   it('takes FITS, text tables and zips up to 64 MB', () => {
@@ -15,15 +15,24 @@ describe('spectrum upload files', () => {
     expect(merged).toEqual([{ name: 'a', v: 2 }, { name: 'b', v: 1 }, { name: 'c', v: 1 }])
   })
 
-  it('groups a refused upload\'s errors by file', () => {
-    const m = errorsByFile([
-      { path: '/files/0', message: 'no wavelength column' },
-      { path: '/files/2/spectra/0/wavelength/12', message: 'must be ascending' },
-      { path: '/defaults/redshift', message: 'must be ≥ 0' },
+  it('reads which files a refused upload names, zip entries by their path in the zip', () => {
+    const errors = [
+      { path: '/files/0', message: 'a.fits: not a FITS file: the first card is not SIMPLE' },
+      { path: '/files/2/spectra/0/redshift', message: 'spectra.zip/b.csv: no redshift for b: the file has none (Z or REDSHIFT)' },
+      { path: '/files/2/spectra/1/id', message: 'spectra.zip/b.csv: galaxy ID "x": too long' },
+      { path: '/defaults', message: 'must be JSON text' },
+    ]
+    const r = refusedFiles(errors)
+    expect(r).toEqual([
+      { index: -1, name: null, messages: ['must be JSON text'] },
+      { index: 0, name: 'a.fits', messages: ['not a FITS file: the first card is not SIMPLE'] },
+      { index: 2, name: 'spectra.zip/b.csv', messages: ['no redshift for b: the file has none (Z or REDSHIFT)', 'galaxy ID "x": too long'] },
     ])
-    expect(m.get(0)).toEqual(['no wavelength column'])
-    expect(m.get(2)).toEqual(['spectra/0/wavelength/12: must be ascending'])
-    expect(m.get(-1)).toEqual(['must be ≥ 0'])
+    expect(isRefused('a.fits', r)).toBe(true)
+    expect(isRefused('spectra.zip', r)).toBe(true)
+    expect(isRefused('c.csv', r)).toBe(false)
+    // a message without the file name stays whole
+    expect(refusedFiles([{ path: '/files/1', message: 'line 3: expected numbers' }])).toEqual([{ index: 1, name: null, messages: ['line 3: expected numbers'] }])
   })
 
   it('writes sizes', () => {
