@@ -148,3 +148,28 @@ export const http = {
   patch: <T>(path: string, body?: unknown, options?: RequestOptions) => request<T>('PATCH', path, { ...options, body }),
   delete: <T = void>(path: string, options?: RequestOptions) => request<T>('DELETE', path, options),
 }
+
+/**
+ * POST a multipart form with XMLHttpRequest rather than fetch: fetch reports no upload progress, and
+ * a survey table or a zip of spectra can take a while on a slow link. Same cookies, CSRF header and
+ * problem documents as `request`.
+ */
+export function postForm<T>(path: string, form: FormData, onProgress: (fraction: number) => void): Promise<T> {
+  return new Promise((resolve, reject) => {
+    const xhr = new XMLHttpRequest()
+    xhr.open('POST', apiUrl(path))
+    xhr.withCredentials = true
+    xhr.setRequestHeader('Accept', 'application/json')
+    for (const [k, v] of Object.entries(csrfHeaders('POST'))) xhr.setRequestHeader(k, v)
+    xhr.upload.onprogress = (e) => { if (e.lengthComputable) onProgress(e.loaded / e.total) }
+    xhr.onerror = () => reject(new ApiProblem({ status: 0, title: 'Network error' }))
+    xhr.onload = () => {
+      let body: unknown
+      try { body = xhr.responseText ? JSON.parse(xhr.responseText) : undefined } catch { body = undefined }
+      if (xhr.status >= 200 && xhr.status < 300) { onProgress(1); resolve(body as T); return }
+      const doc = body && typeof body === 'object' ? body : {}
+      reject(new ApiProblem({ title: xhr.statusText, ...doc, status: xhr.status }))
+    }
+    xhr.send(form)
+  })
+}

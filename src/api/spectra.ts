@@ -1,4 +1,4 @@
-import { ApiProblem, apiUrl, csrfHeaders, http } from './http'
+import { apiUrl, http, postForm } from './http'
 import { projectPath } from './projects'
 import type {
   FitQualityPage, FitQualityQuery, FitSettings, GalaxySpectrum, SpectrumUploadAnswer, SpectrumUploadDefaults,
@@ -15,33 +15,17 @@ export interface SpectrumUploadOptions {
 }
 
 /**
- * Many spectra in one multipart request (`files` repeated), sent with XMLHttpRequest for its upload
- * progress (fetch has none); the server reads every file and answers with the fit job to follow.
+ * Many spectra in one multipart request (`files` repeated), with upload progress; the server reads
+ * every file and answers with the fit job to follow.
  */
 function upload(projectId: string, files: readonly File[], options: SpectrumUploadOptions, onProgress: (fraction: number) => void): Promise<SpectrumUploadAnswer> {
-  return new Promise((resolve, reject) => {
-    const xhr = new XMLHttpRequest()
-    xhr.open('POST', apiUrl(`${projectPath(projectId)}/spectra`))
-    xhr.withCredentials = true
-    xhr.setRequestHeader('Accept', 'application/json')
-    for (const [k, v] of Object.entries(csrfHeaders('POST'))) xhr.setRequestHeader(k, v)
-    xhr.upload.onprogress = (e) => { if (e.lengthComputable) onProgress(e.loaded / e.total) }
-    xhr.onerror = () => reject(new ApiProblem({ status: 0, title: 'Network error' }))
-    xhr.onload = () => {
-      let body: unknown
-      try { body = xhr.responseText ? JSON.parse(xhr.responseText) : undefined } catch { body = undefined }
-      if (xhr.status >= 200 && xhr.status < 300) { onProgress(1); resolve(body as SpectrumUploadAnswer); return }
-      const doc = body && typeof body === 'object' ? body : {}
-      reject(new ApiProblem({ title: xhr.statusText, ...doc, status: xhr.status }))
-    }
-    const form = new FormData()
-    // the fields before the files: a streaming reader on the server knows them before the first file
-    if (options.defaults && Object.keys(options.defaults).length) form.append('defaults', JSON.stringify(options.defaults))
-    if (options.onExisting) form.append('onExisting', options.onExisting)
-    if (options.skipInvalid) form.append('skipInvalid', 'true')
-    for (const f of files) form.append('files', f, f.name)
-    xhr.send(form)
-  })
+  const form = new FormData()
+  // the fields before the files: a streaming reader on the server knows them before the first file
+  if (options.defaults && Object.keys(options.defaults).length) form.append('defaults', JSON.stringify(options.defaults))
+  if (options.onExisting) form.append('onExisting', options.onExisting)
+  if (options.skipInvalid) form.append('skipInvalid', 'true')
+  for (const f of files) form.append('files', f, f.name)
+  return postForm<SpectrumUploadAnswer>(`${projectPath(projectId)}/spectra`, form, onProgress)
 }
 
 export const spectraApi = {
