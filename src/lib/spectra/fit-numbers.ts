@@ -3,12 +3,6 @@ import { LINE_IDS, lineLabel } from '../../../shared/vocabulary/index.ts'
 
 /** The fitted numbers beside the spectrum and the before/after table of a refit. */
 
-const EXTRA_LABELS: Record<string, string> = { hei_5876: 'He I 5876' }
-
-/** Label of a fitted line: the vocabulary's, or the fit's own extra lines (He I 5876). */
-export function fitLineLabel(id: string): string {
-  return EXTRA_LABELS[id] ?? lineLabel(id)
-}
 
 /** The lines of a result in the vocabulary's order, lines the vocabulary lacks after them by wavelength-free name. */
 export function orderedLineIds(lines: Record<string, unknown>): string[] {
@@ -53,7 +47,7 @@ export function fitNumberRows(result: Pick<SpectrumFitResult, 'lines'>): FitNumb
   const out: FitNumberRow[] = []
   for (const id of orderedLineIds(result.lines)) {
     const l = result.lines[id]
-    out.push(rowOf(id, fitLineLabel(id), l))
+    out.push(rowOf(id, lineLabel(id), l))
     if (l.detected && l.components && l.components.length > 1) {
       l.components.forEach((c, k) => out.push({
         id: `${id}:${k + 1}`, label: `component ${k + 1}`, detected: true, sub: true,
@@ -103,7 +97,7 @@ export function compareLines(before: Pick<SpectrumFitResult, 'lines'>, after: Pi
   return ids.map((id) => {
     const a = before.lines[id], b = after.lines[id]
     return {
-      id, label: fitLineLabel(id),
+      id, label: lineLabel(id),
       detected: [a ? a.detected : null, b ? b.detected : null],
       flux: compared(fluxOf(a), fluxOf(b), true),
       velocity: compared(a?.detected ? num(a.velocity) : null, b?.detected ? num(b.velocity) : null),

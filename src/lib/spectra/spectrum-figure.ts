@@ -1,8 +1,7 @@
 import type { Data, Layout } from 'plotly.js-dist-min'
 import type { ModelComponentKind, SpectrumData, SpectrumModelCurves } from '../../api/spectra-types'
-import { OKABE_ITO } from '../../../shared/vocabulary/index.ts'
+import { lineLabel, OKABE_ITO } from '../../../shared/vocabulary/index.ts'
 import { displayIndices, take } from './downsample'
-import { fitLineLabel } from './fit-numbers'
 import { errorBand, onContinuum, residuals, trimComponent } from './residuals'
 
 /**
@@ -105,7 +104,7 @@ function componentTraces(m: PreparedModel, idx: Int32Array, x: number[], legendP
     const y = take(c.values, idx)
     if (!y.some((v) => v !== null)) continue
     const t = byKind.get(c.kind) ?? { x: [], y: [], text: [] }
-    const label = fitLineLabel(c.line)
+    const label = lineLabel(c.line)
     for (let k = 0; k < y.length; k++) {
       if (y[k] === null) continue
       t.x.push(x[k]); t.y.push(y[k]); t.text.push(label)

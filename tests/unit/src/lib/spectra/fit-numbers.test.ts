@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import type { SpectrumFitResult } from '../../../../../src/api/spectra-types'
-import { chi2PerDof, compareLines, compareSummary, detectionCount, fitLineLabel, fitNumberRows, orderedLineIds } from '../../../../../src/lib/spectra/fit-numbers'
+import { chi2PerDof, compareLines, compareSummary, detectionCount, fitNumberRows, orderedLineIds } from '../../../../../src/lib/spectra/fit-numbers'
+import { lineLabel } from '../../../../../shared/vocabulary/index.ts'
 
 const detected = (flux: number, velocity: number, sigmaIntrinsic: number) => ({
   detected: true as const, flux, error: flux / 20, snr: 20, ew: 12, ewError: 0.5, velocity, velocityError: 3, sigma: sigmaIntrinsic + 10, sigmaError: 4, sigmaIntrinsic,
@@ -21,10 +22,10 @@ const before: SpectrumFitResult = {
 }
 
 describe('fitted numbers', () => {
-  it('order the lines as the vocabulary does, extra lines after, with their labels', () => {
+  it('order the lines as the vocabulary does, fit-only lines after, with their labels', () => {
     expect(orderedLineIds(before.lines)).toEqual(['halpha', 'nii_6584', 'oi_6300', 'hei_5876'])
-    expect(fitLineLabel('hei_5876')).toBe('He I 5876')
-    expect(fitLineLabel('nii_6584')).toBe('[N II] 6584')
+    expect(lineLabel('hei_5876')).toBe('He I 5876')
+    expect(lineLabel('nii_6584')).toBe('[N II] 6584')
   })
 
   it('give a row per line, upper limits as limits', () => {
