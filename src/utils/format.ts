@@ -48,3 +48,27 @@ export function fmtRelative(iso: string | null | undefined, now = Date.now()): s
   if (s < 86400) return `${Math.round(s / 3600)} h ago`
   return `${Math.round(s / 86400)} d ago`
 }
+
+/**
+ * A measurement and its 1σ error, both to the decimal of the error's last significant digit: two
+ * digits when the error's leading digits are below 355, else one (the Particle Data Group's rounding
+ * rule, Review of Particle Physics, "Introduction": common practice). "646.4 ± 1.3", "18.60 ± 0.09".
+ */
+export function fmtMeasured(v: unknown, err: unknown): string {
+  if (!isNum(v)) return '—'
+  if (!isNum(err) || err <= 0) return fmt(v, 3)
+  const a = Math.abs(v)
+  if (a >= 1e6 || (a !== 0 && a < 1e-4)) return fmtErr(v, err, 3)
+  const exponent = Math.floor(Math.log10(err))
+  const lead = err / 10 ** exponent
+  const digits = lead < 3.55 ? 2 : 1
+  const decimals = Math.min(6, Math.max(0, digits - 1 - exponent))
+  return `${fmtFixed(v, decimals)} ± ${err.toFixed(decimals)}`
+}
+
+/** Where an intake's records came from, in words. */
+export function intakeSource(kind: string, fileName: string | null | undefined): string {
+  if (kind === 'csv') return fileName ?? 'CSV file'
+  if (kind === 'spectra') return fileName ? `Spectra: ${fileName}` : 'Spectra'
+  return 'API batch'
+}
