@@ -59,11 +59,20 @@ export function fmtMeasured(v: unknown, err: unknown): string {
   if (!isNum(err) || err <= 0) return fmt(v, 3)
   const a = Math.abs(v)
   if (a >= 1e6 || (a !== 0 && a < 1e-4)) return fmtErr(v, err, 3)
-  const exponent = Math.floor(Math.log10(err))
-  const lead = err / 10 ** exponent
-  const digits = lead < 3.55 ? 2 : 1
-  const decimals = Math.min(6, Math.max(0, digits - 1 - exponent))
+  const decimals = measuredDecimals(err)
   return `${fmtFixed(v, decimals)} ± ${err.toFixed(decimals)}`
+}
+
+/** The value alone, to the decimal its error allows (as fmtMeasured writes it). */
+export function fmtToError(v: unknown, err: unknown): string {
+  return fmtMeasured(v, err).split(' ± ')[0]
+}
+
+/** Decimals of a value with this error: the error's last significant digit (PDG rule, as above). */
+function measuredDecimals(err: number): number {
+  const exponent = Math.floor(Math.log10(err))
+  const digits = err / 10 ** exponent < 3.55 ? 2 : 1
+  return Math.min(6, Math.max(0, digits - 1 - exponent))
 }
 
 /** Where an intake's records came from, in words. */

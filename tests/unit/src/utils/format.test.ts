@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { fmtMeasured, intakeSource } from '../../../../src/utils/format'
+import { fmtMeasured, fmtToError, intakeSource } from '../../../../src/utils/format'
 
 describe('fmtMeasured', () => {
   it('rounds the error to one or two significant digits and the value to the same decimal (PDG rounding rule, common practice)', () => {
@@ -9,6 +9,7 @@ describe('fmtMeasured', () => {
     expect(fmtMeasured(-0.04, 1.8)).toBe('0.0 ± 1.8')
     expect(fmtMeasured(15012, 310)).toBe('15012 ± 310')
     expect(fmtMeasured(110.4, 5.4)).toBe('110 ± 5')
+    expect(fmtToError(47.1888, 0.13)).toBe('47.19')
   })
 
   it('falls back without a usable error', () => {

@@ -19,7 +19,7 @@ const rowText = (html: ReturnType<typeof mount>, line: string) => html.find(`tr[
 describe('fitted numbers table', () => {
   it('writes each line with its errors, a limit for an undetected line, and Na I D', () => {
     const w = mount(FitNumbersTable, { props: { result: stored, fluxUnit: 1e-17 }, global: { plugins } })
-    expect(rowText(w, 'halpha')).toBe('Hα 6563 | 600 ± 24 | 25.0 | 30.0 ± 0.8 | 10 ± 4 | 110 ± 5')
+    expect(rowText(w, 'halpha')).toBe('Hα 6563 | 600 ± 24 | 25.0 | 30.0 | 10 ± 4 | 110 ± 5')
     expect(rowText(w, 'oi_6300')).toBe('[O I] 6300 | < 9.00 | not detected (upper limit)')
     expect(w.find('[data-testid="fit-nad"]').text()).toMatch(/Not detected: EW < 0\.40 Å/)
     expect(w.text()).toContain('Fluxes in 1e-17 erg s⁻¹ cm⁻²')
