@@ -2,10 +2,14 @@ import type { ProblemFieldError } from '../../api/http'
 
 /** Which files an upload of spectra takes, checked before sending (the server checks again). */
 
+/**
+ * The schema's SPECTRUM_FILE_EXTENSIONS and `.zip` (a unit test holds them equal; the schema module
+ * stays out of the bundle). The size limit is the server's setting: a file above it answers 413.
+ */
 export const SPECTRUM_EXTENSIONS = ['.fits', '.fit', '.fts', '.csv', '.txt', '.dat', '.tsv', '.ascii', '.zip'] as const
 
-/** 64 MB a file (the server answers 413 above it). */
-export const MAX_SPECTRUM_FILE_BYTES = 64 * 1024 * 1024
+/** Most spectra in one upload (the schema's SPECTRA_PER_UPLOAD_MAX, held equal by a test). */
+export const MAX_SPECTRA_PER_UPLOAD = 1000
 
 /** The `accept` attribute of the file input. */
 export const SPECTRUM_ACCEPT = SPECTRUM_EXTENSIONS.join(',')
@@ -20,7 +24,6 @@ export interface FileCheck { name: string; size: number; reason: string | null }
 /** The reason a file cannot be sent, or null. */
 export function fileProblem(f: { name: string; size: number }): string | null {
   if (!(SPECTRUM_EXTENSIONS as readonly string[]).includes(extensionOf(f.name))) return `not a spectrum file (${SPECTRUM_EXTENSIONS.join(' ')})`
-  if (f.size > MAX_SPECTRUM_FILE_BYTES) return 'larger than 64 MB'
   if (f.size === 0) return 'the file is empty'
   return null
 }

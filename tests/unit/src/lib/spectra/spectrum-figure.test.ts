@@ -8,9 +8,11 @@ const gauss = (c: number, s: number, a: number) => wavelength.map((l) => a * Mat
 const continuum = wavelength.map(() => 10)
 const ha = gauss(6600, 2, 30), nii = gauss(6620, 2, 10)
 const total = continuum.map((c, i) => c + ha[i] + nii[i])
+// a bad pixel (100) reads flux 0 with its error null, as the server stores it
 const spectrum: SpectrumData = {
-  id: 1, galaxyId: 'G', redshift: 0.005, wavelengthMedium: 'air', fluxUnit: 1e-17, resolution: null, wavelength,
-  flux: total.map((v, i) => (i === 100 ? null : v + (i % 2 ? 0.5 : -0.5))), error: wavelength.map((_, i) => (i === 100 ? null : 0.5)),
+  id: 1, galaxyId: 'G', redshift: 0.005, wavelengthMedium: 'air', fluxUnit: 1e-17, resolution: null, fileName: 'g.csv', source: 'columns wavelength, flux, error',
+  createdAt: '2026-12-03T07:00:00Z', wavelength,
+  flux: total.map((v, i) => (i === 100 ? 0 : v + (i % 2 ? 0.5 : -0.5))), error: wavelength.map((_, i) => (i === 100 ? null : 0.5)),
 }
 const model: SpectrumModelCurves = {
   continuum, total, windows: [],

@@ -1,12 +1,16 @@
 import { describe, expect, it } from 'vitest'
-import { fileProblem, fmtBytes, isRefused, mergeFiles, MAX_SPECTRUM_FILE_BYTES, refusedFiles } from '../../../../../src/lib/spectra/upload-files'
+import { fileProblem, fmtBytes, isRefused, MAX_SPECTRA_PER_UPLOAD, mergeFiles, refusedFiles, SPECTRUM_EXTENSIONS } from '../../../../../src/lib/spectra/upload-files'
+import { SPECTRA_PER_UPLOAD_MAX, SPECTRUM_FILE_EXTENSIONS } from '../../../../../shared/schemas/project-spectra.schema.ts'
 
 describe('spectrum upload files', () => {
-  it('takes FITS, text tables and zips up to 64 MB', () => {
+  it('takes what the server reads: its spectrum files and zips of them', () => {
+    expect([...SPECTRUM_EXTENSIONS]).toEqual([...SPECTRUM_FILE_EXTENSIONS, '.zip'])
+    expect(MAX_SPECTRA_PER_UPLOAD).toBe(SPECTRA_PER_UPLOAD_MAX)
     for (const name of ['a.fits', 'b.FIT', 'c.fts', 'd.csv', 'e.txt', 'f.dat', 'g.tsv', 'h.ascii', 'all.zip']) expect(fileProblem({ name, size: 10 })).toBeNull()
     expect(fileProblem({ name: 'notes.pdf', size: 10 })).toMatch(/^not a spectrum file/)
     expect(fileProblem({ name: 'noext', size: 10 })).toMatch(/^not a spectrum file/)
-    expect(fileProblem({ name: 'big.fits', size: MAX_SPECTRUM_FILE_BYTES + 1 })).toBe('larger than 64 MB')
+    // the size limit is the server's setting (413 above it)
+    expect(fileProblem({ name: 'big.fits', size: 200 * 1024 * 1024 })).toBeNull()
     expect(fileProblem({ name: 'empty.csv', size: 0 })).toBe('the file is empty')
   })
 
