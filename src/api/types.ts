@@ -15,7 +15,7 @@ import type { GalaxyDetailSchema, GalaxyRevisionResultsSchema } from '../../shar
 import type { ClassParam } from '../../shared/results/registry.ts'
 import type { LineValue } from '../../shared/diagnostics/types.ts'
 import type { ClassDiagram, Diagram, LineId } from '../../shared/vocabulary/index.ts'
-import type { FitSettings, Kinematics } from './spectra-types'
+import type { Kinematics } from './spectra-types'
 
 /**
  * What the dashboard reads and sends. Where the shared zod schemas (shared/schemas/) describe a
@@ -34,8 +34,8 @@ export type Me = z.infer<typeof MeSchema>
 
 export type Project = z.infer<typeof ProjectSchema>
 
-/** The project's assumptions, complete (the server fills the defaults); `fit` until the schema carries it. */
-export type Settings = SettingsDto & { fit?: FitSettings }
+/** The project's assumptions, complete (the server fills the defaults). */
+export type Settings = SettingsDto
 
 /** One revision of the assumptions. */
 export type Revision = z.infer<typeof AssumptionsRevisionSchema>
@@ -61,7 +61,7 @@ export interface ProjectOverview {
   classCounts: Record<ClassDiagram, Record<string, number>>
   histograms: { ebv: Histogram; neSii: Histogram }
   latestIntakes: Intake[]
-  /** gas kinematics of the line fits; absent before a spectrum has been fitted (and from older servers) */
+  /** gas kinematics of the line fits (`fitted` 0 before any spectrum is fitted) */
   kinematics?: Kinematics | null
 }
 
