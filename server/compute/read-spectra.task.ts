@@ -3,6 +3,7 @@
 // same function runs in-process. The arrays come back in their stored form (typed arrays).
 import { FitsError } from '../../shared/formats/fits.ts'
 import { spectraFromFile, SpectrumTextError } from '../../shared/formats/spectrum-text.ts'
+import { SpectrumJsonError } from '../../shared/formats/spectrum-json.ts'
 import type { SpectrumFromFile } from '../../shared/formats/spectrum-fits.ts'
 import { FLUX_MAX } from '../../shared/schemas/galaxy.schema.ts'
 import { SpectrumSchema } from '../../shared/schemas/spectra.schema.ts'
@@ -17,6 +18,7 @@ export interface ReadSpectrum {
   redshift?: number
   fluxUnit?: number
   wavelengthMedium?: 'air' | 'vacuum'
+  resolution?: SpectrumFromFile['resolution']
   source: string
   pixels: number
   wavelength: Float64Array
@@ -78,7 +80,7 @@ function check(s: SpectrumFromFile, k: number, problems: ReadProblem[]): ReadSpe
   if (problems.length > before) return undefined
   // and the science library's spectrum schema (the bounds of every value)
   const checked = SpectrumSchema.safeParse({
-    id: 'spectrum', redshift: 0, wavelength: s.wavelength, flux: s.flux,
+    id: 'spectrum', redshift: 0, wavelength: s.wavelength, flux: s.flux, ...(s.resolution ? { resolution: s.resolution } : {}),
     ...(kind === 'ivar' ? { ivar: Array.from(noise) } : { error: Array.from(noise, (e) => (Number.isNaN(e) ? null : e)) }),
   })
   if (!checked.success) {
@@ -88,7 +90,7 @@ function check(s: SpectrumFromFile, k: number, problems: ReadProblem[]): ReadSpe
   return {
     ...(s.id !== undefined ? { id: s.id } : {}), ...(s.redshift !== undefined ? { redshift: s.redshift } : {}),
     ...(s.fluxUnit !== undefined ? { fluxUnit: s.fluxUnit } : {}), ...(s.wavelengthMedium ? { wavelengthMedium: s.wavelengthMedium } : {}),
-    source: s.source, pixels: n, wavelength: Float64Array.from(s.wavelength), flux: Float32Array.from(s.flux), noiseKind: kind!, noise,
+    ...(s.resolution ? { resolution: s.resolution } : {}), source: s.source, pixels: n, wavelength: Float64Array.from(s.wavelength), flux: Float32Array.from(s.flux), noiseKind: kind!, noise,
   }
 }
 
@@ -99,6 +101,7 @@ export function readSpectraTask(task: ReadSpectraTask): ReadSpectraOutput {
   } catch (err) {
     if (err instanceof SpectrumTextError) return { ok: false, problems: [{ path: '', message: err.message, ...(err.line !== undefined ? { line: err.line } : {}) }] }
     if (err instanceof FitsError) return { ok: false, problems: [{ path: '', message: err.message }] }
+    if (err instanceof SpectrumJsonError) return { ok: false, problems: [{ path: err.path, message: err.message }] }
     if (err instanceof RangeError) return { ok: false, problems: [{ path: '', message: `the file could not be read: ${err.message}` }] }
     throw err
   }

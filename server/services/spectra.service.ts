@@ -142,7 +142,7 @@ async function storeSpectrum(tx: Tx, projectId: string, uploadId: string, fileNa
   const [row] = await tx.insert(spectra).values({
     projectId, galaxyId: p.galaxyId, uploadId, fileName: fileName.slice(0, 255), source: printable(p.s.source).slice(0, 500), redshift: p.redshift!,
     wavelengthMedium: p.s.wavelengthMedium ?? defaults.wavelengthMedium ?? 'air', fluxUnit: p.s.fluxUnit ?? defaults.fluxUnit ?? 1,
-    resolution: defaults.resolution ?? null, pixels: p.s.pixels, wavelengthMin: p.s.wavelength[0]!, wavelengthMax: p.s.wavelength[p.s.pixels - 1]!,
+    resolution: p.s.resolution ?? defaults.resolution ?? null, pixels: p.s.pixels, wavelengthMin: p.s.wavelength[0]!, wavelengthMax: p.s.wavelength[p.s.pixels - 1]!,
     wavelength, flux, noiseKind: p.s.noiseKind, noise, sha256,
   }).onConflictDoNothing().returning({ id: spectra.id })
   return { id: row?.id ?? null, stored: row ? (replaced ? 'replaced' as const : 'created' as const) : 'skipped' as const }

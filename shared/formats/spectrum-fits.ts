@@ -24,6 +24,8 @@ export interface SpectrumFromFile {
   flux: number[]
   error?: (number | null)[]
   ivar?: number[]
+  /** The instrumental line spread, when the file says it (JSON spectra). */
+  resolution?: { fwhmAngstrom?: number; fwhmKmPerS?: number; resolvingPower?: number }
   /** Where each array came from, for the upload report. */
   source: string
 }

@@ -6,6 +6,7 @@
  * after a name (`flux [1e-17 erg/s/cm2/A]`, `wave (nm)`) are read.
  */
 import { fluxUnitOf, spectraFromFits, type SpectrumFromFile } from './spectrum-fits.ts'
+import { looksLikeJson, spectraFromJson } from './spectrum-json.ts'
 
 export class SpectrumTextError extends Error {
   constructor(message: string, readonly line?: number) {
@@ -127,17 +128,18 @@ function unitScale(unit: string | undefined): number {
   throw new SpectrumTextError(`the wavelength unit "${unit}" is not one of Å, nm, µm`)
 }
 
-export type SpectrumFileKind = 'fits' | 'text'
+export type SpectrumFileKind = 'fits' | 'json' | 'text'
 
-/** FITS by its first card (FITS 4.0 §3.3.1), text otherwise. */
+/** FITS by its first card (FITS 4.0 §3.3.1), JSON by its opening brace or bracket, text otherwise. */
 export function spectrumFileKind(bytes: Uint8Array): SpectrumFileKind {
   const head = String.fromCharCode(...bytes.subarray(0, 9))
-  return head === 'SIMPLE  =' ? 'fits' : 'text'
+  return head === 'SIMPLE  =' ? 'fits' : looksLikeJson(bytes) ? 'json' : 'text'
 }
 
-/** Every spectrum in one uploaded file (FITS or a text table). */
+/** Every spectrum in one uploaded file (FITS, JSON or a text table). */
 export function spectraFromFile(bytes: Uint8Array): SpectrumFromFile[] {
-  if (spectrumFileKind(bytes) === 'fits') return spectraFromFits(bytes)
+  const kind = spectrumFileKind(bytes)
+  if (kind === 'fits') return spectraFromFits(bytes)
   const text = new TextDecoder('utf-8', { fatal: false }).decode(bytes)
-  return [spectrumFromText(text)]
+  return kind === 'json' ? spectraFromJson(text.replace(/^\uFEFF/, '')) : [spectrumFromText(text)]
 }

@@ -15,7 +15,7 @@ export const SPECTRA_PER_UPLOAD_MAX = SPECTRA_MAX_PER_REQUEST
 export const SPECTRUM_PIXELS_MAX = SPECTRUM_MAX_PIXELS
 export const SPECTRUM_PIXELS_MIN = SPECTRUM_MIN_PIXELS
 /** Files a spectrum can come in; a `.zip` may hold any of them. */
-export const SPECTRUM_FILE_EXTENSIONS = ['.fits', '.fit', '.fts', '.csv', '.txt', '.dat', '.tsv', '.ascii'] as const
+export const SPECTRUM_FILE_EXTENSIONS = ['.fits', '.fit', '.fts', '.json', '.csv', '.txt', '.dat', '.tsv', '.ascii'] as const
 
 export const WavelengthMediumSchema = z.enum(['air', 'vacuum'])
 

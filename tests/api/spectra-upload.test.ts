@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import { signedInAgent, startTestApp, type TestApp } from '../helpers/app.ts'
-import { STAR_FORMING, syntheticCsv, zipOf } from '../helpers/spectra.ts'
+import { STAR_FORMING, syntheticCsv, syntheticSpectrum as syntheticSpectrumArrays, zipOf } from '../helpers/spectra.ts'
 
 /**
  * Spectra uploads end to end: FITS and text files, zips of several, bad files (422 with `/files/<i>`
@@ -90,6 +90,21 @@ describe('uploading spectra', () => {
     // stored as the inverse variance; answered as 1σ = 1/√ivar
     expect(table.error[0]).toBeCloseTo(1 / Math.sqrt(want.ivar![0]), 6)
     expect((await get('/galaxies/SYN-1/spectrum')).body.spectrum).toMatchObject({ redshift: 0.03, wavelengthMedium: 'air', fluxUnit: 1 })
+  })
+
+  it('reads JSON spectrum files (one object or a request body) with their own resolution, which wins over the form\'s', async () => {
+    const sp = (id: string) => ({ id, redshift: 0.025, fluxUnit: 1e-17, resolution: { resolvingPower: 2500 }, ...syntheticSpectrumArrays({ redshift: 0.025, lines: STAR_FORMING, seed: 5 }) })
+    const res = await upload([['one.json', JSON.stringify(sp('JSON-A'))], ['body.json', JSON.stringify({ spectra: [sp('JSON-B')] })]],
+      { defaults: JSON.stringify({ resolution: { fwhmAngstrom: 3 } }) })
+    expect(res.status, JSON.stringify(res.body)).toBe(202)
+    expect(res.body.upload.files.map((f: { spectra: Array<{ galaxyId: string }> }) => f.spectra[0].galaxyId)).toEqual(['JSON-A', 'JSON-B'])
+    await untilDone(res.body.job.id)
+    const a = (await get('/galaxies/JSON-A/spectrum')).body
+    expect(a.spectrum).toMatchObject({ redshift: 0.025, fluxUnit: 1e-17, resolution: { resolvingPower: 2500 } })
+    expect(a.fit.result.lines.halpha.detected).toBe(true)
+    const bad = await upload([['bad.json', JSON.stringify({ ...sp('JSON-C'), flux: 'none' })]])
+    expect(bad.status).toBe(422)
+    expect(bad.body.errors[0].path).toBe('/files/0/spectra/0/flux')
   })
 
   it('takes a zip of several files, each reported by its path in the archive', async () => {

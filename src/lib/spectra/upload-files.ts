@@ -6,7 +6,7 @@ import type { ProblemFieldError } from '../../api/http'
  * The schema's SPECTRUM_FILE_EXTENSIONS and `.zip` (a unit test holds them equal; the schema module
  * stays out of the bundle). The size limit is the server's setting: a file above it answers 413.
  */
-export const SPECTRUM_EXTENSIONS = ['.fits', '.fit', '.fts', '.csv', '.txt', '.dat', '.tsv', '.ascii', '.zip'] as const
+export const SPECTRUM_EXTENSIONS = ['.fits', '.fit', '.fts', '.json', '.csv', '.txt', '.dat', '.tsv', '.ascii', '.zip'] as const
 
 /** Most spectra in one upload (the schema's SPECTRA_PER_UPLOAD_MAX, held equal by a test). */
 export const MAX_SPECTRA_PER_UPLOAD = 1000
