@@ -51,7 +51,8 @@ export interface StartOptions {
   env?: NodeJS.ProcessEnv
   serveClient?: boolean
   buildClient?: boolean
-  seed?: boolean
+  /** seed the demo project; `{ spectra: false }` leaves out its invented spectra (and their background fit) */
+  seed?: boolean | { spectra: boolean }
   /** Throwaway cluster for tests: no durability, own folder. */
   embeddedDir?: string
   durable?: boolean
@@ -91,11 +92,12 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
   const diagrams = new DiagramCache(config.diagramWarmupMs)
   // one in-process worker; more can run as `npm run worker` against the same database
   const jobs = await startJobQueue(databaseUrl)
-  await startRecomputeWorker(jobs.boss, galaxyContext({ db, config, compute, diagrams, mailer }))
+  const context = galaxyContext({ db, config, compute, diagrams, mailer })
+  await startRecomputeWorker(jobs.boss, context)
 
   if (opts.seed) {
     const { seedDemo } = await import('./seed/demo.ts')
-    await seedDemo(db, log)
+    await seedDemo(db, log, { context, spectra: opts.seed === true || opts.seed.spectra })
   }
   if (opts.buildClient) buildClientIfStale(log)
 

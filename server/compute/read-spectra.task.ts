@@ -105,6 +105,11 @@ export function readSpectraTask(task: ReadSpectraTask): ReadSpectraOutput {
     if (err instanceof RangeError) return { ok: false, problems: [{ path: '', message: `the file could not be read: ${err.message}` }] }
     throw err
   }
+  return checkSpectra(found)
+}
+
+/** The checks a file's spectra must pass before they are stored, and their stored form. */
+export function checkSpectra(found: SpectrumFromFile[]): ReadSpectraOutput {
   if (!found.length) return { ok: false, problems: [{ path: '', message: 'no spectrum in the file' }] }
   const large = found.findIndex((s) => s.wavelength.length > SPECTRUM_PIXELS_MAX)
   if (large >= 0) return { ok: false, tooLarge: { pixels: found[large]!.wavelength.length, spectrum: large } }

@@ -156,6 +156,59 @@ export function uploadDto(u: typeof spectrumUploads.$inferSelect) {
   return { id: u.id, createdAt: u.createdAt.toISOString(), fileCount: u.fileCount, spectrumCount: u.spectrumCount, intakeId: u.intakeId, files: u.report as FileReport[] }
 }
 
+/**
+ * Stores the spectra of an upload's files (read, or refused by their problems) in the caller's
+ * transaction: the upload and its report, its `spectra` intake and its queued `fit` job, which the
+ * caller dispatches once this commits. A bad file refuses the whole upload (422, nothing stored)
+ * unless `skipInvalid`. The upload route and the demo seed store spectra only through this.
+ */
+export async function storeUpload(
+  tx: Tx, by: { userId: string; apiKeyId?: string | null }, projectId: string, names: string[],
+  files: AsyncIterable<FileOutcome> | Iterable<FileOutcome>, form: Pick<UploadForm, 'defaults' | 'onExisting' | 'skipInvalid'>,
+) {
+  const [upload] = await tx.insert(spectrumUploads).values({ projectId, createdBy: by.userId, fileCount: 0, spectrumCount: 0, report: [] }).returning()
+  const report: FileReport[] = []
+  const errors: FieldError[] = []
+  const seen = new Map<string, number>()
+  const defaults = form.defaults ?? {}
+  let bad = 0, stored = 0
+  for await (const f of files) {
+    let problems: FieldError[] = []
+    let placed: Placed[] = []
+    // messages quote the file (column names, cells): stored and shown, so printable
+    if (f.problems) problems = f.problems.map((p) => ({ path: `/files/${f.index}${p.path}`, message: printable(p.message) }))
+    else ({ placed, problems } = await placeSpectra(tx, projectId, f, defaults, seen))
+    if (problems.length) {
+      bad++
+      errors.push(...problems.map((p) => ({ path: p.path, message: `${f.name}: ${p.message}` })))
+      report.push({ name: f.name, size: f.size, error: fileError(problems, f.problems?.[0]?.line) })
+      continue
+    }
+    for (const p of placed) seen.set(p.galaxyId, f.index)
+    // a refused upload stores nothing: once a file is bad, the rest are only checked
+    if (bad && !form.skipInvalid) { report.push({ name: f.name, size: f.size }); continue }
+    const entries: NonNullable<FileReport['spectra']> = []
+    for (const p of placed) {
+      const s = await storeSpectrum(tx, projectId, upload.id, f.name, p, defaults, form.onExisting)
+      if (s.id !== null) stored++
+      entries.push({ galaxyId: p.galaxyId, pixels: p.s.pixels, source: printable(p.s.source).slice(0, 500), spectrumId: s.id, stored: s.stored })
+    }
+    report.push({ name: f.name, size: f.size, spectra: entries })
+  }
+  if (bad && !form.skipInvalid) throw new SpectraFileProblems(errors, bad)
+  const [intake] = await tx.insert(intakes).values({
+    projectId, kind: 'spectra', status: 'committing', userId: by.userId, apiKeyId: by.apiKeyId ?? null,
+    fileName: (names.length === 1 ? names[0]! : `${names[0]} and ${names.length - 1} more`).slice(0, 255), rowsTotal: stored,
+  }).returning()
+  const [done] = await tx.update(spectrumUploads).set({ fileCount: report.length, spectrumCount: stored, intakeId: intake.id, report })
+    .where(eq(spectrumUploads.id, upload.id)).returning()
+  const [job] = await tx.insert(jobs).values({
+    projectId, kind: 'fit', status: 'queued', total: stored, createdBy: by.userId, params: { uploadId: upload.id, intakeId: intake.id },
+  }).returning()
+  await audit(tx, { action: 'spectra-uploaded', actorUserId: by.userId, projectId, target: `upload ${upload.id}`, details: { files: report.length, stored, refused: bad } })
+  return { upload: done, job }
+}
+
 // ---- the service ----------------------------------------------------------------------------------
 
 export function spectraService(galaxy: GalaxyContext, limits: { fileLimitBytes: number }) {
@@ -187,50 +240,8 @@ export function spectraService(galaxy: GalaxyContext, limits: { fileLimitBytes: 
     async upload(auth: Auth, projectId: string, files: UploadedFile[], form: UploadForm) {
       try {
         if (!files.length) throw new HttpProblem(422, 'Unprocessable Content', 'no files in the form', [{ path: '/files', message: 'send one or more files in the "files" field' }])
-        const defaults = form.defaults ?? {}
-        const out = await db.transaction(async (tx) => {
-          const [upload] = await tx.insert(spectrumUploads).values({ projectId, createdBy: auth.user.id, fileCount: 0, spectrumCount: 0, report: [] }).returning()
-          const report: FileReport[] = []
-          const errors: FieldError[] = []
-          const seen = new Map<string, number>()
-          let bad = 0, stored = 0
-          for await (const f of readUpload(galaxy.compute, files, limits.fileLimitBytes)) {
-            let problems: FieldError[] = []
-            let placed: Placed[] = []
-            // messages quote the file (column names, cells): stored and shown, so printable
-            if (f.problems) problems = f.problems.map((p) => ({ path: `/files/${f.index}${p.path}`, message: printable(p.message) }))
-            else ({ placed, problems } = await placeSpectra(tx, projectId, f, defaults, seen))
-            if (problems.length) {
-              bad++
-              errors.push(...problems.map((p) => ({ path: p.path, message: `${f.name}: ${p.message}` })))
-              report.push({ name: f.name, size: f.size, error: fileError(problems, f.problems?.[0]?.line) })
-              continue
-            }
-            for (const p of placed) seen.set(p.galaxyId, f.index)
-            // a refused upload stores nothing: once a file is bad, the rest are only checked
-            if (bad && !form.skipInvalid) { report.push({ name: f.name, size: f.size }); continue }
-            const entries: NonNullable<FileReport['spectra']> = []
-            for (const p of placed) {
-              const s = await storeSpectrum(tx, projectId, upload.id, f.name, p, defaults, form.onExisting)
-              if (s.id !== null) stored++
-              entries.push({ galaxyId: p.galaxyId, pixels: p.s.pixels, source: printable(p.s.source).slice(0, 500), spectrumId: s.id, stored: s.stored })
-            }
-            report.push({ name: f.name, size: f.size, spectra: entries })
-          }
-          if (bad && !form.skipInvalid) throw new SpectraFileProblems(errors, bad)
-          const names = files.map((f) => f.originalname)
-          const [intake] = await tx.insert(intakes).values({
-            projectId, kind: 'spectra', status: 'committing', userId: auth.user.id, apiKeyId: auth.key?.id ?? null,
-            fileName: (names.length === 1 ? names[0]! : `${names[0]} and ${names.length - 1} more`).slice(0, 255), rowsTotal: stored,
-          }).returning()
-          const [done] = await tx.update(spectrumUploads).set({ fileCount: report.length, spectrumCount: stored, intakeId: intake.id, report })
-            .where(eq(spectrumUploads.id, upload.id)).returning()
-          const [job] = await tx.insert(jobs).values({
-            projectId, kind: 'fit', status: 'queued', total: stored, createdBy: auth.user.id, params: { uploadId: upload.id, intakeId: intake.id },
-          }).returning()
-          await audit(tx, { action: 'spectra-uploaded', actorUserId: auth.user.id, projectId, target: `upload ${upload.id}`, details: { files: report.length, stored, refused: bad } })
-          return { upload: done, job }
-        })
+        const out = await db.transaction((tx) => storeUpload(tx, { userId: auth.user.id, apiKeyId: auth.key?.id }, projectId, files.map((f) => f.originalname),
+          readUpload(galaxy.compute, files, limits.fileLimitBytes), form))
         await dispatchJob(galaxy, undefined, out.job)
         return { upload: uploadDto(out.upload), job: jobDto(out.job) }
       } finally {
