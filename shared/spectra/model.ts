@@ -15,7 +15,7 @@ import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
 import type { FitLineId } from './lines.ts'
 import type { LeastSquaresProblem } from './levenberg-marquardt.ts'
 import { chiSquare } from './levenberg-marquardt.ts'
-import { gaussianPixels, lorentzianPixels, voigtPixels } from './profiles.ts'
+import { GAUSS_CUT, gaussianPixels, lorentzianPixels, voigtPixels } from './profiles.ts'
 
 const C = SPEED_OF_LIGHT_KM_PER_S
 
@@ -101,6 +101,9 @@ interface Term {
   expected: number
   sigmaInst: number
   buf: Float64Array
+  /** rows [r0, r1) of the window where buf may be non-zero (Gaussians vanish beyond 8σ); buf is 0 elsewhere */
+  r0: number
+  r1: number
 }
 
 /** Bounds of the kinematic parameters, km/s (project choice, shared/science/README.md §13.6). */
@@ -111,6 +114,26 @@ export const KINEMATIC_BOUNDS = Object.freeze({
 })
 /** Least intrinsic width without an instrumental resolution (a zero width would be a delta function), km/s. */
 export const MIN_WIDTH_WITHOUT_INSTRUMENT = 1
+/** Reach of a Gaussian term in σ: a hair beyond the cut of gaussianPixels, which still decides each pixel itself. */
+const GAUSS_REACH = GAUSS_CUT * (1 + 1e-9)
+/** First row in [a, b) with edges[row] ≥ x (edges ascending there). */
+function firstAtLeast(edges: Float64Array, a: number, b: number, x: number): number {
+  while (a < b) {
+    const mid = (a + b) >>> 1
+    if (edges[mid] < x) a = mid + 1
+    else b = mid
+  }
+  return a
+}
+/** First row in [a, b) with edges[row] > x (edges ascending there). */
+function firstAbove(edges: Float64Array, a: number, b: number, x: number): number {
+  while (a < b) {
+    const mid = (a + b) >>> 1
+    if (edges[mid] <= x) a = mid + 1
+    else b = mid
+  }
+  return a
+}
 /** Finite-difference step of the kinematic parameters, km/s. */
 const KIN_STEP = 0.01
 
@@ -204,11 +227,11 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       const mult = line.parent ? 1 / (line.ratio as number) : 1
       for (let k = 0; k < config.components; k++) {
         terms.push({ window: wi, group: narrow[k], param: fluxParam.get(fluxKey(owner, k)) as number, mult, absorption: false,
-          expected: line.expectedAngstrom, sigmaInst: line.sigmaInstAngstrom, buf: new Float64Array(n) })
+          expected: line.expectedAngstrom, sigmaInst: line.sigmaInstAngstrom, buf: new Float64Array(n), r0: w.start, r1: w.start })
       }
       if (line.id === 'halpha' && broadGroup >= 0) {
         terms.push({ window: wi, group: broadGroup, param: fluxParam.get(fluxKey('halpha', -1)) as number, mult: 1, absorption: false,
-          expected: line.expectedAngstrom, sigmaInst: line.sigmaInstAngstrom, buf: new Float64Array(n) })
+          expected: line.expectedAngstrom, sigmaInst: line.sigmaInstAngstrom, buf: new Float64Array(n), r0: w.start, r1: w.start })
       }
     }
   })
@@ -220,7 +243,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     ewParam = { d2, d1 }
     for (const a of w.absorption) {
       terms.push({ window: nadWindow, group: absGroup, param: a.key === 'd2' ? d2 : d1, mult: 1, absorption: true,
-        expected: a.expectedAngstrom, sigmaInst: a.sigmaInstAngstrom, buf: new Float64Array(n) })
+        expected: a.expectedAngstrom, sigmaInst: a.sigmaInstAngstrom, buf: new Float64Array(n), r0: w.start, r1: w.start })
     }
   }
   const k = names.length
@@ -251,6 +274,28 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     const sl = lc * s / C
     voigtPixels(lo, hi, w.start, w.end, lc, Math.sqrt(sl * sl + si * si), gamma, out)
   }
+  /** the term's own profile into tm.buf, computed only where a Gaussian can be non-zero (the same values gaussianPixels gives there) */
+  const termProfile = (tm: Term, v: number, s: number, g: number): void => {
+    const w = windows[tm.window]
+    const b = tm.buf
+    if (tm.absorption || config.profile === 'gaussian') {
+      const lc = tm.expected * (1 + v / C)
+      const sl = lc * s / C
+      const sigma = Math.sqrt(sl * sl + tm.sigmaInst * tm.sigmaInst)
+      const reach = GAUSS_REACH * sigma
+      const r0 = firstAtLeast(hi, w.start, w.end, lc - reach)
+      const r1 = Math.max(r0, firstAbove(lo, w.start, w.end, lc + reach))
+      if (tm.r0 < r0) b.fill(0, tm.r0, Math.min(r0, tm.r1))
+      if (tm.r1 > r1) b.fill(0, Math.max(r1, tm.r0), tm.r1)
+      gaussianPixels(lo, hi, r0, r1, lc, sigma, b)
+      tm.r0 = r0
+      tm.r1 = r1
+      return
+    }
+    profileInto(tm, v, s, g, b)
+    tm.r0 = w.start
+    tm.r1 = w.end
+  }
   const kin = (p: Float64Array, gi: number): [number, number, number] => {
     const gr = groups[gi]
     return [p[gr.v], p[gr.s], gr.g >= 0 ? p[gr.g] : 0]
@@ -262,13 +307,13 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     if (same) return
     lastP.set(p)
     for (const tm of terms) {
-      const [v, s, g] = kin(p, tm.group)
-      profileInto(tm, v, s, g, tm.buf)
+      const gr = groups[tm.group]
+      termProfile(tm, p[gr.v], p[gr.s], gr.g >= 0 ? p[gr.g] : 0)
     }
   }
   const absorptionAt = (wi: number, p: Float64Array, j: number): number => {
     let a = 0
-    for (const tm of termsOfWindow[wi]) if (tm.absorption) a += p[tm.param] * tm.buf[j]
+    for (const tm of termsOfWindow[wi]) if (tm.absorption && j >= tm.r0 && j < tm.r1) a += p[tm.param] * tm.buf[j]
     return a
   }
   const assembleWindow = (p: Float64Array, wi: number, out: Float64Array): void => {
@@ -283,7 +328,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
         if (tm.absorption) continue
         const f = p[tm.param] * tm.mult
         const b = tm.buf
-        for (let j = w.start; j < w.end; j++) out[j] += f * b[j]
+        for (let j = tm.r0; j < tm.r1; j++) out[j] += f * b[j]
       }
     }
   }
@@ -374,7 +419,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
         const [i0, i1] = continuum[tm.window]
         for (let j = w.start; j < w.end; j++) col[j] -= (p[i0] + p[i1] * t[j]) * b[j]
       } else {
-        for (let j = w.start; j < w.end; j++) col[j] += tm.mult * b[j]
+        for (let j = tm.r0; j < tm.r1; j++) col[j] += tm.mult * b[j]
       }
     }
     groups.forEach((gr, gi) => {
@@ -428,13 +473,23 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     }
     return p
   }
+  const maxLinear = Math.max(2, ...linearParams.map((lp) => lp.length))
+  const na = new Float64Array(maxLinear * maxLinear)
+  const nb = new Float64Array(maxLinear)
+  const bj = new Float64Array(maxLinear)
+  const xs = new Float64Array(maxLinear)
+  const active = new Uint8Array(maxLinear)
+  const factor = new Float64Array(maxLinear * maxLinear)
+  const groupWindows = groups.map((_, gi) => [...new Set(termsOfGroup[gi].map((tm) => tm.window))])
+  const allWindows = windows.map((_, wi) => wi)
   const solveLinear = (p: Float64Array, group?: number): number => {
-    const chosen = group === undefined ? windows.map((_, wi) => wi) : [...new Set(termsOfGroup[group].map((tm) => tm.window))]
+    const chosen = group === undefined ? allWindows : groupWindows[group]
     lastP.fill(NaN)
     for (const wi of chosen) for (const tm of termsOfWindow[wi]) {
-      const [v, s, g] = kin(p, tm.group)
-      profileInto(tm, v, s, g, tm.buf)
+      const gr = groups[tm.group]
+      termProfile(tm, p[gr.v], p[gr.s], gr.g >= 0 ? p[gr.g] : 0)
     }
+    const { weight, y } = pixels
     let total = 0
     for (const wi of chosen) {
       const w = windows[wi]
@@ -442,58 +497,121 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       const params = linearParams[wi]
       const m = params.length
       const slot = ownSlot[wi]
-      const bj = new Float64Array(m)
-      const na = new Float64Array(m * m)
-      const nb = new Float64Array(m)
+      na.fill(0, 0, m * m)
+      nb.fill(0, 0, m)
       const c0 = w.continuum0
       const c1 = w.continuum1
+      // the continuum block over every row, the rest only where some profile is non-zero (zeros add nothing)
+      let s00 = 0, s01 = 0, s11 = 0, b0 = 0, b1 = 0
+      let u0 = w.end
+      let u1 = w.start
+      for (const tm of own) {
+        if (tm.r0 < tm.r1) {
+          u0 = Math.min(u0, tm.r0)
+          u1 = Math.max(u1, tm.r1)
+        }
+      }
       for (let j = w.start; j < w.end; j++) {
-        bj.fill(0)
-        bj[0] = 1
-        bj[1] = t[j]
+        const wt = weight[j]
+        const tj = t[j]
+        const wy = wt * y[j]
+        s00 += wt
+        s01 += wt * tj
+        s11 += wt * tj * tj
+        b0 += wy
+        b1 += wy * tj
+      }
+      na[0] = s00
+      na[1] = s01
+      na[m + 1] = s11
+      nb[0] = b0
+      nb[1] = b1
+      for (let j = u0; j < u1; j++) {
+        bj.fill(0, 2, m)
+        let any = false
         for (let q = 0; q < own.length; q++) {
           const tm = own[q]
-          bj[slot[q]] += tm.absorption ? -(c0 + c1 * t[j]) * tm.buf[j] : tm.mult * tm.buf[j]
+          if (j < tm.r0 || j >= tm.r1) continue
+          const b = tm.buf[j]
+          if (b === 0) continue
+          bj[slot[q]] += tm.absorption ? -(c0 + c1 * t[j]) * b : tm.mult * b
+          any = true
         }
-        const wt = pixels.weight[j]
-        const yj = pixels.y[j]
-        for (let r = 0; r < m; r++) {
+        if (!any) continue
+        const wt = weight[j]
+        const tj = t[j]
+        const wy = wt * y[j]
+        for (let r = 2; r < m; r++) {
           const br = wt * bj[r]
           if (br === 0) continue
-          nb[r] += br * yj
+          na[r] += br
+          na[m + r] += br * tj
+          nb[r] += wy * bj[r]
           for (let c = r; c < m; c++) na[r * m + c] += br * bj[c]
         }
       }
-      const a = new Matrix(m, m)
-      const rhs = new Matrix(m, 1)
-      for (let r = 0; r < m; r++) {
-        rhs.set(r, 0, nb[r])
-        for (let c = r; c < m; c++) {
-          a.set(r, c, na[r * m + c])
-          a.set(c, r, na[r * m + c])
-        }
-      }
+      for (let r = 0; r < m; r++) for (let c = r + 1; c < m; c++) na[c * m + r] = na[r * m + c]
       // fluxes and equivalent widths are ≥ 0: drop the most negative one and solve again (active set)
-      const active = params.map(() => true)
+      active.fill(1, 0, m)
       for (let pass = 0; pass < m; pass++) {
-        const x = solveSubset(a, rhs, active)
+        if (!choleskySubset(na, nb, m, active, factor, xs)) {
+          const x = solveSubset(Matrix.from1DArray(m, m, Array.from(na.subarray(0, m * m))), Matrix.columnVector(Array.from(nb.subarray(0, m))), Array.from(active.subarray(0, m), (a) => a === 1))
+          xs.set(x)
+        }
         let worst = -1
-        for (let r = 2; r < m; r++) if (active[r] && x[r] < 0 && (worst < 0 || x[r] < x[worst])) worst = r
+        for (let r = 2; r < m; r++) if (active[r] && xs[r] < 0 && (worst < 0 || xs[r] < xs[worst])) worst = r
         if (worst < 0) {
-          for (let r = 0; r < m; r++) p[params[r]] = active[r] ? x[r] : 0
+          for (let r = 0; r < m; r++) p[params[r]] = active[r] ? xs[r] : 0
           break
         }
-        active[worst] = false
+        active[worst] = 0
       }
       assembleWindow(p, wi, modelBuf)
       for (let j = w.start; j < w.end; j++) {
-        const r = pixels.y[j] - modelBuf[j]
-        total += pixels.weight[j] * r * r
+        const r = y[j] - modelBuf[j]
+        total += weight[j] * r * r
       }
     }
     return total
   }
   return { config, pixels, names, groups, continuum, fluxParam, ewParam, problem, initial, solveLinear, chi2, evaluate }
+}
+
+/**
+ * Solve the rows and columns of the m×m row-major a marked in `active` (the others 0) by Cholesky in
+ * place of ml-matrix objects (the grid search calls this thousands of times a spectrum); false when the
+ * subset is not positive definite (then `solveSubset` takes the SVD pseudo-inverse).
+ */
+function choleskySubset(a: Float64Array, b: Float64Array, m: number, active: Uint8Array, l: Float64Array, x: Float64Array): boolean {
+  x.fill(0, 0, m)
+  for (let j = 0; j < m; j++) {
+    if (!active[j]) continue
+    let d = 0
+    for (let k = 0; k < j; k++) {
+      if (!active[k]) continue
+      let s = 0
+      for (let i = 0; i < k; i++) if (active[i]) s += l[k * m + i] * l[j * m + i]
+      const v = (a[j * m + k] - s) / l[k * m + k]
+      l[j * m + k] = v
+      d += v * v
+    }
+    d = a[j * m + j] - d
+    if (!(d > 0)) return false
+    l[j * m + j] = Math.sqrt(d)
+  }
+  for (let i = 0; i < m; i++) {
+    if (!active[i]) continue
+    let s = b[i]
+    for (let k = 0; k < i; k++) if (active[k]) s -= l[i * m + k] * x[k]
+    x[i] = s / l[i * m + i]
+  }
+  for (let i = m - 1; i >= 0; i--) {
+    if (!active[i]) continue
+    let s = x[i]
+    for (let k = i + 1; k < m; k++) if (active[k]) s -= l[k * m + i] * x[k]
+    x[i] = s / l[i * m + i]
+  }
+  return true
 }
 
 /** Solve the rows and columns of a marked in `active` (others 0): Cholesky, else the SVD pseudo-inverse. */

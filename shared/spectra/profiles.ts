@@ -139,7 +139,7 @@ export function gaussianMass(a: number, b: number): number {
 }
 
 /** Standardised distance beyond which a Gaussian pixel holds less than 1e-15 of the line (Φ(−8) = 6e-16). */
-const GAUSS_CUT = 8
+export const GAUSS_CUT = 8
 
 /**
  * Mean of a unit-area Gaussian over each pixel [lo[j], hi[j]) for j in [j0, j1), written to out[j].
