@@ -15,7 +15,7 @@ import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
 import type { FitLineId } from './lines.ts'
 import type { LeastSquaresProblem } from './levenberg-marquardt.ts'
 import { chiSquare } from './levenberg-marquardt.ts'
-import { GAUSS_CUT, gaussianPixels, lorentzianPixels, voigtPixels } from './profiles.ts'
+import { GAUSS_CUT, gaussianPixelDerivatives, gaussianPixels, lorentzianPixels, voigtPixels } from './profiles.ts'
 
 const C = SPEED_OF_LIGHT_KM_PER_S
 
@@ -371,25 +371,27 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     const v = p[gr.v]
     const sv = p[gr.s]
     for (const tm of termsOfGroup[gi]) {
-      const w = windows[tm.window]
       const dlcdv = tm.expected / C
       const lc = tm.expected * (1 + v / C)
       const sl = (lc * sv) / C
       const sigma = Math.sqrt(sl * sl + tm.sigmaInst * tm.sigmaInst)
-      gaussianPixels(lo, hi, w.start, w.end, lc, sigma, scratch, dCentre, dSigma)
+      // the profile means of p are in tm.buf (profiles(p) ran); only the derivatives, only where the profile reaches
+      const r0 = tm.r0
+      const r1 = tm.r1
+      gaussianPixelDerivatives(lo, hi, r0, r1, lc, sigma, dCentre, dSigma)
       const dsdv = ((sv / C) * (sv / C) * lc * dlcdv) / sigma
       const dsds = ((lc / C) * (lc / C) * sv) / sigma
       if (tm.absorption) {
         const [i0, i1] = continuum[tm.window]
         const amp = p[tm.param]
-        for (let j = w.start; j < w.end; j++) {
+        for (let j = r0; j < r1; j++) {
           const f = -(p[i0] + p[i1] * t[j]) * amp
           cv[j] += f * (dCentre[j] * dlcdv + dSigma[j] * dsdv)
           cs[j] += f * dSigma[j] * dsds
         }
       } else {
         const f = p[tm.param] * tm.mult
-        for (let j = w.start; j < w.end; j++) {
+        for (let j = r0; j < r1; j++) {
           cv[j] += f * (dCentre[j] * dlcdv + dSigma[j] * dsdv)
           cs[j] += f * dSigma[j] * dsds
         }
