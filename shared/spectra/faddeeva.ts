@@ -128,8 +128,15 @@ export function erfcx(x: number): number {
   }
   const q = 1 / (L + x)
   const z = (L - x) * q
-  let p = A[N]
-  for (let n = N - 1; n >= 1; n--) p = p * z + A[n]
+  // p(z) = Σ a_n z^(n−1) as E(z²) + z O(z²) (N even): two independent Horner chains, the same sum in half the dependent steps
+  const z2 = z * z
+  let e = A[N - 1]
+  let o = A[N]
+  for (let n = N - 3; n >= 1; n -= 2) {
+    e = e * z2 + A[n]
+    o = o * z2 + A[n + 1]
+  }
+  const p = e + z * o
   return q * (2 * p * q + INV_SQRT_PI)
 }
 
