@@ -93,7 +93,8 @@ function gridSearch(model: SpectrumModel, p: Float64Array, groupIndex: number, c
     trial[g.v] = v
     trial[g.s] = clamp(s, model.problem.lower[g.s], model.problem.upper[g.s])
     if (g.g >= 0) trial[g.g] = clamp(gamma, model.problem.lower[g.g], model.problem.upper[g.g])
-    const chi2 = model.solveLinear(trial, groupIndex)
+    // a candidate whose first windows already exceed the best χ² cannot win: the rest are left unsolved
+    const chi2 = model.solveLinear(trial, groupIndex, bestChi2)
     if (chi2 < bestChi2) {
       bestChi2 = chi2
       best = trial

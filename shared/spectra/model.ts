@@ -152,8 +152,12 @@ export interface SpectrumModel {
   problem: LeastSquaresProblem
   /** starting vector: side-band continua, fluxes 0, kinematics at the middle of the usual range */
   initial(): Float64Array
-  /** solve the linear parameters (continua, fluxes, equivalent widths) for the kinematics in p, in every window or only in those of one group; returns χ² of those windows */
-  solveLinear(p: Float64Array, group?: number): number
+  /**
+   * solve the linear parameters (continua, fluxes, equivalent widths) for the kinematics in p, in every
+   * window or only in those of one group; returns χ² of those windows, or as soon as the χ² of the windows
+   * solved so far exceeds `stopAbove`, that partial sum (≥ the full one would be: p is then half-solved)
+   */
+  solveLinear(p: Float64Array, group?: number, stopAbove?: number): number
   chi2(p: Float64Array): number
   evaluate(p: Float64Array, out: Float64Array): void
 }
@@ -484,16 +488,17 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
   const factor = new Float64Array(maxLinear * maxLinear)
   const groupWindows = groups.map((_, gi) => [...new Set(termsOfGroup[gi].map((tm) => tm.window))])
   const allWindows = windows.map((_, wi) => wi)
-  const solveLinear = (p: Float64Array, group?: number): number => {
+  const solveLinear = (p: Float64Array, group?: number, stopAbove = Infinity): number => {
     const chosen = group === undefined ? allWindows : groupWindows[group]
     lastP.fill(NaN)
-    for (const wi of chosen) for (const tm of termsOfWindow[wi]) {
-      const gr = groups[tm.group]
-      termProfile(tm, p[gr.v], p[gr.s], gr.g >= 0 ? p[gr.g] : 0)
-    }
     const { weight, y } = pixels
     let total = 0
     for (const wi of chosen) {
+      if (total > stopAbove) return total
+      for (const tm of termsOfWindow[wi]) {
+        const gr = groups[tm.group]
+        termProfile(tm, p[gr.v], p[gr.s], gr.g >= 0 ? p[gr.g] : 0)
+      }
       const w = windows[wi]
       const own = termsOfWindow[wi]
       const params = linearParams[wi]
