@@ -76,37 +76,65 @@ export function quantities(model: SpectrumModel, p: Float64Array, zFactor: numbe
   return q
 }
 
+/** A line's quantity keys and the flux parameter of each narrow component, built once per model and line (quantities runs 2k + 1 times a fit). */
+interface LineKeys {
+  flux: string; ew: string; velocity: string; sigma: string; gamma: string
+  rank: { flux: string; velocity: string; sigma: string; gamma: string }[]
+  fluxParam: number[]
+}
+const lineKeyCache = new WeakMap<SpectrumModel, Map<WindowLine, LineKeys>>()
+function lineKeys(model: SpectrumModel, line: WindowLine, components: number): LineKeys {
+  let byLine = lineKeyCache.get(model)
+  if (!byLine) lineKeyCache.set(model, (byLine = new Map()))
+  let keys = byLine.get(line)
+  if (!keys) {
+    const id = line.id
+    const owner = line.parent ?? line.id
+    keys = {
+      flux: `${id}.flux`, ew: `${id}.ew`, velocity: `${id}.velocity`, sigma: `${id}.sigma`, gamma: `${id}.gamma`,
+      rank: Array.from({ length: components }, (_, r) => ({ flux: `${id}.c${r}.flux`, velocity: `${id}.c${r}.velocity`, sigma: `${id}.c${r}.sigma`, gamma: `${id}.c${r}.gamma` })),
+      fluxParam: Array.from({ length: components }, (_, k) => model.fluxParam.get(fluxKey(owner, k)) as number),
+    }
+    byLine.set(line, keys)
+  }
+  return keys
+}
+
 function lineQuantities(
   q: Quantities, model: SpectrumModel, p: Float64Array, zFactor: number, wi: number, line: WindowLine,
   narrow: SpectrumModel['groups'], order: number[], profile: SpectrumModel['config']['profile'],
 ): void {
-  const owner = line.parent ?? line.id
+  const keys = lineKeys(model, line, narrow.length)
   const mult = line.parent ? 1 / (line.ratio as number) : 1
   const si = lineSigmaInstKmPerS(line)
   let f = 0, fv = 0, fm2 = 0, fg = 0
-  order.forEach((k, rank) => {
+  let anyGamma = false
+  for (let rank = 0; rank < order.length; rank++) {
+    const k = order[rank]
     const g = narrow[k]
-    const fk = p[model.fluxParam.get(fluxKey(owner, k)) as number] * mult
+    const fk = p[keys.fluxParam[k]] * mult
     const vk = p[g.v]
     const gk = g.g >= 0 ? p[g.g] : 0
+    if (g.g >= 0) anyGamma = true
     const sk = observedSigma(profile, p[g.s], gk, si)
     f += fk
     fv += fk * vk
     fm2 += fk * (sk * sk + vk * vk)
     fg += fk * gk
     if (narrow.length > 1) {
-      q.set(`${line.id}.c${rank}.flux`, fk)
-      q.set(`${line.id}.c${rank}.velocity`, vk)
-      q.set(`${line.id}.c${rank}.sigma`, sk)
-      if (g.g >= 0) q.set(`${line.id}.c${rank}.gamma`, gk)
+      const rk = keys.rank[rank]
+      q.set(rk.flux, fk)
+      q.set(rk.velocity, vk)
+      q.set(rk.sigma, sk)
+      if (g.g >= 0) q.set(rk.gamma, gk)
     }
-  })
+  }
   const v = fv / f
-  q.set(`${line.id}.flux`, f)
-  q.set(`${line.id}.ew`, f / (continuumAt(model, p, wi, line.expectedAngstrom) * zFactor))
-  q.set(`${line.id}.velocity`, v)
-  q.set(`${line.id}.sigma`, Math.sqrt(Math.max(0, fm2 / f - v * v)))
-  if (narrow.some((g) => g.g >= 0)) q.set(`${line.id}.gamma`, fg / f)
+  q.set(keys.flux, f)
+  q.set(keys.ew, f / (continuumAt(model, p, wi, line.expectedAngstrom) * zFactor))
+  q.set(keys.velocity, v)
+  q.set(keys.sigma, Math.sqrt(Math.max(0, fm2 / f - v * v)))
+  if (anyGamma) q.set(keys.gamma, fg / f)
 }
 
 /**
