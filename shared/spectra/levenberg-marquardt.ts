@@ -12,9 +12,10 @@
  * Why not the npm package `ml-levenberg-marquardt`: it has weights and bounds but returns no
  * covariance, takes the model one abscissa at a time (no per-window, pixel-integrated model with a
  * sparse Jacobian), and stops on an absolute χ² threshold meaningless for χ² ≈ number of pixels.
- * The linear algebra (Cholesky solves, SVD pseudo-inverse) is `ml-matrix`.
+ * The Cholesky solves are plain loops on Float64Arrays (ml-matrix objects cost more than the arithmetic at
+ * these sizes); the SVD pseudo-inverse for a matrix that is not positive definite is `ml-matrix`.
  */
-import { CholeskyDecomposition, Matrix, pseudoInverse } from 'ml-matrix'
+import { Matrix, pseudoInverse } from 'ml-matrix'
 
 /** A weighted least-squares problem with k parameters and n data. */
 export interface LeastSquaresProblem {
@@ -86,6 +87,60 @@ function normalEquations(problem: LeastSquaresProblem, columns: Float64Array[], 
 }
 
 /**
+ * Cholesky factor L (lower, row-major m×m, in l) of the symmetric positive definite m×m row-major a;
+ * false when a is not positive definite (a pivot ≤ 0). Plain arrays: the fit calls this for every step.
+ */
+export function choleskyFactor(a: ArrayLike<number>, m: number, l: Float64Array): boolean {
+  for (let j = 0; j < m; j++) {
+    let d = 0
+    for (let k = 0; k < j; k++) {
+      let s = 0
+      for (let i = 0; i < k; i++) s += l[k * m + i] * l[j * m + i]
+      const v = (a[j * m + k] - s) / l[k * m + k]
+      l[j * m + k] = v
+      d += v * v
+    }
+    d = a[j * m + j] - d
+    if (!(d > 0)) return false
+    l[j * m + j] = Math.sqrt(d)
+    for (let k = j + 1; k < m; k++) l[j * m + k] = 0
+  }
+  return true
+}
+
+/** Solve L Lᵀ x = b for the factor of `choleskyFactor` (x may be b). */
+export function choleskySolve(l: Float64Array, m: number, b: ArrayLike<number>, x: Float64Array): void {
+  for (let i = 0; i < m; i++) {
+    let s = b[i]
+    for (let k = 0; k < i; k++) s -= l[i * m + k] * x[k]
+    x[i] = s / l[i * m + i]
+  }
+  for (let i = m - 1; i >= 0; i--) {
+    let s = x[i]
+    for (let k = i + 1; k < m; k++) s -= l[k * m + i] * x[k]
+    x[i] = s / l[i * m + i]
+  }
+}
+
+/** Scratch of the dense solves, grown on demand (one fit at a time per thread). */
+let scratchA = new Float64Array(0)
+let scratchL = new Float64Array(0)
+let scratchX = new Float64Array(0)
+function scratchFor(m: number): void {
+  if (scratchA.length >= m * m) return
+  scratchA = new Float64Array(m * m)
+  scratchL = new Float64Array(m * m)
+  scratchX = new Float64Array(m)
+}
+
+/** The SVD pseudo-inverse of the m×m row-major a (ml-matrix), for a matrix that is not positive definite. */
+function pseudoInverseOf(a: Float64Array, m: number, threshold?: number): Matrix {
+  const mat = new Matrix(m, m)
+  for (let r = 0; r < m; r++) for (let c = 0; c < m; c++) mat.set(r, c, a[r * m + c])
+  return threshold === undefined ? pseudoInverse(mat) : pseudoInverse(mat, threshold)
+}
+
+/**
  * Solve (D α D + λ I) x = D β on the free parameters (D = diag α^(−1/2)), return δ = D x; held or
  * unconstrained parameters get δ = 0. Cholesky first, the SVD pseudo-inverse if α is not positive definite.
  */
@@ -98,21 +153,25 @@ function dampedStep(alpha: Float64Array, beta: Float64Array, free: Uint8Array, l
   }
   const m = idx.length
   if (m === 0) return
+  scratchFor(m)
   const d = idx.map((j) => 1 / Math.sqrt(alpha[j * k + j]))
-  const a = new Matrix(m, m)
-  const b = new Matrix(m, 1)
+  const a = scratchA
+  const x = scratchX
   for (let r = 0; r < m; r++) {
     for (let c = r + 1; c < m; c++) {
       const v = alpha[idx[r] * k + idx[c]] * d[r] * d[c]
-      a.set(r, c, v)
-      a.set(c, r, v)
+      a[r * m + c] = v
+      a[c * m + r] = v
     }
-    a.set(r, r, 1 + lambda)
-    b.set(r, 0, beta[idx[r]] * d[r])
+    a[r * m + r] = 1 + lambda
+    x[r] = beta[idx[r]] * d[r]
   }
-  const chol = new CholeskyDecomposition(a)
-  const x = chol.isPositiveDefinite() ? chol.solve(b) : pseudoInverse(a).mmul(b)
-  for (let r = 0; r < m; r++) delta[idx[r]] = x.get(r, 0) * d[r]
+  if (choleskyFactor(a, m, scratchL)) choleskySolve(scratchL, m, x, x)
+  else {
+    const sol = pseudoInverseOf(a, m).mmul(Matrix.columnVector(Array.from(x.subarray(0, m))))
+    for (let r = 0; r < m; r++) x[r] = sol.get(r, 0)
+  }
+  for (let r = 0; r < m; r++) delta[idx[r]] = x[r] * d[r]
 }
 
 /**
@@ -125,18 +184,29 @@ export function covarianceFromAlpha(alpha: Float64Array, k: number): Float64Arra
   for (let j = 0; j < k; j++) if (alpha[j * k + j] > 0) idx.push(j)
   const m = idx.length
   if (m === 0) return cov
+  scratchFor(m)
   const d = idx.map((j) => 1 / Math.sqrt(alpha[j * k + j]))
-  const a = new Matrix(m, m)
+  const a = scratchA
   for (let r = 0; r < m; r++) {
-    a.set(r, r, 1)
+    a[r * m + r] = 1
     for (let c = r + 1; c < m; c++) {
       const v = alpha[idx[r] * k + idx[c]] * d[r] * d[c]
-      a.set(r, c, v)
-      a.set(c, r, v)
+      a[r * m + c] = v
+      a[c * m + r] = v
     }
   }
-  const chol = new CholeskyDecomposition(a)
-  const inv = chol.isPositiveDefinite() ? chol.solve(Matrix.eye(m)) : pseudoInverse(a, 1e-12)
+  if (choleskyFactor(a, m, scratchL)) {
+    // column c of the inverse: solve L Lᵀ x = e_c
+    const x = scratchX
+    for (let c = 0; c < m; c++) {
+      x.fill(0, 0, m)
+      x[c] = 1
+      choleskySolve(scratchL, m, x, x)
+      for (let r = 0; r < m; r++) cov[idx[r] * k + idx[c]] = x[r] * d[r] * d[c]
+    }
+    return cov
+  }
+  const inv = pseudoInverseOf(a, m, 1e-12)
   for (let r = 0; r < m; r++) for (let c = 0; c < m; c++) cov[idx[r] * k + idx[c]] = inv.get(r, c) * d[r] * d[c]
   return cov
 }

@@ -14,7 +14,7 @@ import { CholeskyDecomposition, Matrix, pseudoInverse } from 'ml-matrix'
 import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
 import type { FitLineId } from './lines.ts'
 import type { LeastSquaresProblem } from './levenberg-marquardt.ts'
-import { chiSquare } from './levenberg-marquardt.ts'
+import { chiSquare, choleskyFactor, choleskySolve } from './levenberg-marquardt.ts'
 import { GAUSS_CUT, gaussianPixelDerivatives, gaussianPixels, lorentzianPixels, voigtPixels } from './profiles.ts'
 
 const C = SPEED_OF_LIGHT_KM_PER_S
@@ -486,6 +486,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
   const xs = new Float64Array(maxLinear)
   const active = new Uint8Array(maxLinear)
   const factor = new Float64Array(maxLinear * maxLinear)
+  const work = new Float64Array(maxLinear * maxLinear)
   const groupWindows = groups.map((_, gi) => [...new Set(termsOfGroup[gi].map((tm) => tm.window))])
   const allWindows = windows.map((_, wi) => wi)
   const solveLinear = (p: Float64Array, group?: number, stopAbove = Infinity): number => {
@@ -561,7 +562,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       // fluxes and equivalent widths are ≥ 0: drop the most negative one and solve again (active set)
       active.fill(1, 0, m)
       for (let pass = 0; pass < m; pass++) {
-        if (!choleskySubset(na, nb, m, active, factor, xs)) {
+        if (!choleskySubset(na, nb, m, active, work, factor, xs)) {
           const x = solveSubset(Matrix.from1DArray(m, m, Array.from(na.subarray(0, m * m))), Matrix.columnVector(Array.from(nb.subarray(0, m))), Array.from(active.subarray(0, m), (a) => a === 1))
           xs.set(x)
         }
@@ -585,39 +586,28 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
 }
 
 /**
- * Solve the rows and columns of the m×m row-major a marked in `active` (the others 0) by Cholesky in
- * place of ml-matrix objects (the grid search calls this thousands of times a spectrum); false when the
- * subset is not positive definite (then `solveSubset` takes the SVD pseudo-inverse).
+ * Solve the rows and columns of the m×m row-major a marked in `active` (the others 0) by Cholesky on
+ * plain arrays (the grid search calls this thousands of times a spectrum); false when the subset is
+ * not positive definite (then `solveSubset` takes the SVD pseudo-inverse).
  */
-function choleskySubset(a: Float64Array, b: Float64Array, m: number, active: Uint8Array, l: Float64Array, x: Float64Array): boolean {
+function choleskySubset(a: Float64Array, b: Float64Array, m: number, active: Uint8Array, work: Float64Array, l: Float64Array, x: Float64Array): boolean {
+  let q = 0
+  for (let r = 0; r < m; r++) {
+    if (!active[r]) continue
+    let c2 = 0
+    for (let c = 0; c < m; c++) if (active[c]) work[q * m + c2++] = a[r * m + c]
+    q++
+  }
+  // pack the q×q subset densely, then factor and solve
+  for (let r = 0; r < q; r++) for (let c = 0; c < q; c++) work[r * q + c] = work[r * m + c]
+  if (!choleskyFactor(work, q, l)) return false
+  const rhs = new Float64Array(q)
+  let i = 0
+  for (let r = 0; r < m; r++) if (active[r]) rhs[i++] = b[r]
+  choleskySolve(l, q, rhs, rhs)
   x.fill(0, 0, m)
-  for (let j = 0; j < m; j++) {
-    if (!active[j]) continue
-    let d = 0
-    for (let k = 0; k < j; k++) {
-      if (!active[k]) continue
-      let s = 0
-      for (let i = 0; i < k; i++) if (active[i]) s += l[k * m + i] * l[j * m + i]
-      const v = (a[j * m + k] - s) / l[k * m + k]
-      l[j * m + k] = v
-      d += v * v
-    }
-    d = a[j * m + j] - d
-    if (!(d > 0)) return false
-    l[j * m + j] = Math.sqrt(d)
-  }
-  for (let i = 0; i < m; i++) {
-    if (!active[i]) continue
-    let s = b[i]
-    for (let k = 0; k < i; k++) if (active[k]) s -= l[i * m + k] * x[k]
-    x[i] = s / l[i * m + i]
-  }
-  for (let i = m - 1; i >= 0; i--) {
-    if (!active[i]) continue
-    let s = x[i]
-    for (let k = i + 1; k < m; k++) if (active[k]) s -= l[k * m + i] * x[k]
-    x[i] = s / l[i * m + i]
-  }
+  i = 0
+  for (let r = 0; r < m; r++) if (active[r]) x[r] = rhs[i++]
   return true
 }
 
