@@ -510,7 +510,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       const c0 = w.continuum0
       const c1 = w.continuum1
       // the continuum block over every row, the rest only where some profile is non-zero (zeros add nothing)
-      let s00 = 0, s01 = 0, s11 = 0, b0 = 0, b1 = 0
+      let s00 = 0, s01 = 0, s11 = 0, b0 = 0, b1 = 0, yy = 0
       let u0 = w.end
       let u1 = w.start
       for (const tm of own) {
@@ -528,6 +528,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
         s11 += wt * tj * tj
         b0 += wy
         b1 += wy * tj
+        yy += wy * y[j]
       }
       na[0] = s00
       na[1] = s01
@@ -574,11 +575,16 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
         }
         active[worst] = 0
       }
-      assembleWindow(p, wi, modelBuf)
-      for (let j = w.start; j < w.end; j++) {
-        const r = y[j] - modelBuf[j]
-        total += weight[j] * r * r
+      // χ² of the window from the normal equations, Σwy² − 2xᵀb + xᵀAx, without assembling the model
+      let xb = 0
+      let xax = 0
+      for (let r = 0; r < m; r++) {
+        const xr = active[r] ? xs[r] : 0
+        if (xr === 0) continue
+        xb += xr * nb[r]
+        for (let c = 0; c < m; c++) if (active[c]) xax += xr * na[r * m + c] * xs[c]
       }
+      total += Math.max(0, yy - 2 * xb + xax)
     }
     return total
   }
