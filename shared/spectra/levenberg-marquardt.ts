@@ -65,16 +65,28 @@ export function chiSquare(y: Float64Array, weight: Float64Array, m: Float64Array
 function normalEquations(problem: LeastSquaresProblem, columns: Float64Array[], m: Float64Array, alpha: Float64Array, beta: Float64Array): void {
   const { y, weight, columnStart, columnEnd } = problem
   const k = columns.length
+  // each column's non-zero rows inside its range (a line's column is zero beyond its profile): zeros add nothing
+  const first = new Int32Array(k)
+  const last = new Int32Array(k)
   for (let a = 0; a < k; a++) {
     const ca = columns[a]
-    const sa = columnStart[a]
-    const ea = columnEnd[a]
+    let s = columnStart[a]
+    let e = columnEnd[a]
+    while (s < e && ca[s] === 0) s++
+    while (e > s && ca[e - 1] === 0) e--
+    first[a] = s
+    last[a] = e
+  }
+  for (let a = 0; a < k; a++) {
+    const ca = columns[a]
+    const sa = first[a]
+    const ea = last[a]
     let b0 = 0
     for (let i = sa; i < ea; i++) b0 += weight[i] * ca[i] * (y[i] - m[i])
     beta[a] = b0
     for (let b = a; b < k; b++) {
-      const s = Math.max(sa, columnStart[b])
-      const e = Math.min(ea, columnEnd[b])
+      const s = Math.max(sa, first[b])
+      const e = Math.min(ea, last[b])
       let sum = 0
       if (s < e) {
         const cb = columns[b]
