@@ -161,37 +161,25 @@ export function gaussianPixels(
   dCentre?: Float64Array, dSigma?: Float64Array,
 ): void {
   const inv = 1 / sigma
-  const derivatives = dCentre !== undefined && dSigma !== undefined
   let lastEdge = NaN
   let lastTail = 0
-  let lastPhi = 0
   for (let j = j0; j < j1; j++) {
     const a = lo[j]
     const ua = (a - centre) * inv
     const ub = (hi[j] - centre) * inv
     if (ub < -GAUSS_CUT || ua > GAUSS_CUT) {
       out[j] = 0
-      if (derivatives) dCentre[j] = dSigma[j] = 0
       lastEdge = NaN
       continue
     }
-    const shared = a === lastEdge
-    const ta = shared ? lastTail : tail(ua)
+    const ta = a === lastEdge ? lastTail : tail(ua)
     const tb = tail(ub)
     const mass = ua >= 0 ? ta - tb : ub <= 0 ? tb - ta : 1 - ta - tb
-    const scale = 1 / (hi[j] - a)
-    out[j] = mass * scale
-    if (derivatives) {
-      const pa = shared ? lastPhi : Math.exp(-0.5 * ua * ua) / SQRT_2PI
-      const pb = Math.exp(-0.5 * ub * ub) / SQRT_2PI
-      const f = scale * inv
-      dCentre[j] = (pa - pb) * f
-      dSigma[j] = (ua * pa - ub * pb) * f
-      lastPhi = pb
-    }
+    out[j] = mass / (hi[j] - a)
     lastEdge = hi[j]
     lastTail = tb
   }
+  if (dCentre !== undefined && dSigma !== undefined) gaussianPixelDerivatives(lo, hi, j0, j1, centre, sigma, dCentre, dSigma)
 }
 
 /**
