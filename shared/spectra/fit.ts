@@ -88,16 +88,22 @@ function gridSearch(model: SpectrumModel, p: Float64Array, groupIndex: number, c
   const g = model.groups[groupIndex]
   let best = p
   let bestChi2 = Infinity
-  for (const [v, s, gamma] of candidates) {
+  let bestIndex = -1
+  // candidates nearest the systemic velocity first, so that the early stop below prunes the most; the
+  // winner is the same as in the listed order (the lowest χ², the first listed among equals)
+  const order = candidates.map((_, i) => i).sort((a, b) => Math.abs(candidates[a][0]) - Math.abs(candidates[b][0]) || a - b)
+  for (const ci of order) {
+    const [v, s, gamma] = candidates[ci]
     const trial = Float64Array.from(p)
     trial[g.v] = v
     trial[g.s] = clamp(s, model.problem.lower[g.s], model.problem.upper[g.s])
     if (g.g >= 0) trial[g.g] = clamp(gamma, model.problem.lower[g.g], model.problem.upper[g.g])
     // a candidate whose first windows already exceed the best χ² cannot win: the rest are left unsolved
     const chi2 = model.solveLinear(trial, groupIndex, bestChi2)
-    if (chi2 < bestChi2) {
+    if (chi2 < bestChi2 || (chi2 === bestChi2 && ci < bestIndex)) {
       bestChi2 = chi2
       best = trial
+      bestIndex = ci
     }
   }
   return best
