@@ -83,7 +83,7 @@ export async function seedDemo(db: Db, log: (m: string) => void = () => {}, opts
 /** The invented spectra as one read file of the upload, checked as an uploaded file's are. */
 function demoSpectraFile(survey: ReturnType<typeof generateLanternSurvey>) {
   const found = generateLanternSpectra(survey).map(({ kind, spectrum: s }) => ({
-    id: s.id, redshift: s.redshift, wavelengthMedium: s.wavelengthMedium, wavelength: s.wavelength, flux: s.flux, error: s.error,
+    id: s.id, redshift: s.redshift, fluxUnit: s.fluxUnit, wavelengthMedium: s.wavelengthMedium, wavelength: s.wavelength, flux: s.flux, error: s.error,
     source: `invented by the demo's seeded generator (${kind}); not an observation`,
   }))
   const read = checkSpectra(found)

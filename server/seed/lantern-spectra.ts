@@ -104,7 +104,9 @@ export function generateLanternSpectra(
       continuum: { level, slope: uniform(rng, -0.08, 0.02) }, noise, resolution: { fwhmAngstrom: LANTERN_SPECTRUM.fwhmAngstrom }, lines,
       ...(sodium ? { nad: { logN: uniform(rng, 12.6, 13.6), b: uniform(rng, 50, 140), velocity: -uniform(rng, 0, 220) } } : {}),
     })
-    out.push({ galaxyId: g.id, kind: hasBroad ? 'broad-line' : twoComponent ? 'two-component' : sodium ? 'sodium' : 'narrow', spectrum: s.spectrum })
+    // the flux densities are in the table's flux unit (the lines were drawn from its fluxes)
+    const spectrum = { ...s.spectrum, fluxUnit: g.fluxUnit ?? 1e-17 }
+    out.push({ galaxyId: g.id, kind: hasBroad ? 'broad-line' : twoComponent ? 'two-component' : sodium ? 'sodium' : 'narrow', spectrum })
   }
   return out
 }

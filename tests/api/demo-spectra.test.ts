@@ -98,4 +98,13 @@ describe('the demo seed\'s invented spectra', () => {
     expect(sd).toBeGreaterThan(0.8)
     expect(sd).toBeLessThan(1.25)
   })
+
+  it('keep the table\'s flux unit (1e-17), so the fitted records\' luminosities and star-formation rates are on the table\'s scale', async () => {
+    const rows = await q<{ key: string; flux_unit: number; source: string | null }>(
+      "select key, flux_unit, provenance->>'source' as source from galaxies where project_id = $1 and provenance is not null", [projectId])
+    expect(rows).toHaveLength(300)
+    for (const r of rows) expect([r.key, r.flux_unit, r.source]).toEqual([r.key, table.get(r.key)!.fluxUnit, 'line-fit'])
+    const stored = await q<{ flux_unit: number }>('select distinct flux_unit from spectra where project_id = $1', [projectId])
+    expect(stored).toEqual([{ flux_unit: 1e-17 }])
+  })
 })
