@@ -255,7 +255,8 @@ export function spectraService(galaxy: GalaxyContext, limits: { fileLimitBytes: 
       if (!p) throw notFound('project')
       const where = [sql`s.project_id = ${projectId}::uuid`]
       if (q.q) where.push(sql`s.galaxy_id ilike ${'%' + q.q.replace(/[\\%_]/g, (c) => '\\' + c) + '%'}`)
-      if (q.flag) where.push(sql`${q.flag} = any(f.flags)`)
+      // a flag as written (not-covered:oii_3726), or its family (not-covered: any line)
+      if (q.flag) where.push(sql`exists (select 1 from unnest(f.flags) x where x = ${q.flag} or starts_with(x, ${q.flag + ':'}))`)
       const desc = q.sort.startsWith('-')
       const key = q.sort.replace(/^-/, '')
       const order = key === 'galaxyId' ? sql`s.galaxy_id` : key === 'detections' ? sql`f.detections` : sql`(f.chi2 / nullif(f.dof, 0))`

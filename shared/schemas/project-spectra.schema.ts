@@ -68,7 +68,7 @@ export const SpectrumUploadSchema = z.object({
 export const SPECTRA_SORTS = ['chi2dof', '-chi2dof', 'galaxyId', '-galaxyId', 'detections', '-detections'] as const
 export const SpectraListQuerySchema = z.object({
   sort: z.enum(SPECTRA_SORTS).default('galaxyId'),
-  flag: textLine().max(200).optional().meta({ description: 'only fits carrying this flag' }),
+  flag: textLine().max(200).optional().meta({ description: 'only fits carrying this flag (`not-covered:oii_3726`) or a flag of this family (`not-covered`)' }),
   q: textLine().max(200).optional().meta({ description: 'galaxy IDs containing this text' }),
   page: positiveInt4().default(1),
   pageSize: z.coerce.number().int().min(1).max(500).default(50),

@@ -152,6 +152,14 @@ describe('reading the fits', () => {
     const page2 = (await get('/spectra?pageSize=7&page=3')).body
     expect(page2.items).toHaveLength(N - 14)
     expect((await get('/spectra?flag=no-such-flag')).body.total).toBe(0)
+    // a whole flag, or its family (what the table's filter offers from the flag registry)
+    const withFlag = (f: string) => all.items.filter((i: { flags: string[] }) => i.flags.some((x) => x === f || x.startsWith(`${f}:`))).length
+    const some = all.items.flatMap((i: { flags: string[] }) => i.flags).find((f: string) => f.includes(':')) as string
+    expect(some).toBeDefined()
+    const family = some.split(':')[0]!
+    expect((await get(`/spectra?flag=${encodeURIComponent(some)}&pageSize=500`)).body.total).toBe(withFlag(some))
+    expect((await get(`/spectra?flag=${family}&pageSize=500`)).body.total).toBe(withFlag(family))
+    expect(withFlag(family)).toBeGreaterThan(0)
   })
 
   it('the overview counts the fits and histograms narrow velocities and widths', async () => {
