@@ -12,12 +12,17 @@ import { diagnoseJson, inProcessCompute } from '../compute/pool.ts'
 import { DEFAULT_ANON_COMPUTE_BUDGET, DEFAULT_COMPUTE_BUDGET, GALAXY_COST, overBudget } from '../compute/budget.ts'
 import { galaxyCountLimit } from './galaxies.routes.ts'
 
-export function diagnosticsRoutes(r: Routes, deps: AppDeps) {
-  const anonymousLimiter = rateLimit({
-    windowMs: 60_000, limit: deps.config.anonymousDiagnosticsRateLimit, standardHeaders: 'draft-8', legacyHeaders: false,
+/** The per-address limit of anonymous calls to a stateless compute route (each route counts its own). */
+export function anonymousComputeLimiter(config: Pick<AppDeps['config'], 'anonymousDiagnosticsRateLimit'>) {
+  return rateLimit({
+    windowMs: 60_000, limit: config.anonymousDiagnosticsRateLimit, standardHeaders: 'draft-8', legacyHeaders: false,
     skip: (req) => !!req.auth,
     handler: (_req, _res, next) => next(new HttpProblem(429, 'Too Many Requests', 'rate limit for anonymous use reached; send an API key', undefined, { 'Retry-After': '60' })),
   })
+}
+
+export function diagnosticsRoutes(r: Routes, deps: AppDeps) {
+  const anonymousLimiter = anonymousComputeLimiter(deps.config)
   const compute = deps.compute ?? inProcessCompute()
   const { computeBudget, anonymousComputeBudget } = deps.config
   route(r, {

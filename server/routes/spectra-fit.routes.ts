@@ -1,5 +1,4 @@
 import type { NextFunction, Request, Response } from 'express'
-import { rateLimit } from 'express-rate-limit'
 import type { RouteDeps } from '../app.ts'
 import { route, type Routes } from '../http/route.ts'
 import { HttpProblem } from '../http/problem.ts'
@@ -9,6 +8,7 @@ import { SPECTRUM_FIT_METHOD_VERSION } from '../../shared/spectra/fit.ts'
 import { inProcessCompute } from '../compute/pool.ts'
 import { DEFAULT_ANON_COMPUTE_BUDGET, DEFAULT_COMPUTE_BUDGET, SPECTRUM_FIT_COST, spectraOverBudget } from '../compute/budget.ts'
 import { spectraFitService } from '../services/spectra-stateless.service.ts'
+import { anonymousComputeLimiter } from './diagnostics.routes.ts'
 
 /** 413 before validation when a body breaks a size limit (spectra a request, pixels a spectrum). */
 export function spectraSizeLimit(req: Request, _res: Response, next: NextFunction) {
@@ -18,11 +18,7 @@ export function spectraSizeLimit(req: Request, _res: Response, next: NextFunctio
 }
 
 export function spectraFitRoutes(r: Routes, deps: RouteDeps) {
-  const anonymousLimiter = rateLimit({
-    windowMs: 60_000, limit: deps.config.anonymousDiagnosticsRateLimit, standardHeaders: 'draft-8', legacyHeaders: false,
-    skip: (req) => !!req.auth,
-    handler: (_req, _res, next) => next(new HttpProblem(429, 'Too Many Requests', 'rate limit for anonymous use reached; send an API key', undefined, { 'Retry-After': '60' })),
-  })
+  const anonymousLimiter = anonymousComputeLimiter(deps.config)
   const service = spectraFitService(deps.compute ?? inProcessCompute())
   const { computeBudget, anonymousComputeBudget } = deps.config
   route(r, {
