@@ -18,7 +18,8 @@ import { createRng } from '../stats/rng.ts'
 import { airToVacuum } from './air-vacuum.ts'
 import { solveDoublet, type Doublet } from './curve-of-growth.ts'
 import { bilinear, lineSigmaInstKmPerS, quantities, quantityErrors, quantityGradients, type Quantities } from './derive.ts'
-import { levenbergMarquardt } from './levenberg-marquardt.ts'
+import { kinematicMoments } from './start.ts'
+import { variableProjection } from './variable-projection.ts'
 import { NAD, type FitLineId } from './lines.ts'
 import { createSpectrumModel, fluxKey, type SpectrumModel } from './model.ts'
 import { prepareSpectrum, setupFit, type FitSetup } from './prepare.ts'
@@ -76,9 +77,9 @@ function freeParameters(model: SpectrumModel): number {
   return k
 }
 
-/** LM from p0, with BIC (Schwarz 1978). */
+/** Variable projection from the non-linear parameters of p0 (README §13.7), with BIC (Schwarz 1978). */
 export function runFit(model: SpectrumModel, p0: Float64Array): FitOutcome {
-  const r = levenbergMarquardt(model.problem, p0)
+  const r = variableProjection(model.separable, p0)
   const k = freeParameters(model)
   return { model, p: r.p, chi2: r.chi2, covariance: r.covariance, converged: r.converged, k, bic: r.chi2 + k * Math.log(model.pixels.n) }
 }
@@ -136,10 +137,30 @@ function transfer(from: FitOutcome, to: SpectrumModel): Float64Array {
   return p
 }
 
+/** Least starting intrinsic width, km/s: at σ = 0 the model does not change with σ to first order (σ_λ² = (λσ/c)² + σ_inst²). */
+const MIN_START_WIDTH = 20
+
+/**
+ * The first narrow component's start: the moments of the lines (start.ts) when they are usable, else
+ * the grid (project choice, README §13.7).
+ */
+function narrowStart(model: SpectrumModel, p: Float64Array, gi: number): Float64Array {
+  const mom = kinematicMoments(model.pixels)
+  if (!mom) return gridSearch(model, p, gi, narrowCandidates(model.config.profile))
+  const g = model.groups[gi]
+  const { lower, upper } = model.problem
+  const out = Float64Array.from(p)
+  const width = Math.max(mom.sigmaIntrinsic, MIN_START_WIDTH)
+  out[g.v] = clamp(mom.velocity, lower[g.v], upper[g.v])
+  out[g.s] = clamp(model.config.profile === 'lorentzian' ? 0 : width, lower[g.s], upper[g.s])
+  if (g.g >= 0) out[g.g] = clamp(model.config.profile === 'lorentzian' ? 0.8 * width : 10, lower[g.g], upper[g.g])
+  return out
+}
+
 function fitFromScratch(model: SpectrumModel): FitOutcome {
   let p = model.initial()
   model.groups.forEach((g, gi) => {
-    if (g.kind === 'narrow' && g.component === 0) p = gridSearch(model, p, gi, narrowCandidates(model.config.profile))
+    if (g.kind === 'narrow' && g.component === 0) p = narrowStart(model, p, gi)
   })
   model.groups.forEach((g, gi) => {
     if (g.kind === 'absorption') p = gridSearch(model, p, gi, ABSORPTION_CANDIDATES)
@@ -177,7 +198,6 @@ function withTwoComponents(cur: FitOutcome, make: (components: 1 | 2, broad: boo
     const p = Float64Array.from(base)
     set(p, n0, v0, s0)
     set(p, n1, v1, s1)
-    model.solveLinear(p)
     const r = runFit(model, p)
     if (!best || r.chi2 < best.chi2) best = r
   }
@@ -186,9 +206,7 @@ function withTwoComponents(cur: FitOutcome, make: (components: 1 | 2, broad: boo
 
 function withoutBroad(cur: FitOutcome, make: (components: 1 | 2, broad: boolean) => SpectrumModel): FitOutcome {
   const model = make(cur.model.config.components, false)
-  const p = transfer(cur, model)
-  model.solveLinear(p)
-  return runFit(model, p)
+  return runFit(model, transfer(cur, model))
 }
 
 /** S/N of a flux parameter. */
@@ -491,7 +509,7 @@ export function monteCarloErrors(o: FitOutcome, id: string, draws: number, seed:
   try {
     for (let d = 0; d < draws; d++) {
       for (let j = 0; j < pixels.n; j++) pixels.y[j] = y0[j] + pixels.sigma[j] * rng.nextNormal()
-      const r = levenbergMarquardt(o.model.problem, o.p, { maxIterations: 60 })
+      const r = variableProjection(o.model.separable, o.p, { maxIterations: 60, covariance: false })
       const q = quantities(o.model, r.p, zf)
       for (const [key, value] of q) {
         let a = samples.get(key)

@@ -156,7 +156,7 @@ function pseudoInverseOf(a: Float64Array, m: number, threshold?: number): Matrix
  * Solve (D α D + λ I) x = D β on the free parameters (D = diag α^(−1/2)), return δ = D x; held or
  * unconstrained parameters get δ = 0. Cholesky first, the SVD pseudo-inverse if α is not positive definite.
  */
-function dampedStep(alpha: Float64Array, beta: Float64Array, free: Uint8Array, lambda: number, delta: Float64Array): void {
+export function dampedStep(alpha: Float64Array, beta: Float64Array, free: Uint8Array, lambda: number, delta: Float64Array): void {
   const k = beta.length
   const idx: number[] = []
   for (let j = 0; j < k; j++) {

@@ -7,8 +7,12 @@
  * per window c₀, c₁; per kinematic group v, σ (Gaussian part, intrinsic), γ (Lorentzian HWHM,
  * intrinsic; Lorentzian and Voigt profiles only); one flux per free line and component; W(D2), W(D1).
  * Line centre λ_c = (1 + z) λ_rest (1 + v/c); observed Gaussian σ_λ² = (λ_c σ/c)² + σ_inst,λ²
- * (σ_inst at the expected centre). Jacobian: exact for the linear parameters, central differences
- * (0.01 km/s) for the kinematic ones.
+ * (σ_inst at the expected centre). Jacobian: exact for the linear parameters and for Gaussian
+ * kinematics, central differences (0.01 km/s) for Lorentzian and Voigt kinematics.
+ *
+ * The model is separable (variable-projection.ts): for fixed kinematics and Na I D equivalent widths
+ * it is linear in the continua and fluxes, which `separable.project` solves window by window (the
+ * windows share no pixels, so the linear normal matrix is block diagonal, one small block a window).
  */
 import { CholeskyDecomposition, Matrix, pseudoInverse } from 'ml-matrix'
 import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
@@ -16,6 +20,7 @@ import type { FitLineId } from './lines.ts'
 import type { LeastSquaresProblem } from './levenberg-marquardt.ts'
 import { chiSquare, choleskyFactor, choleskySolve } from './levenberg-marquardt.ts'
 import { GAUSS_CUT, gaussianPixelDerivatives, gaussianPixels, lorentzianPixels, voigtPixels } from './profiles.ts'
+import type { SeparableProblem } from './variable-projection.ts'
 
 const C = SPEED_OF_LIGHT_KM_PER_S
 
@@ -160,6 +165,8 @@ export interface SpectrumModel {
   solveLinear(p: Float64Array, group?: number, stopAbove?: number): number
   chi2(p: Float64Array): number
   evaluate(p: Float64Array, out: Float64Array): void
+  /** the same χ² as a separable problem: kinematics and Na I D widths iterated, continua and fluxes projected (README §13.7) */
+  separable: SeparableProblem
 }
 
 /** Key of a flux parameter. */
@@ -402,6 +409,34 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       }
     }
   }
+  /** ∂m/∂(v, σ, γ) of one group into cols[v], cols[s], cols[g] over the group's rows: closed form for Gaussians, else central differences */
+  const kinematicColumns = (p: Float64Array, gi: number, cols: Float64Array[]): void => {
+    const gr = groups[gi]
+    if (gr.kind === 'absorption' || config.profile === 'gaussian') {
+      gaussianGroupColumns(p, gi, cols)
+      return
+    }
+    const base = kin(p, gi)
+    for (let q = 0; q < 3; q++) {
+      const idx = q === 0 ? gr.v : q === 1 ? gr.s : gr.g
+      if (idx < 0) continue
+      const col = cols[idx]
+      if (upper[idx] <= lower[idx]) {
+        col.fill(0, gr.start, gr.end)
+        continue
+      }
+      const up = base.slice() as [number, number, number]
+      const down = base.slice() as [number, number, number]
+      const hUp = Math.min(KIN_STEP, upper[idx] - base[q])
+      const hDown = Math.min(KIN_STEP, base[q] - lower[idx])
+      up[q] += hUp
+      down[q] -= hDown
+      groupContribution(p, gi, up[0], up[1], up[2], plus)
+      groupContribution(p, gi, down[0], down[1], down[2], minus)
+      const inv = 1 / (hUp + hDown)
+      for (let j = gr.start; j < gr.end; j++) col[j] = (plus[j] - minus[j]) * inv
+    }
+  }
   const fluxParams = [...new Set(terms.map((tm) => tm.param))]
   const jacobian = (p: Float64Array, _m: Float64Array, cols: Float64Array[]): void => {
     profiles(p)
@@ -428,32 +463,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
         for (let j = tm.r0; j < tm.r1; j++) col[j] += tm.mult * b[j]
       }
     }
-    groups.forEach((gr, gi) => {
-      if (gr.kind === 'absorption' || config.profile === 'gaussian') {
-        gaussianGroupColumns(p, gi, cols)
-        return
-      }
-      const base = kin(p, gi)
-      for (let q = 0; q < 3; q++) {
-        const idx = q === 0 ? gr.v : q === 1 ? gr.s : gr.g
-        if (idx < 0) continue
-        const col = cols[idx]
-        if (upper[idx] <= lower[idx]) {
-          col.fill(0, gr.start, gr.end)
-          continue
-        }
-        const up = base.slice() as [number, number, number]
-        const down = base.slice() as [number, number, number]
-        const hUp = Math.min(KIN_STEP, upper[idx] - base[q])
-        const hDown = Math.min(KIN_STEP, base[q] - lower[idx])
-        up[q] += hUp
-        down[q] -= hDown
-        groupContribution(p, gi, up[0], up[1], up[2], plus)
-        groupContribution(p, gi, down[0], down[1], down[2], minus)
-        const inv = 1 / (hUp + hDown)
-        for (let j = gr.start; j < gr.end; j++) col[j] = (plus[j] - minus[j]) * inv
-      }
-    })
+    for (let gi = 0; gi < groups.length; gi++) kinematicColumns(p, gi, cols)
   }
   const problem: LeastSquaresProblem = {
     y: pixels.y, weight: pixels.weight,
@@ -563,7 +573,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       // fluxes and equivalent widths are ≥ 0: drop the most negative one and solve again (active set)
       active.fill(1, 0, m)
       for (let pass = 0; pass < m; pass++) {
-        if (!choleskySubset(na, nb, m, active, work, factor, xs)) {
+        if (!choleskySubset(na, nb, m, active, work, factor, xs, bj)) {
           const x = solveSubset(Matrix.from1DArray(m, m, Array.from(na.subarray(0, m * m))), Matrix.columnVector(Array.from(nb.subarray(0, m))), Array.from(active.subarray(0, m), (a) => a === 1))
           xs.set(x)
         }
@@ -588,7 +598,312 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     }
     return total
   }
-  return { config, pixels, names, groups, continuum, fluxParam, ewParam, problem, initial, solveLinear, chi2, evaluate }
+  const separable = separableOf({
+    n, k, windows, groups, terms, termsOfWindow, continuum, ewParam, t, lower: problem.lower, upper: problem.upper, pixels,
+    termProfile, kinematicColumns, lastP, scratch: { na, nb, active, work, factor, xs },
+  })
+  return { config, pixels, names, groups, continuum, fluxParam, ewParam, problem, initial, solveLinear, chi2, evaluate, separable }
+}
+
+/** What the separable form needs from createSpectrumModel. */
+interface SeparableParts {
+  n: number
+  k: number
+  windows: FitWindow[]
+  groups: KinematicGroup[]
+  terms: Term[]
+  termsOfWindow: Term[][]
+  continuum: [number, number][]
+  ewParam: { d2: number; d1: number } | null
+  t: Float64Array
+  lower: Float64Array
+  upper: Float64Array
+  pixels: FitPixels
+  termProfile(tm: Term, v: number, s: number, g: number): void
+  kinematicColumns(p: Float64Array, gi: number, cols: Float64Array[]): void
+  lastP: Float64Array
+  scratch: { na: Float64Array; nb: Float64Array; active: Uint8Array; work: Float64Array; factor: Float64Array; xs: Float64Array }
+}
+
+/**
+ * The model as a separable problem (variable-projection.ts; Golub & Pereyra 1973): the non-linear
+ * parameters are the free kinematics and the Na I D equivalent widths; the linear ones, each window's
+ * c₀, c₁ and its emission fluxes, are solved window by window with fluxes ≥ 0 (active set, as
+ * `solveLinear`). In the Na I D window the continuum's columns are (1 − A)·(1, t).
+ */
+function separableOf(m: SeparableParts): SeparableProblem {
+  const { n, k, windows, groups, terms, termsOfWindow, continuum, ewParam, t, lower, upper, pixels, lastP } = m
+  const { weight, y } = pixels
+  const nonlinearList: number[] = []
+  for (const gr of groups) for (const idx of [gr.v, gr.s, gr.g]) if (idx >= 0 && upper[idx] > lower[idx]) nonlinearList.push(idx)
+  if (ewParam) nonlinearList.push(ewParam.d2, ewParam.d1)
+  const nonlinear = Int32Array.from(nonlinearList)
+  const nk = nonlinear.length
+  const position = new Int32Array(k).fill(-1)
+  nonlinear.forEach((j, a) => { position[j] = a })
+  const emission = windows.map((_, wi) => termsOfWindow[wi].filter((tm) => !tm.absorption))
+  const absorption = windows.map((_, wi) => termsOfWindow[wi].filter((tm) => tm.absorption))
+  /** each window's linear parameters: c₀, c₁, then its emission fluxes; and each emission term's slot among them */
+  const params = windows.map((_, wi) => Int32Array.from([continuum[wi][0], continuum[wi][1], ...new Set(emission[wi].map((tm) => tm.param))]))
+  const slots = windows.map((_, wi) => Int32Array.from(emission[wi].map((tm) => params[wi].indexOf(tm.param))))
+  /** the non-linear parameters (positions in `nonlinear`) whose columns can be non-zero in each window */
+  const nonlinearOf = windows.map((_, wi) => {
+    const set = new Set<number>()
+    for (const tm of termsOfWindow[wi]) {
+      const gr = groups[tm.group]
+      for (const idx of [gr.v, gr.s, gr.g]) if (idx >= 0 && position[idx] >= 0) set.add(position[idx])
+      if (tm.absorption && position[tm.param] >= 0) set.add(position[tm.param])
+    }
+    return Int32Array.from([...set].sort((a, b) => a - b))
+  })
+  const normal = params.map((lp) => new Float64Array(lp.length * lp.length))
+  const rhs = params.map((lp) => new Float64Array(lp.length))
+  const activeOf = params.map((lp) => new Uint8Array(lp.length))
+  const cross = params.map((lp) => new Float64Array(lp.length * Math.max(nk, 1)))
+  const damp = new Float64Array(n).fill(1)
+  const model = new Float64Array(n)
+  const wd = new Float64Array(n)
+  const dummy = new Float64Array(n)
+  const columns: Float64Array[] = Array.from({ length: k }, (_, j) => (position[j] >= 0 ? new Float64Array(n) : dummy))
+  const h = new Float64Array(nk * nk)
+  const { na, nb, active, work, factor, xs } = m.scratch
+  const maxLinear = Math.max(2, ...params.map((lp) => lp.length))
+  const bj = new Float64Array(maxLinear)
+  const sub = new Float64Array(maxLinear * maxLinear)
+  const subFactor = new Float64Array(maxLinear * maxLinear)
+  const rhsSub = new Float64Array(maxLinear)
+  const x = new Float64Array(maxLinear)
+
+  const project = (p: Float64Array): number => {
+    for (const tm of terms) {
+      const gr = groups[tm.group]
+      m.termProfile(tm, p[gr.v], p[gr.s], gr.g >= 0 ? p[gr.g] : 0)
+    }
+    let total = 0
+    for (let wi = 0; wi < windows.length; wi++) {
+      const w = windows[wi]
+      const lp = params[wi]
+      const mm = lp.length
+      const em = emission[wi]
+      const slot = slots[wi]
+      const ab = absorption[wi]
+      const a = normal[wi]
+      const b = rhs[wi]
+      a.fill(0)
+      b.fill(0)
+      if (ab.length > 0) {
+        damp.fill(1, w.start, w.end)
+        for (const tm of ab) {
+          const amp = p[tm.param]
+          const buf = tm.buf
+          for (let j = tm.r0; j < tm.r1; j++) damp[j] -= amp * buf[j]
+        }
+      }
+      // the continuum block over every row; the flux rows only where some profile is non-zero
+      let s00 = 0, s01 = 0, s11 = 0, b0 = 0, b1 = 0
+      for (let j = w.start; j < w.end; j++) {
+        const d = damp[j]
+        const wt = weight[j] * d
+        const tj = t[j]
+        s00 += wt * d
+        s01 += wt * d * tj
+        s11 += wt * d * tj * tj
+        b0 += wt * y[j]
+        b1 += wt * y[j] * tj
+      }
+      a[0] = s00
+      a[1] = a[mm] = s01
+      a[mm + 1] = s11
+      b[0] = b0
+      b[1] = b1
+      let u0 = w.end
+      let u1 = w.start
+      for (const tm of em) {
+        if (tm.r0 < tm.r1) {
+          if (tm.r0 < u0) u0 = tm.r0
+          if (tm.r1 > u1) u1 = tm.r1
+        }
+      }
+      for (let j = u0; j < u1; j++) {
+        bj.fill(0, 2, mm)
+        let any = false
+        for (let q = 0; q < em.length; q++) {
+          const tm = em[q]
+          if (j < tm.r0 || j >= tm.r1) continue
+          const v = tm.buf[j]
+          if (v === 0) continue
+          bj[slot[q]] += tm.mult * v
+          any = true
+        }
+        if (!any) continue
+        const wt = weight[j]
+        const d = damp[j]
+        const tj = t[j]
+        const wy = wt * y[j]
+        for (let r = 2; r < mm; r++) {
+          const br = wt * bj[r]
+          if (br === 0) continue
+          a[r] += br * d
+          a[mm + r] += br * d * tj
+          b[r] += wy * bj[r]
+          for (let c = r; c < mm; c++) a[r * mm + c] += br * bj[c]
+        }
+      }
+      for (let r = 0; r < mm; r++) for (let c = r + 1; c < mm; c++) a[c * mm + r] = a[r * mm + c]
+      // fluxes ≥ 0: drop the most negative one and solve again (active set, as solveLinear)
+      const act = activeOf[wi]
+      act.fill(1)
+      for (let pass = 0; pass < mm; pass++) {
+        if (!choleskySubset(a, b, mm, act, work, factor, xs, nb)) {
+          const sol = solveSubset(Matrix.from1DArray(mm, mm, Array.from(a)), Matrix.columnVector(Array.from(b)), Array.from(act, (on) => on === 1))
+          xs.set(sol)
+        }
+        let worst = -1
+        for (let r = 2; r < mm; r++) if (act[r] && xs[r] < 0 && (worst < 0 || xs[r] < xs[worst])) worst = r
+        if (worst < 0) break
+        act[worst] = 0
+      }
+      for (let r = 0; r < mm; r++) p[lp[r]] = act[r] ? xs[r] : 0
+      // the model and χ² of the window from its residuals
+      const c0 = p[lp[0]]
+      const c1 = p[lp[1]]
+      for (let j = w.start; j < w.end; j++) model[j] = (c0 + c1 * t[j]) * damp[j]
+      for (const tm of em) {
+        const f = p[tm.param] * tm.mult
+        if (f === 0) continue
+        const buf = tm.buf
+        for (let j = tm.r0; j < tm.r1; j++) model[j] += f * buf[j]
+      }
+      for (let j = w.start; j < w.end; j++) {
+        const r = y[j] - model[j]
+        total += weight[j] * r * r
+      }
+    }
+    lastP.set(p)
+    return total
+  }
+
+  const reduced = (p: Float64Array, s: Float64Array, g: Float64Array, alpha?: Float64Array): void => {
+    // the non-linear columns at p (the profiles are the last projection's)
+    for (let gi = 0; gi < groups.length; gi++) m.kinematicColumns(p, gi, columns)
+    windows.forEach((w, wi) => {
+      const ab = absorption[wi]
+      if (ab.length === 0) return
+      const [i0, i1] = continuum[wi]
+      for (const tm of ab) columns[tm.param].fill(0, w.start, w.end)
+      for (const tm of ab) {
+        const col = columns[tm.param]
+        const buf = tm.buf
+        for (let j = tm.r0; j < tm.r1; j++) col[j] -= (p[i0] + p[i1] * t[j]) * buf[j]
+      }
+    })
+    h.fill(0)
+    g.fill(0)
+    for (let wi = 0; wi < windows.length; wi++) {
+      const w = windows[wi]
+      const nl = nonlinearOf[wi]
+      const lp = params[wi]
+      const mm = lp.length
+      const gw = cross[wi]
+      gw.fill(0)
+      if (nl.length === 0) continue
+      let u0 = w.end
+      let u1 = w.start
+      for (const tm of termsOfWindow[wi]) {
+        if (tm.r0 < tm.r1) {
+          if (tm.r0 < u0) u0 = tm.r0
+          if (tm.r1 > u1) u1 = tm.r1
+        }
+      }
+      const em = emission[wi]
+      const slot = slots[wi]
+      for (let ia = 0; ia < nl.length; ia++) {
+        const a = nl[ia]
+        const col = columns[nonlinear[a]]
+        let ga = 0, g0 = 0, g1 = 0
+        for (let j = u0; j < u1; j++) {
+          const v = weight[j] * col[j]
+          wd[j] = v
+          ga += v * (y[j] - model[j])
+          g0 += v * damp[j]
+          g1 += v * damp[j] * t[j]
+        }
+        g[a] += ga
+        gw[a] += g0
+        gw[nk + a] += g1
+        for (let ib = ia; ib < nl.length; ib++) {
+          const bIdx = nl[ib]
+          const colB = columns[nonlinear[bIdx]]
+          let sum = 0
+          for (let j = u0; j < u1; j++) sum += wd[j] * colB[j]
+          h[a * nk + bIdx] += sum
+        }
+        for (let q = 0; q < em.length; q++) {
+          const tm = em[q]
+          const buf = tm.buf
+          let sum = 0
+          for (let j = tm.r0; j < tm.r1; j++) sum += wd[j] * buf[j]
+          gw[slot[q] * nk + a] += tm.mult * sum
+        }
+      }
+      void mm
+    }
+    for (let a = 0; a < nk; a++) for (let b = a + 1; b < nk; b++) h[b * nk + a] = h[a * nk + b]
+    s.set(h)
+    if (alpha) {
+      // the full JᵀWJ: the linear blocks of every window (all their parameters, held ones too), their cross terms, the non-linear block
+      alpha.fill(0)
+      for (let a = 0; a < nk; a++) for (let b = 0; b < nk; b++) alpha[nonlinear[a] * k + nonlinear[b]] = h[a * nk + b]
+      for (let wi = 0; wi < windows.length; wi++) {
+        const lp = params[wi]
+        const mm = lp.length
+        const a = normal[wi]
+        const gw = cross[wi]
+        for (let r = 0; r < mm; r++) {
+          for (let c = 0; c < mm; c++) alpha[lp[r] * k + lp[c]] = a[r * mm + c]
+          for (let q = 0; q < nk; q++) {
+            const v = gw[r * nk + q]
+            if (v === 0) continue
+            alpha[lp[r] * k + nonlinear[q]] = v
+            alpha[nonlinear[q] * k + lp[r]] = v
+          }
+        }
+      }
+    }
+    // Schur complement over each window's free linear parameters: S = H − Gᵀ A⁻¹ G
+    for (let wi = 0; wi < windows.length; wi++) {
+      const nl = nonlinearOf[wi]
+      if (nl.length === 0) continue
+      const lp = params[wi]
+      const mm = lp.length
+      const a = normal[wi]
+      const gw = cross[wi]
+      const act = activeOf[wi]
+      let q = 0
+      const map = xs
+      for (let r = 0; r < mm; r++) if (act[r]) map[q++] = r
+      for (let r = 0; r < q; r++) for (let c = 0; c < q; c++) sub[r * q + c] = a[map[r] * mm + map[c]]
+      const ok = choleskyFactor(sub, q, subFactor)
+      const inv = ok ? null : pseudoInverse(Matrix.from1DArray(q, q, Array.from(sub.subarray(0, q * q))))
+      for (let ib = 0; ib < nl.length; ib++) {
+        const bIdx = nl[ib]
+        for (let r = 0; r < q; r++) rhsSub[r] = gw[map[r] * nk + bIdx]
+        if (ok) choleskySolve(subFactor, q, rhsSub, x)
+        else for (let r = 0; r < q; r++) {
+          let v = 0
+          for (let c = 0; c < q; c++) v += (inv as Matrix).get(r, c) * rhsSub[c]
+          x[r] = v
+        }
+        for (let ia = 0; ia < nl.length; ia++) {
+          const aIdx = nl[ia]
+          let v = 0
+          for (let r = 0; r < q; r++) v += gw[map[r] * nk + aIdx] * x[r]
+          s[aIdx * nk + bIdx] -= v
+        }
+      }
+    }
+  }
+  return { lower, upper, nonlinear, project, reduced }
 }
 
 /**
@@ -596,7 +911,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
  * plain arrays (the grid search calls this thousands of times a spectrum); false when the subset is
  * not positive definite (then `solveSubset` takes the SVD pseudo-inverse).
  */
-function choleskySubset(a: Float64Array, b: Float64Array, m: number, active: Uint8Array, work: Float64Array, l: Float64Array, x: Float64Array): boolean {
+function choleskySubset(a: Float64Array, b: Float64Array, m: number, active: Uint8Array, work: Float64Array, l: Float64Array, x: Float64Array, rhs: Float64Array): boolean {
   let q = 0
   for (let r = 0; r < m; r++) {
     if (!active[r]) continue
@@ -607,7 +922,6 @@ function choleskySubset(a: Float64Array, b: Float64Array, m: number, active: Uin
   // pack the q×q subset densely, then factor and solve
   for (let r = 0; r < q; r++) for (let c = 0; c < q; c++) work[r * q + c] = work[r * m + c]
   if (!choleskyFactor(work, q, l)) return false
-  const rhs = new Float64Array(q)
   let i = 0
   for (let r = 0; r < m; r++) if (active[r]) rhs[i++] = b[r]
   choleskySolve(l, q, rhs, rhs)
