@@ -716,37 +716,35 @@ function separableOf(m: SeparableParts): SeparableProblem {
       a[mm + 1] = s11
       b[0] = b0
       b[1] = b1
-      let u0 = w.end
-      let u1 = w.start
-      for (const tm of em) {
-        if (tm.r0 < tm.r1) {
-          if (tm.r0 < u0) u0 = tm.r0
-          if (tm.r1 > u1) u1 = tm.r1
+      // each emission term against the continuum and the data, then each pair of terms where both are non-zero
+      for (let q = 0; q < em.length; q++) {
+        const tm = em[q]
+        const buf = tm.buf
+        let sd = 0, sdt = 0, sy = 0
+        for (let j = tm.r0; j < tm.r1; j++) {
+          const wb = weight[j] * buf[j]
+          const d = damp[j]
+          sd += wb * d
+          sdt += wb * d * t[j]
+          sy += wb * y[j]
         }
-      }
-      for (let j = u0; j < u1; j++) {
-        bj.fill(0, 2, mm)
-        let any = false
-        for (let q = 0; q < em.length; q++) {
-          const tm = em[q]
-          if (j < tm.r0 || j >= tm.r1) continue
-          const v = tm.buf[j]
-          if (v === 0) continue
-          bj[slot[q]] += tm.mult * v
-          any = true
-        }
-        if (!any) continue
-        const wt = weight[j]
-        const d = damp[j]
-        const tj = t[j]
-        const wy = wt * y[j]
-        for (let r = 2; r < mm; r++) {
-          const br = wt * bj[r]
-          if (br === 0) continue
-          a[r] += br * d
-          a[mm + r] += br * d * tj
-          b[r] += wy * bj[r]
-          for (let c = r; c < mm; c++) a[r * mm + c] += br * bj[c]
+        const r = slot[q]
+        a[r] += tm.mult * sd
+        a[mm + r] += tm.mult * sdt
+        b[r] += tm.mult * sy
+        for (let q2 = q; q2 < em.length; q2++) {
+          const tm2 = em[q2]
+          const j0 = tm.r0 > tm2.r0 ? tm.r0 : tm2.r0
+          const j1 = tm.r1 < tm2.r1 ? tm.r1 : tm2.r1
+          if (j0 >= j1) continue
+          const buf2 = tm2.buf
+          let sum = 0
+          for (let j = j0; j < j1; j++) sum += weight[j] * buf[j] * buf2[j]
+          const r2 = slot[q2]
+          const v = tm.mult * tm2.mult * sum
+          if (r === r2) a[r * mm + r] += q === q2 ? v : 2 * v
+          else if (r < r2) a[r * mm + r2] += v
+          else a[r2 * mm + r] += v
         }
       }
       for (let r = 0; r < mm; r++) for (let c = r + 1; c < mm; c++) a[c * mm + r] = a[r * mm + c]
