@@ -297,6 +297,12 @@ function nadColumnErrors(ewD2: number, ewD1: number, cov: [number, number, numbe
   return { logN: err((c) => c.logN), b: err((c) => c.b) }
 }
 
+function parametersByName(names: string[], p: Float64Array): Record<string, number> {
+  const out: Record<string, number> = {}
+  for (let j = 0; j < names.length; j++) out[names[j]] = p[j]
+  return out
+}
+
 const finite = (x: number | null | undefined): x is number => typeof x === 'number' && Number.isFinite(x)
 
 /**
@@ -325,7 +331,7 @@ export function fitSpectrum(spectrum: SpectrumInput, options: FitOptions = {}, c
   result.model = {
     setup: { broad: opts.broadHalpha !== 'off', nad: wantNad, components: opts.components === 1 ? 1 : 2 },
     config: { ...best.model.config },
-    parameters: Object.fromEntries(best.model.names.map((name, j) => [name, best.p[j]])),
+    parameters: parametersByName(best.model.names, best.p),
   }
   if (!best.converged) flags.push(flagName('fit-not-converged'))
   const zf = setup.zFactor

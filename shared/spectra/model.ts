@@ -105,6 +105,7 @@ interface Term {
   absorption: boolean
   expected: number
   sigmaInst: number
+  /** the profile at fit rows of its window (carveRows) */
   buf: Float64Array
   /** rows [r0, r1) of the window where buf may be non-zero (Gaussians vanish beyond 8σ); buf is 0 elsewhere */
   r0: number
@@ -172,6 +173,72 @@ export interface SpectrumModel {
 /** Key of a flux parameter. */
 export const fluxKey = (line: string, component: number): string => `${line}:${component}`
 
+const NO_ROWS = new Float64Array(0)
+
+/**
+ * One array per term, indexed by fit row like the pixel arrays but backed only over the rows of the
+ * term's window [start, end) — the only rows its profile is ever written or read at — all in one
+ * buffer (a fit builds several models; many pixel-length arrays cost allocation and collection).
+ * Terms come window by window, so each view's storage lies at or beyond its window's first row; the
+ * rows in front of a view alias earlier storage and are never touched.
+ */
+function windowRows(windowed: { start: number; end: number }[]): Float64Array[] {
+  let size = 0
+  let pad = 0
+  for (const w of windowed) {
+    pad = Math.max(pad, w.start - size)
+    size += w.end - w.start
+  }
+  const buffer = new ArrayBuffer(8 * (size + pad))
+  let offset = pad
+  return windowed.map((w) => {
+    const view = new Float64Array(buffer, 8 * (offset - w.start), w.end)
+    offset += w.end - w.start
+    return view
+  })
+}
+
+/**
+ * Work arrays shared by every model of one set of fit pixels: t of the continuum, and scratch that a
+ * model fills and reads within one call (or between `project` and the `reduced` after it). A fit runs
+ * its models one at a time, synchronously, so they never interleave.
+ */
+interface PixelWork {
+  t: Float64Array
+  dCentre: Float64Array
+  dSigma: Float64Array
+  /** 1 − A(λ) in the Na I D window, 1 elsewhere */
+  damp: Float64Array
+  /** the model at the last projection */
+  model: Float64Array
+  weighted: Float64Array
+  /** central differences: a profile, the plus and the minus contribution */
+  fd: Float64Array[]
+  /** columns of the non-linear parameters, as many as the largest model needed so far */
+  columns: Float64Array[]
+}
+const pixelWork = new WeakMap<FitPixels, PixelWork>()
+
+function workOf(pixels: FitPixels): PixelWork {
+  let w = pixelWork.get(pixels)
+  if (!w) {
+    const n = pixels.n
+    const buffer = new ArrayBuffer(8 * 9 * n)
+    const [t, dCentre, dSigma, damp, model, weighted, f0, f1, f2] = Array.from({ length: 9 }, (_, i) => new Float64Array(buffer, 8 * i * n, n))
+    for (const win of pixels.windows) for (let j = win.start; j < win.end; j++) t[j] = (pixels.lambda[j] - win.mid) / win.half
+    damp.fill(1)
+    w = { t, dCentre, dSigma, damp, model, weighted, fd: [f0, f1, f2], columns: [] }
+    pixelWork.set(pixels, w)
+  }
+  return w
+}
+
+/** At least `count` non-linear columns of the pixels' work arrays (grown on demand). */
+function workColumns(work: PixelWork, n: number, count: number): Float64Array[] {
+  while (work.columns.length < count) work.columns.push(new Float64Array(n))
+  return work.columns
+}
+
 /**
  * Build the model of a configuration.
  *
@@ -238,11 +305,11 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       const mult = line.parent ? 1 / (line.ratio as number) : 1
       for (let k = 0; k < config.components; k++) {
         terms.push({ window: wi, group: narrow[k], param: fluxParam.get(fluxKey(owner, k)) as number, mult, absorption: false,
-          expected: line.expectedAngstrom, sigmaInst: line.sigmaInstAngstrom, buf: new Float64Array(n), r0: w.start, r1: w.start })
+          expected: line.expectedAngstrom, sigmaInst: line.sigmaInstAngstrom, buf: NO_ROWS, r0: w.start, r1: w.start })
       }
       if (line.id === 'halpha' && broadGroup >= 0) {
         terms.push({ window: wi, group: broadGroup, param: fluxParam.get(fluxKey('halpha', -1)) as number, mult: 1, absorption: false,
-          expected: line.expectedAngstrom, sigmaInst: line.sigmaInstAngstrom, buf: new Float64Array(n), r0: w.start, r1: w.start })
+          expected: line.expectedAngstrom, sigmaInst: line.sigmaInstAngstrom, buf: NO_ROWS, r0: w.start, r1: w.start })
       }
     }
   })
@@ -254,13 +321,15 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     ewParam = { d2, d1 }
     for (const a of w.absorption) {
       terms.push({ window: nadWindow, group: absGroup, param: a.key === 'd2' ? d2 : d1, mult: 1, absorption: true,
-        expected: a.expectedAngstrom, sigmaInst: a.sigmaInstAngstrom, buf: new Float64Array(n), r0: w.start, r1: w.start })
+        expected: a.expectedAngstrom, sigmaInst: a.sigmaInstAngstrom, buf: NO_ROWS, r0: w.start, r1: w.start })
     }
   }
   const k = names.length
   const { lo, hi, lambda } = pixels
-  const t = new Float64Array(n)
-  for (const w of windows) for (let j = w.start; j < w.end; j++) t[j] = (lambda[j] - w.mid) / w.half
+  const shared = workOf(pixels)
+  const { t, dCentre, dSigma } = shared
+  const profileRows = windowRows(terms.map((tm) => windows[tm.window]))
+  terms.forEach((tm, q) => { tm.buf = profileRows[q] })
   const termsOfGroup = groups.map((_, gi) => terms.filter((tm) => tm.group === gi))
   const termsOfWindow = windows.map((_, wi) => terms.filter((tm) => tm.window === wi))
   /** the linear parameters of each window: c₀, c₁, then its flux / EW parameters; and each term's slot among them */
@@ -350,13 +419,11 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     profiles(p)
     assemble(p, out)
   }
-  const scratch = new Float64Array(n)
-  const plus = new Float64Array(n)
-  const minus = new Float64Array(n)
   /** contribution of one kinematic group at kinematics (v, s, g) into acc over the group's rows */
   const groupContribution = (p: Float64Array, gi: number, v: number, s: number, g: number, acc: Float64Array): void => {
     const gr = groups[gi]
     acc.fill(0, gr.start, gr.end)
+    const scratch = shared.fd[0]
     for (const tm of termsOfGroup[gi]) {
       profileInto(tm, v, s, g, scratch)
       const w = windows[tm.window]
@@ -370,8 +437,6 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       }
     }
   }
-  const dCentre = new Float64Array(n)
-  const dSigma = new Float64Array(n)
   /** ∂m/∂v and ∂m/∂σ of a Gaussian group in closed form (chain rule through λ_c and σ_λ). */
   const gaussianGroupColumns = (p: Float64Array, gi: number, cols: Float64Array[]): void => {
     const gr = groups[gi]
@@ -429,6 +494,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       const down = base.slice() as [number, number, number]
       const hUp = Math.min(KIN_STEP, upper[idx] - base[q])
       const hDown = Math.min(KIN_STEP, base[q] - lower[idx])
+      const [, plus, minus] = shared.fd
       up[q] += hUp
       down[q] -= hDown
       groupContribution(p, gi, up[0], up[1], up[2], plus)
@@ -471,8 +537,9 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     columnStart: Int32Array.from(start), columnEnd: Int32Array.from(end),
     model: evaluate, jacobian,
   }
-  const modelBuf = new Float64Array(n)
+  let modelBuf: Float64Array | null = null
   const chi2 = (p: Float64Array): number => {
+    modelBuf ??= new Float64Array(n)
     evaluate(p, modelBuf)
     return chiSquare(pixels.y, pixels.weight, modelBuf)
   }
@@ -600,7 +667,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
   }
   const separable = separableOf({
     n, k, windows, groups, terms, termsOfWindow, continuum, ewParam, t, lower: problem.lower, upper: problem.upper, pixels,
-    termProfile, kinematicColumns, lastP, scratch: { na, nb, active, work, factor, xs },
+    termProfile, kinematicColumns, lastP, shared, scratch: { na, nb, active, work, factor, xs },
   })
   return { config, pixels, names, groups, continuum, fluxParam, ewParam, problem, initial, solveLinear, chi2, evaluate, separable }
 }
@@ -622,6 +689,7 @@ interface SeparableParts {
   termProfile(tm: Term, v: number, s: number, g: number): void
   kinematicColumns(p: Float64Array, gi: number, cols: Float64Array[]): void
   lastP: Float64Array
+  shared: PixelWork
   scratch: { na: Float64Array; nb: Float64Array; active: Uint8Array; work: Float64Array; factor: Float64Array; xs: Float64Array }
 }
 
@@ -660,11 +728,10 @@ function separableOf(m: SeparableParts): SeparableProblem {
   const rhs = params.map((lp) => new Float64Array(lp.length))
   const activeOf = params.map((lp) => new Uint8Array(lp.length))
   const cross = params.map((lp) => new Float64Array(lp.length * Math.max(nk, 1)))
-  const damp = new Float64Array(n).fill(1)
-  const model = new Float64Array(n)
-  const wd = new Float64Array(n)
-  const dummy = new Float64Array(n)
-  const columns: Float64Array[] = Array.from({ length: k }, (_, j) => (position[j] >= 0 ? new Float64Array(n) : dummy))
+  const { damp, model, weighted: wd } = m.shared
+  // a column per free non-linear parameter; held kinematics (a Lorentzian's σ) write into the spare one
+  const spare = workColumns(m.shared, n, nk + 1)
+  const columns: Float64Array[] = Array.from({ length: k }, (_, j) => spare[position[j] >= 0 ? position[j] : nk])
   const h = new Float64Array(nk * nk)
   const { na, nb, active, work, factor, xs } = m.scratch
   const maxLinear = Math.max(2, ...params.map((lp) => lp.length))

@@ -15,7 +15,7 @@ import type { AbsorptionLine, FitPixels, FitWindow, WindowLine } from './model.t
 import { pixelBounds } from './profiles.ts'
 import { hasResolution, instrumentalSigmaAngstrom } from './resolution.ts'
 import type { SpectrumInput } from './types.ts'
-import { isCovered, isSpanCovered, sidebandContinuum } from './windows.ts'
+import { isCovered, isSpanCovered, lowerBound, sidebandContinuum } from './windows.ts'
 
 const C = SPEED_OF_LIGHT_KM_PER_S
 
@@ -42,15 +42,29 @@ export function prepareSpectrum(s: SpectrumInput): PreparedSpectrum {
   if ((s.error === undefined) === (s.ivar === undefined)) throw new ScienceInputError('', 'give exactly one of error and ivar')
   const errs = s.error ?? s.ivar as ArrayLike<number>
   if (errs.length !== n) throw new ScienceInputError(s.error ? '/error' : '/ivar', 'errors must have as many values as wavelength')
-  const lambda = Float64Array.from(s.wavelength)
-  for (let i = 1; i < n; i++) if (!(lambda[i] > lambda[i - 1])) throw new ScienceInputError('/wavelength', 'wavelengths must increase strictly')
-  const flux = Float64Array.from(s.flux)
+  const lambda = new Float64Array(n)
+  const flux = new Float64Array(n)
   const sigma = new Float64Array(n)
   const good = new Uint8Array(n)
+  const w = s.wavelength
+  const f = s.flux
   for (let i = 0; i < n; i++) {
-    const e = s.error ? s.error[i] : null
-    const sg = s.error ? (typeof e === 'number' ? e : NaN) : 1 / Math.sqrt((s.ivar as ArrayLike<number>)[i])
-    sigma[i] = sg
+    lambda[i] = w[i]
+    flux[i] = f[i]
+  }
+  for (let i = 1; i < n; i++) if (!(lambda[i] > lambda[i - 1])) throw new ScienceInputError('/wavelength', 'wavelengths must increase strictly')
+  if (s.error) {
+    const e = s.error
+    for (let i = 0; i < n; i++) {
+      const v = e[i]
+      sigma[i] = typeof v === 'number' ? v : NaN
+    }
+  } else {
+    const iv = s.ivar as ArrayLike<number>
+    for (let i = 0; i < n; i++) sigma[i] = 1 / Math.sqrt(iv[i])
+  }
+  for (let i = 0; i < n; i++) {
+    const sg = sigma[i]
     good[i] = Number.isFinite(flux[i]) && Number.isFinite(sg) && sg > 0 ? 1 : 0
   }
   const { lo, hi } = pixelBounds(lambda)
@@ -125,20 +139,35 @@ export function setupFit(spec: PreparedSpectrum, input: SpectrumInput, wantBroad
     if (cx.absorption) rests.push(restWavelength(NAD.d2.airAngstrom, medium), restWavelength(NAD.d1.airAngstrom, medium))
     const blue = zf * Math.min(...rests) * (1 - cx.blueKmPerS / C)
     const red = zf * Math.max(...rests) * (1 + cx.redKmPerS / C)
+    // the good pixels in [blue, red] (wavelengths ascending: two binary searches)
     const idx: number[] = []
-    for (let i = 0; i < spec.n; i++) if (spec.good[i] && spec.lambda[i] >= blue && spec.lambda[i] <= red) idx.push(i)
+    for (let i = lowerBound(spec.lambda, blue); i < spec.n && spec.lambda[i] <= red; i++) if (spec.good[i]) idx.push(i)
     const nParams = 2 + lines.length * components + (withNad ? 4 : 0) + 6
     if (idx.length < nParams + MIN_SPARE_PIXELS) {
       for (const id of lines) flags.push(flagName('not-covered', id))
       if (withNad) flags.push(flagName('not-covered', 'nad'))
       continue
     }
-    const centres = rests.map((r) => zf * r)
-    const side = idx.map((i) => (centres.every((c) => Math.abs(spec.lambda[i] / c - 1) * C >= SIDEBAND_KM_PER_S) ? 1 : 0))
+    // a side-band pixel lies ≥ 1200 km/s from every line: outside each (c (1 − s/C), c (1 + s/C))
+    const nearLo = rests.map((r) => zf * r * (1 - SIDEBAND_KM_PER_S / C))
+    const nearHi = rests.map((r) => zf * r * (1 + SIDEBAND_KM_PER_S / C))
+    const m = idx.length
+    const lam = new Float64Array(m)
+    const fl = new Float64Array(m)
+    const sg = new Float64Array(m)
+    const side = new Uint8Array(m)
+    for (let j = 0; j < m; j++) {
+      const i = idx[j]
+      lam[j] = spec.lambda[i]
+      fl[j] = spec.flux[i]
+      sg[j] = spec.sigma[i]
+      let far = 1
+      for (let c = 0; c < nearLo.length; c++) if (lam[j] > nearLo[c] && lam[j] < nearHi[c]) far = 0
+      side[j] = far
+    }
     const mid = 0.5 * (blue + red)
     const half = 0.5 * (red - blue)
-    const lam = idx.map((i) => spec.lambda[i])
-    const cont = sidebandContinuum(lam, idx.map((i) => spec.flux[i]), idx.map((i) => spec.sigma[i]), side, mid, half)
+    const cont = sidebandContinuum(lam, fl, sg, side, mid, half)
     const kept = idx.filter((_, j) => !cont.outlier[j])
     const windowLines: WindowLine[] = lines.map((id) => {
       const rest = restWavelength(FIT_LINE_AIR_ANGSTROM[id], medium)

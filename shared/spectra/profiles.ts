@@ -104,11 +104,12 @@ export function pixelBounds(centres: ArrayLike<number>): { lo: Float64Array; hi:
     hi[0] = centres[0] + 0.5
     return { lo, hi }
   }
-  const gap = (i: number): number => centres[i + 1] - centres[i]
+  const gaps = new Float64Array(n - 1)
+  for (let i = 0; i < n - 1; i++) gaps[i] = centres[i + 1] - centres[i]
   for (let i = 0; i < n - 1; i++) {
-    const d = gap(i)
-    const left = i > 0 ? gap(i - 1) : NaN
-    const right = i + 1 < n - 1 ? gap(i + 1) : NaN
+    const d = gaps[i]
+    const left = i > 0 ? gaps[i - 1] : NaN
+    const right = i + 1 < n - 1 ? gaps[i + 1] : NaN
     const hole = (left > 0 || right > 0) && !(d <= GAP_FACTOR * left) && !(d <= GAP_FACTOR * right)
     if (hole) {
       hi[i] = centres[i] + 0.5 * (left > 0 ? left : right)
