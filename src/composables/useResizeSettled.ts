@@ -2,7 +2,8 @@ import { onBeforeUnmount } from 'vue'
 
 /** Resolves once the element's width has stayed the same for one frame (at most six frames). */
 export async function widthSettled(node: HTMLElement) {
-  let last = -1
+  // its width now (a layout the coming frame needs anyway): an element mounted into a settled page draws a frame sooner
+  let last = node.clientWidth
   for (let i = 0; i < 6; i++) {
     await new Promise((done) => requestAnimationFrame(done))
     const w = node.clientWidth

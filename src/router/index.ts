@@ -46,7 +46,12 @@ const routes: RouteRecordRaw[] = [
         },
       },
       { path: 'galaxies', name: 'galaxies', component: () => import('../views/GalaxiesView.vue'), props: true, meta: { title: 'Galaxies' } },
-      { path: 'galaxies/:galaxyId', name: 'galaxy', component: () => import('../views/GalaxyView.vue'), props: true, meta: { title: 'Galaxy' } },
+      {
+        path: 'galaxies/:galaxyId', name: 'galaxy', component: () => import('../views/GalaxyView.vue'), props: true, meta: { title: 'Galaxy' },
+        // every Galaxy screen draws plots: plotly's download and compile start beside the screen's own
+        // instead of when its first plot mounts (then its 50 ms of compiling lands on the spectrum's arrival)
+        beforeEnter: () => { loadPlotly().catch(() => {}) },
+      },
       { path: 'spectra', name: 'spectra', component: () => import('../views/SpectraView.vue'), props: true, meta: { title: 'Spectra' } },
       { path: 'intake', name: 'intake', component: () => import('../views/IntakeView.vue'), props: true, meta: { title: 'Intake' } },
       { path: 'exports', name: 'exports', component: () => import('../views/ExportsView.vue'), props: true, meta: { title: 'Exports' } },

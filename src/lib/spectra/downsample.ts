@@ -53,36 +53,54 @@ export function displayIndices(x: ArrayLike<number>, series: readonly Series[], 
     for (let k = 0; k < count; k++) all[k] = i0 + k
     return all
   }
-  const out: number[] = []
-  const picked = new Set<number>()
+  // per bucket the first pixel and each series' lowest and highest, ascending, without repeats
+  const out = new Int32Array(b * (1 + 2 * series.length) + 1)
+  const picked = new Int32Array(1 + 2 * series.length)
+  let m = 0
   for (let k = 0; k < b; k++) {
     const start = i0 + Math.floor((k * count) / b)
     const end = i0 + Math.floor(((k + 1) * count) / b) // exclusive
-    picked.clear()
-    picked.add(start)
+    let p = 0
+    picked[p++] = start
     for (const s of series) {
-      let lo = -1, hi = -1
+      let lo = -1, hi = -1, vlo = Infinity, vhi = -Infinity
       for (let i = start; i < end; i++) {
         const v = s[i]
         if (!usable(v)) continue
-        if (lo < 0 || v < (s[lo] as number)) lo = i
-        if (hi < 0 || v > (s[hi] as number)) hi = i
+        if (v < vlo) { vlo = v; lo = i }
+        if (v > vhi) { vhi = v; hi = i }
       }
-      if (lo >= 0) picked.add(lo)
-      if (hi >= 0) picked.add(hi)
+      if (lo >= 0) picked[p++] = lo
+      if (hi >= 0) picked[p++] = hi
     }
-    out.push(...[...picked].sort((p, q) => p - q))
+    // insertion sort of at most a handful
+    for (let a = 1; a < p; a++) {
+      const v = picked[a]
+      let c = a - 1
+      while (c >= 0 && picked[c] > v) { picked[c + 1] = picked[c]; c-- }
+      picked[c + 1] = v
+    }
+    for (let a = 0; a < p; a++) if (m === 0 || out[m - 1] !== picked[a]) out[m++] = picked[a]
   }
-  if (out[out.length - 1] !== i1) out.push(i1)
-  return Int32Array.from(out)
+  if (out[m - 1] !== i1) out[m++] = i1
+  return out.slice(0, m)
 }
 
-/** The values at `indices`; a missing or non-finite value becomes null (a gap in the curve). */
-export function take(values: ArrayLike<number | null> | undefined, indices: Int32Array): (number | null)[] {
-  const out = new Array<number | null>(indices.length)
+/** Whether indices are consecutive pixels (a window drawn whole). */
+export function isRun(indices: Int32Array): boolean {
+  return indices.length === 0 || indices[indices.length - 1] - indices[0] === indices.length - 1
+}
+
+/**
+ * The values at `indices`; a missing or non-finite value becomes NaN (a gap in the curve). A run of
+ * consecutive pixels of a Float64Array is a view on it, not a copy.
+ */
+export function take(values: ArrayLike<number | null> | undefined, indices: Int32Array): Float64Array {
+  if (values instanceof Float64Array && isRun(indices)) return indices.length ? values.subarray(indices[0], indices[indices.length - 1] + 1) : new Float64Array(0)
+  const out = new Float64Array(indices.length)
   for (let k = 0; k < indices.length; k++) {
     const v = values?.[indices[k]]
-    out[k] = usable(v) ? v : null
+    out[k] = usable(v) ? v : NaN
   }
   return out
 }

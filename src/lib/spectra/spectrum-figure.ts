@@ -2,45 +2,46 @@ import type { Data, Layout } from 'plotly.js-dist-min'
 import type { ModelComponentKind, SpectrumData, SpectrumModelCurves } from '../../api/spectra-types'
 import { lineLabel, OKABE_ITO } from '../../../shared/vocabulary/index.ts'
 import { displayIndices, take } from './downsample'
-import { errorBand, onContinuum, residuals, trimComponent } from './residuals'
+import { curveOf, errorBand, onContinuum, residuals, trimComponent, type Curve } from './residuals'
 
 /**
  * The spectrum view's plotly figure: the data with its error band, the continuum, each component on
  * the continuum, the total model, and below them the residuals in units of σ, sharing the x axis.
  * `prepareCurves` does the per-pixel work once; `spectrumTraces` picks the pixels of the shown window.
+ * Every curve is a Float64Array with NaN gaps (residuals.ts `Curve`): a window drawn whole hands
+ * plotly views on them, not copies.
  */
 
-type Values = (number | null)[]
-
 export interface PreparedModel {
-  continuum: Values
-  total: Values
-  residual: Values
+  continuum: Curve
+  total: Curve
+  residual: Curve
   /** each component added to the continuum, trimmed to where it matters */
-  components: { line: string; kind: ModelComponentKind; values: Values }[]
+  components: { line: string; kind: ModelComponentKind; values: Curve }[]
 }
 
 export interface PreparedCurves {
-  wavelength: number[]
-  flux: Values
-  band: { lower: Values; upper: Values }
+  wavelength: Float64Array
+  flux: Curve
+  band: { lower: Curve; upper: Curve }
   model: PreparedModel | null
   /** a trial refit drawn over the stored one */
   trial: PreparedModel | null
 }
 
 function prepareModel(s: SpectrumData, m: SpectrumModelCurves): PreparedModel {
+  const continuum = curveOf(m.continuum)
   return {
-    continuum: m.continuum,
-    total: m.total,
+    continuum,
+    total: curveOf(m.total),
     residual: residuals(s.flux, m.total, s.error),
-    components: m.components.map((c) => ({ line: c.line, kind: c.kind, values: onContinuum(trimComponent(c.values), m.continuum) })),
+    components: m.components.map((c) => ({ line: c.line, kind: c.kind, values: onContinuum(trimComponent(c.values), continuum) })),
   }
 }
 
 export function prepareCurves(s: SpectrumData, model: SpectrumModelCurves | null, trial: SpectrumModelCurves | null = null): PreparedCurves {
   return {
-    wavelength: s.wavelength, flux: s.flux, band: errorBand(s.flux, s.error),
+    wavelength: Float64Array.from(s.wavelength), flux: curveOf(s.flux), band: errorBand(s.flux, s.error),
     model: model ? prepareModel(s, model) : null,
     trial: trial ? prepareModel(s, trial) : null,
   }
@@ -68,6 +69,8 @@ export interface FigureOptions {
   /** names of the stored and trial models in the legend */
   modelName?: string
   trialName?: string
+  /** legend entries the user switched off (`LegendItem.key`) */
+  hidden?: ReadonlySet<string>
 }
 
 /** The whole wavelength span of a spectrum. */
@@ -89,7 +92,7 @@ export function fluxAxisTitle(fluxUnit: number): string {
   return `F_λ (${fluxUnit.toExponential(2)} ${unit})`
 }
 
-function line(x: number[], y: Values, name: string, colour: string, width: number, extra: Record<string, unknown> & { dash?: string } = {}): Data {
+function line(x: Float64Array, y: Curve, name: string, colour: string, width: number, extra: Record<string, unknown> & { dash?: string } = {}): Data {
   const { dash, ...rest } = extra
   return {
     type: 'scatter', mode: 'lines', x, y, name, line: { color: colour, width, ...(dash ? { dash } : {}) },
@@ -97,25 +100,24 @@ function line(x: number[], y: Values, name: string, colour: string, width: numbe
   } as Data
 }
 
-/** A kind's components as one trace, each component a separate run (null between them). */
-function componentTraces(m: PreparedModel, idx: Int32Array, x: number[], legendPrefix = ''): Data[] {
-  const byKind = new Map<ModelComponentKind, { x: (number | null)[]; y: Values; text: string[] }>()
+/** A kind's components as one trace, each component a separate run (a NaN gap between them). */
+function componentTraces(m: PreparedModel, idx: Int32Array, x: Float64Array, legendPrefix = ''): Data[] {
+  const byKind = new Map<ModelComponentKind, { x: number[]; y: number[]; text: string[] }>()
   for (const c of m.components) {
-    const y = take(c.values, idx)
-    if (!y.some((v) => v !== null)) continue
-    const t = byKind.get(c.kind) ?? { x: [], y: [], text: [] }
+    let t: { x: number[]; y: number[]; text: string[] } | undefined
     const label = lineLabel(c.line)
-    for (let k = 0; k < y.length; k++) {
-      if (y[k] === null) continue
-      t.x.push(x[k]); t.y.push(y[k]); t.text.push(label)
+    for (let k = 0; k < idx.length; k++) {
+      const v = c.values[idx[k]]
+      if (Number.isNaN(v)) continue
+      t ??= byKind.get(c.kind) ?? byKind.set(c.kind, { x: [], y: [], text: [] }).get(c.kind)!
+      t.x.push(x[k]); t.y.push(v); t.text.push(label)
     }
-    t.x.push(null); t.y.push(null); t.text.push('')
-    byKind.set(c.kind, t)
+    if (t) { t.x.push(NaN); t.y.push(NaN); t.text.push('') }
   }
   return [...byKind.entries()].map(([kind, t]) => {
     const s = COMPONENT_STYLE[kind]
     return {
-      type: 'scatter', mode: 'lines', x: t.x, y: t.y, text: t.text, name: `${legendPrefix}${s.name}`, connectgaps: false,
+      type: 'scatter', mode: 'lines', x: Float64Array.from(t.x), y: Float64Array.from(t.y), text: t.text, name: `${legendPrefix}${s.name}`, connectgaps: false,
       line: { color: s.colour, width: 1.2, dash: legendPrefix ? 'dot' : undefined },
       hovertemplate: '%{text}<br>λ %{x:.2f} Å<br>%{y:.4g}<extra></extra>',
     } as Data
@@ -125,16 +127,16 @@ function componentTraces(m: PreparedModel, idx: Int32Array, x: number[], legendP
 /** The traces of the shown window. */
 export function spectrumTraces(c: PreparedCurves, o: FigureOptions): Data[] {
   const [from, to] = o.range ?? fullRange(c.wavelength)
-  const extremes: Values[] = [c.flux]
+  const extremes: Curve[] = [c.flux]
   if (c.model) extremes.push(c.model.total)
   if (c.trial) extremes.push(c.trial.total)
   const idx = displayIndices(c.wavelength, extremes, from, to, o.buckets)
-  const x = Array.from(idx, (i) => c.wavelength[i])
+  const x = take(c.wavelength, idx)
   const fg = o.dark ? '#D8DCE3' : '#2B2F36'
   const bandFill = o.dark ? 'rgba(216,220,227,0.18)' : 'rgba(43,47,54,0.14)'
   const out: Data[] = [
-    { type: 'scatter', mode: 'lines', x, y: take(c.band.lower, idx), line: { width: 0 }, hoverinfo: 'skip', showlegend: false, connectgaps: false, name: 'error band lower' } as Data,
-    { type: 'scatter', mode: 'lines', x, y: take(c.band.upper, idx), line: { width: 0 }, fill: 'tonexty', fillcolor: bandFill, hoverinfo: 'skip', name: '±1σ', connectgaps: false } as Data,
+    { type: 'scatter', mode: 'lines', x, y: take(c.band.lower, idx), line: { width: 0 }, hoverinfo: 'skip', showlegend: false, connectgaps: false, name: 'error band lower', legendgroup: BAND } as Data,
+    { type: 'scatter', mode: 'lines', x, y: take(c.band.upper, idx), line: { width: 0 }, fill: 'tonexty', fillcolor: bandFill, hoverinfo: 'skip', name: '±1σ', connectgaps: false, legendgroup: BAND } as Data,
     line(x, take(c.flux, idx), 'Data', fg, 1, { line: { color: fg, width: 1, shape: 'hvh' } }),
   ]
   if (c.model) {
@@ -148,6 +150,40 @@ export function spectrumTraces(c: PreparedCurves, o: FigureOptions): Data[] {
     out.push(line(x, take(c.trial.total, idx), o.trialName ?? 'Refit', TRIAL_COLOUR, 1.8, { dash: 'dash' }))
     out.push(line(x, take(c.trial.residual, idx), 'Refit residual', TRIAL_COLOUR, 1, { yaxis: 'y2', showlegend: false, hovertemplate: 'refit<br>λ %{x:.2f} Å<br>(data − model)/σ %{y:.2f}<extra></extra>' }))
   }
+  if (o.hidden?.size) for (const t of out) if (o.hidden.has(legendKey(t))) (t as { visible?: boolean }).visible = false
+  return out
+}
+
+const BAND = 'band'
+/** What a legend entry switches: a trace's legend group, else its name. */
+const legendKey = (t: Data) => String((t as { legendgroup?: string }).legendgroup || t.name)
+
+/** One entry of the spectrum's legend. */
+export interface LegendItem {
+  key: string
+  name: string
+  colour: string
+  dash?: string
+  /** a filled band rather than a line */
+  fill?: string
+  hidden: boolean
+}
+
+/**
+ * The legend, drawn by the page rather than plotly (plotly measures and lays out every entry's text
+ * on each draw): one entry per trace the legend shows, in trace order; hidden ones stay listed.
+ */
+export function legendItems(traces: Data[], hidden: ReadonlySet<string> = new Set()): LegendItem[] {
+  const out: LegendItem[] = []
+  for (const t of traces) {
+    const tr = t as { showlegend?: boolean; name?: string; line?: { color?: string; dash?: string }; fill?: string; fillcolor?: string }
+    if (tr.showlegend === false) continue
+    const key = legendKey(t)
+    out.push({
+      key, name: tr.name ?? key, colour: tr.fill ? (tr.fillcolor ?? '') : (tr.line?.color ?? ''), hidden: hidden.has(key),
+      ...(tr.line?.dash ? { dash: tr.line.dash } : {}), ...(tr.fill ? { fill: tr.fillcolor ?? '' } : {}),
+    })
+  }
   return out
 }
 
@@ -156,7 +192,8 @@ export function residualRange(traces: Data[]): [number, number] {
   let max = 0
   for (const t of traces) {
     if ((t as { yaxis?: string }).yaxis !== 'y2') continue
-    for (const v of ((t as { y?: Values }).y ?? [])) if (typeof v === 'number' && Math.abs(v) > max) max = Math.abs(v)
+    const y = (t as { y?: ArrayLike<number | null> }).y ?? []
+    for (let i = 0; i < y.length; i++) { const v = y[i]; if (typeof v === 'number' && Math.abs(v) > max) max = Math.abs(v) }
   }
   const r = Math.min(10, Math.max(3, 1.1 * max))
   return [-r, r]
@@ -165,7 +202,8 @@ export function residualRange(traces: Data[]): [number, number] {
 export function spectrumLayout(traces: Data[], o: FigureOptions, hasModel: boolean): Partial<Layout> {
   const fg = o.dark ? '#E3E6EC' : '#1D2330'
   const grid = o.dark ? 'rgba(255,255,255,0.08)' : 'rgba(0,0,0,0.07)'
-  const axis = { gridcolor: grid, zeroline: false, linecolor: fg, mirror: true, ticks: 'outside' as const, color: fg, automargin: true }
+  // ticklabeloverflow 'allow': plotly otherwise measures every tick label to hide those past the plot's edge
+  const axis = { gridcolor: grid, zeroline: false, linecolor: fg, mirror: true, ticks: 'outside' as const, color: fg, automargin: true, ticklabeloverflow: 'allow' as const }
   const range = o.range ?? null
   return {
     margin: { l: 64, r: 16, t: 8, b: 46 },
@@ -174,8 +212,7 @@ export function spectrumLayout(traces: Data[], o: FigureOptions, hasModel: boole
     font: { family: 'Roboto, sans-serif', size: 12, color: fg },
     hovermode: 'closest',
     dragmode: 'zoom',
-    showlegend: true,
-    legend: { orientation: 'h', x: 0, y: 1.02, yanchor: 'bottom', font: { size: 11 }, traceorder: 'normal' },
+    showlegend: false, // the page draws the legend (legendItems)
     hoverlabel: { font: { family: 'Roboto Mono, monospace', size: 12 } },
     xaxis: { ...axis, anchor: hasModel ? 'y2' : 'y', title: { text: 'Observed wavelength (Å)' }, ...(range ? { range: [...range], autorange: false } : { autorange: true }) },
     yaxis: {
@@ -185,6 +222,18 @@ export function spectrumLayout(traces: Data[], o: FigureOptions, hasModel: boole
     ...(hasModel ? {
       yaxis2: { ...axis, domain: [0, 0.22], title: { text: 'Δ/σ' }, range: residualRange(traces), autorange: false, zeroline: true, zerolinecolor: grid, fixedrange: true },
     } : {}),
+  }
+}
+
+/**
+ * The layout of the saved image: the figure as drawn, with plotly's own legend above the plot (the
+ * page's legend is HTML, which the image would not hold).
+ */
+export function imageLayout(layout: Record<string, unknown>): Record<string, unknown> {
+  const margin = (layout.margin ?? {}) as Record<string, number>
+  return {
+    ...layout, showlegend: true, margin: { ...margin, t: 40 },
+    legend: { orientation: 'h', x: 0, y: 1.02, yanchor: 'bottom', font: { size: 11 }, traceorder: 'normal' },
   }
 }
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { displayIndices, lowerBound, take, upperBound } from '../../../../../src/lib/spectra/downsample'
+import { displayIndices, isRun, lowerBound, take, upperBound } from '../../../../../src/lib/spectra/downsample'
 
 const ramp = (n: number, f: (i: number) => number) => Array.from({ length: n }, (_, i) => f(i))
 
@@ -50,7 +50,17 @@ describe('display decimation', () => {
     for (let i = 500; i < 600; i++) flux[i] = null
     const idx = displayIndices(x, [flux], 0, n, 50)
     const y = take(flux, idx)
-    expect(y.some((v, k) => v === null && idx[k] >= 500 && idx[k] < 600)).toBe(true)
-    expect(take([1, NaN, null, Infinity, 2], Int32Array.from([0, 1, 2, 3, 4]))).toEqual([1, null, null, null, 2])
+    expect(Array.from(y).some((v, k) => Number.isNaN(v) && idx[k] >= 500 && idx[k] < 600)).toBe(true)
+    expect(Array.from(take([1, NaN, null, Infinity, 2], Int32Array.from([0, 1, 2, 3, 4])))).toEqual([1, NaN, NaN, NaN, 2])
+  })
+
+  it('hands a window drawn whole over as a view on the curve, not a copy', () => {
+    const curve = Float64Array.from(ramp(100, (i) => i))
+    const run = take(curve, Int32Array.from([10, 11, 12]))
+    expect(Array.from(run)).toEqual([10, 11, 12])
+    expect(run.buffer).toBe(curve.buffer)
+    expect(isRun(Int32Array.from([3, 4, 5]))).toBe(true)
+    expect(isRun(Int32Array.from([3, 5]))).toBe(false)
+    expect(Array.from(take(curve, Int32Array.from([1, 50])))).toEqual([1, 50])
   })
 })

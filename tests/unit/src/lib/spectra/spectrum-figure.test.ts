@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import type { SpectrumData, SpectrumModelCurves } from '../../../../../src/api/spectra-types'
-import { fluxAxisTitle, prepareCurves, residualRange, spectrumLayout, spectrumTraces, windowChange } from '../../../../../src/lib/spectra/spectrum-figure'
+import { fluxAxisTitle, imageLayout, legendItems, prepareCurves, residualRange, spectrumLayout, spectrumTraces, windowChange } from '../../../../../src/lib/spectra/spectrum-figure'
 
 const n = 2000
 const wavelength = Array.from({ length: n }, (_, i) => 6400 + 0.5 * i)
@@ -30,20 +30,24 @@ describe('spectrum figure', () => {
     const c = prepareCurves(spectrum, model)
     const traces = spectrumTraces(c, { range: null, buckets: 400, dark: false, fluxUnit: 1e-17 })
     expect(traces.map((t) => t.name)).toEqual(['error band lower', '±1σ', 'Data', 'Continuum', 'Narrow lines', 'Model', 'Residual'])
-    const residual = traces[6] as { y: (number | null)[]; yaxis: string }
+    const residual = traces[6] as { y: Float64Array; yaxis: string }
     expect(residual.yaxis).toBe('y2')
-    // data = model ± 0.5 with σ = 0.5: every residual is ±1
-    expect(residual.y.filter((v) => v !== null).every((v) => Math.abs(Math.abs(v!) - 1) < 1e-9)).toBe(true)
-    // the two lines are separate runs of one trace, split by a null
-    const narrow = traces[4] as { x: (number | null)[]; text: string[] }
-    expect(narrow.x.filter((v) => v === null).length).toBe(2)
+    // data = model ± 0.5 with σ = 0.5: every residual is ±1; the bad pixel is a gap
+    const r = Array.from(residual.y)
+    expect(r.filter((v) => !Number.isNaN(v)).every((v) => Math.abs(Math.abs(v) - 1) < 1e-9)).toBe(true)
+    expect(r.filter((v) => Number.isNaN(v)).length).toBe(1)
+    // the two lines are separate runs of one trace, split by a NaN gap
+    const narrow = traces[4] as { x: Float64Array; text: string[] }
+    expect(Array.from(narrow.x).filter((v) => Number.isNaN(v)).length).toBe(2)
     expect(new Set(narrow.text.filter(Boolean))).toEqual(new Set(['Hα 6563', '[N II] 6584']))
+    // every curve is a typed array (plotly takes them without copying)
+    for (const t of traces) expect((t as { y: unknown }).y).toBeInstanceOf(Float64Array)
   })
 
   it('draws only the pixels of the zoomed window, all of them', () => {
     const c = prepareCurves(spectrum, model)
     const traces = spectrumTraces(c, { range: [6590, 6610], buckets: 400, dark: false, fluxUnit: 1 })
-    const x = (traces[2] as { x: number[] }).x
+    const x = (traces[2] as { x: Float64Array }).x
     expect(x[0]).toBe(6589.5)
     expect(x[x.length - 1]).toBe(6610.5)
     expect(x.length).toBe(43)
@@ -69,6 +73,32 @@ describe('spectrum figure', () => {
     expect(layout.xaxis?.range).toEqual([6590, 6610])
     expect(layout.yaxis?.autorange).toBe(true)
     expect(spectrumLayout([], { ...o, range: null }, false).yaxis2).toBeUndefined()
+  })
+})
+
+describe('the legend', () => {
+  it('lists the shown curves once each, in order, and hides what is switched off', () => {
+    const c = prepareCurves(spectrum, model)
+    const o = { range: null, buckets: 400, dark: false, fluxUnit: 1 }
+    const items = legendItems(spectrumTraces(c, o))
+    expect(items.map((i) => i.name)).toEqual(['±1σ', 'Data', 'Continuum', 'Narrow lines', 'Model'])
+    expect(items.find((i) => i.name === '±1σ')!.fill).toBeTruthy()
+    expect(items.find((i) => i.name === 'Continuum')!.dash).toBe('dash')
+    // the band is one entry for its two traces
+    const hidden = new Set([items[0].key, 'Model'])
+    const traces = spectrumTraces(c, { ...o, hidden })
+    const visible = (name: string) => (traces.find((t) => t.name === name) as { visible?: boolean }).visible !== false
+    expect(visible('error band lower')).toBe(false)
+    expect(visible('±1σ')).toBe(false)
+    expect(visible('Model')).toBe(false)
+    expect(visible('Data')).toBe(true)
+    expect(legendItems(traces, hidden).filter((i) => i.hidden).map((i) => i.name)).toEqual(['±1σ', 'Model'])
+  })
+
+  it('puts plotly\'s legend into the saved image', () => {
+    const l = imageLayout({ margin: { l: 64, t: 8 }, showlegend: false })
+    expect(l.showlegend).toBe(true)
+    expect(l.margin).toEqual({ l: 64, t: 40 })
   })
 })
 
