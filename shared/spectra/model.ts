@@ -21,6 +21,7 @@ import type { LeastSquaresProblem } from './levenberg-marquardt.ts'
 import { chiSquare, choleskyFactor, choleskySolve } from './levenberg-marquardt.ts'
 import { GAUSS_CUT, gaussianPixelDerivatives, gaussianPixels, lorentzianPixels, voigtPixels } from './profiles.ts'
 import type { SeparableProblem } from './variable-projection.ts'
+import { lowerBound } from './windows.ts'
 
 const C = SPEED_OF_LIGHT_KM_PER_S
 
@@ -122,15 +123,6 @@ export const KINEMATIC_BOUNDS = Object.freeze({
 export const MIN_WIDTH_WITHOUT_INSTRUMENT = 1
 /** Reach of a Gaussian term in σ: a hair beyond the cut of gaussianPixels, which still decides each pixel itself. */
 const GAUSS_REACH = GAUSS_CUT * (1 + 1e-9)
-/** First row in [a, b) with edges[row] ≥ x (edges ascending there). */
-function firstAtLeast(edges: Float64Array, a: number, b: number, x: number): number {
-  while (a < b) {
-    const mid = (a + b) >>> 1
-    if (edges[mid] < x) a = mid + 1
-    else b = mid
-  }
-  return a
-}
 /** First row in [a, b) with edges[row] > x (edges ascending there). */
 function firstAbove(edges: Float64Array, a: number, b: number, x: number): number {
   while (a < b) {
@@ -363,7 +355,7 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
       const sl = lc * s / C
       const sigma = Math.sqrt(sl * sl + tm.sigmaInst * tm.sigmaInst)
       const reach = GAUSS_REACH * sigma
-      const r0 = firstAtLeast(hi, w.start, w.end, lc - reach)
+      const r0 = lowerBound(hi, lc - reach, w.start, w.end)
       const r1 = Math.max(r0, firstAbove(lo, w.start, w.end, lc + reach))
       if (tm.r0 < r0) b.fill(0, tm.r0, Math.min(r0, tm.r1))
       if (tm.r1 > r1) b.fill(0, Math.max(r1, tm.r0), tm.r1)

@@ -16,6 +16,7 @@
 import { SPEED_OF_LIGHT_KM_PER_S } from '../diagnostics/luminosity.ts'
 import { COVERAGE_KM_PER_S } from './lines.ts'
 import { erf } from './faddeeva.ts'
+import { lowerBound } from './windows.ts'
 import type { FitPixels } from './model.ts'
 
 const C = SPEED_OF_LIGHT_KM_PER_S
@@ -92,7 +93,7 @@ export function kinematicMoments(pixels: FitPixels): KinematicMoments | null {
       const a = ft.centre * (1 + (v - r) / C)
       const b = ft.centre * (1 + (v + r) / C)
       let s = 0, s2 = 0, s1 = 0, sq = 0
-      for (let j = lowerBound(lambda, ft.start, ft.end, a); j < ft.end && lambda[j] <= b; j++) {
+      for (let j = lowerBound(lambda, a, ft.start, ft.end); j < ft.end && lambda[j] <= b; j++) {
         const d = hi[j] - lo[j]
         const res = (y[j] - (ft.c0 + (ft.c1 * (lambda[j] - ft.mid)) / ft.half)) * d
         const u = C * (lambda[j] / ft.centre - 1) - v
@@ -160,14 +161,4 @@ export function kinematicMoments(pixels: FitPixels): KinematicMoments | null {
   })
   const intrinsic2 = s * s - broadening2 / flux
   return { velocity: v, sigmaObserved: s, sigmaIntrinsic: intrinsic2 > 0 ? Math.sqrt(intrinsic2) : 0 }
-}
-
-/** First row in [a, b) with values[row] ≥ x (values ascending there). */
-function lowerBound(values: Float64Array, a: number, b: number, x: number): number {
-  while (a < b) {
-    const m = (a + b) >>> 1
-    if (values[m] < x) a = m + 1
-    else b = m
-  }
-  return a
 }

@@ -37,10 +37,8 @@ export function isSpanCovered(lo: ArrayLike<number>, hi: ArrayLike<number>, good
   return filled >= COVERAGE_MIN_FRACTION * (b - a)
 }
 
-/** First index i with values[i] ≥ x (values ascending). */
-export function lowerBound(values: ArrayLike<number>, x: number): number {
-  let a = 0
-  let b = values.length
+/** First index i in [a, b) with values[i] ≥ x (values ascending there); b when there is none. */
+export function lowerBound(values: ArrayLike<number>, x: number, a = 0, b = values.length): number {
   while (a < b) {
     const m = (a + b) >>> 1
     if (values[m] < x) a = m + 1
