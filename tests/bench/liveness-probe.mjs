@@ -27,6 +27,6 @@ if (data.role === 'health') {
   const res = await fetch(data.url, { method: data.method, headers: data.headers, body: data.body })
   const body = Buffer.from(await res.arrayBuffer())
   const ms = performance.now() - t0
-  // small answers come back whole (ids of jobs, problem documents); large ones only by size
-  parentPort.postMessage({ status: res.status, ms, bytes: body.byteLength, json: body.byteLength < 100_000 ? body.toString('utf8') : null })
+  // small answers come back whole (ids of jobs, problem documents); large ones only by size, unless asked for (`whole`)
+  parentPort.postMessage({ status: res.status, ms, bytes: body.byteLength, json: data.whole || body.byteLength < 100_000 ? body.toString('utf8') : null })
 }
