@@ -21,7 +21,7 @@ import { bilinear, lineSigmaInstKmPerS, quantities, quantityErrors, quantityGrad
 import { kinematicMoments } from './start.ts'
 import { variableProjection } from './variable-projection.ts'
 import { NAD, type FitLineId } from './lines.ts'
-import { createSpectrumModel, fluxKey, type SpectrumModel } from './model.ts'
+import { createSpectrumModel, fluxKey, windowPixels, withoutAbsorption, type SpectrumModel } from './model.ts'
 import { prepareSpectrum, setupFit, type FitSetup } from './prepare.ts'
 import { FWHM_PER_SIGMA } from './profiles.ts'
 import type {
@@ -31,7 +31,7 @@ import type {
 const C = SPEED_OF_LIGHT_KM_PER_S
 
 /** Version of the measuring method (changes whenever a result could change). */
-export const SPECTRUM_FIT_METHOD_VERSION = 'spectra-1'
+export const SPECTRUM_FIT_METHOD_VERSION = 'spectra-2'
 
 /** Defaults of the `fit` options (shared/science/README.md §13.10). */
 export const DEFAULT_FIT_OPTIONS: Readonly<ResolvedFitOptions> = Object.freeze({
@@ -112,7 +112,7 @@ function gridSearch(model: SpectrumModel, p: Float64Array, groupIndex: number, c
 
 const clamp = (x: number, lo: number, hi: number): number => Math.min(hi, Math.max(lo, x))
 
-/** Starting grids (project choice, README §13.7): velocities ±600 km/s in steps of 150 km/s (40 km/s for Na I D, whose lines lie only 304 km/s apart), widths spanning narrow lines. */
+/** Starting grids (project choice, README §13.7): velocities ±600 km/s in steps of 150 km/s (80 km/s for Na I D, whose lines lie only 304 km/s apart: below its least observed σ with a resolution), widths spanning narrow lines. */
 function narrowCandidates(profile: SpectrumModel['config']['profile']): [number, number, number][] {
   const out: [number, number, number][] = []
   for (let v = -600; v <= 600; v += 150) {
@@ -120,7 +120,7 @@ function narrowCandidates(profile: SpectrumModel['config']['profile']): [number,
   }
   return out
 }
-const ABSORPTION_CANDIDATES: [number, number, number][] = Array.from({ length: 31 }, (_, i) => -600 + 40 * i)
+const ABSORPTION_CANDIDATES: [number, number, number][] = Array.from({ length: 16 }, (_, i) => -600 + 80 * i)
   .flatMap((v) => [60, 150, 350].map((s): [number, number, number] => [v, s, 0]))
 function broadCandidates(profile: SpectrumModel['config']['profile']): [number, number, number][] {
   return [1000, 1800, 3000].map((w): [number, number, number] => (profile === 'lorentzian' ? [0, 0, w * 0.7] : [0, w, profile === 'voigt' ? 100 : 0]))
@@ -166,13 +166,6 @@ function fitFromScratch(model: SpectrumModel): FitOutcome {
     if (g.kind === 'absorption') p = gridSearch(model, p, gi, ABSORPTION_CANDIDATES)
     if (g.kind === 'broad') p = gridSearch(model, p, gi, broadCandidates(model.config.profile))
   })
-  return runFit(model, p)
-}
-
-function withBroad(cur: FitOutcome, make: (components: 1 | 2, broad: boolean) => SpectrumModel): FitOutcome {
-  const model = make(cur.model.config.components, true)
-  const gi = model.groups.findIndex((g) => g.kind === 'broad')
-  const p = gridSearch(model, transfer(cur, model), gi, broadCandidates(model.config.profile))
   return runFit(model, p)
 }
 
@@ -242,16 +235,109 @@ export function prefersRicher(simple: FitOutcome, rich: FitOutcome, extraDetecte
   return simple.bic - rich.bic > BIC_THRESHOLD && extraDetected
 }
 
-/** Choose components and broad Hα as the options ask (README §13.7). */
-function chooseModel(setup: FitSetup, opts: ResolvedFitOptions, minSnr: number): FitOutcome {
-  const make = (components: 1 | 2, broad: boolean): SpectrumModel =>
-    createSpectrumModel(setup.pixels, { profile: opts.profile, components, broad: broad && setup.broadAllowed, hasInstrument: setup.hasInstrument })
-  const first = fitFromScratch(make(1, opts.broadHalpha === 'on'))
-  let cur = first
-  if (opts.broadHalpha === 'auto' && setup.broadAllowed) {
-    const cand = withBroad(cur, make)
-    if (prefersRicher(cur, cand, broadDetected(cand, minSnr))) cur = cand
+/** The narrow components' kinematics of a fit, by parameter name: what a model of one window holds fixed. */
+function narrowKinematics(o: FitOutcome): Map<string, number> {
+  const held = new Map<string, number>()
+  for (const g of o.model.groups) {
+    if (g.kind !== 'narrow') continue
+    for (const idx of [g.v, g.s, g.g]) if (idx >= 0) held.set(o.model.names[idx], o.p[idx])
   }
+  return held
+}
+
+/** Parameters of a window's fit by name over a start vector of the whole model. */
+function overlay(p: Float64Array, model: SpectrumModel, names: string[], values: Float64Array): Float64Array {
+  const index = new Map(model.names.map((name, i) => [name, i]))
+  names.forEach((name, i) => {
+    const j = index.get(name)
+    if (j !== undefined) p[j] = values[i]
+  })
+  return p
+}
+
+/** A window's fit is a start and a screen, not a result: it stops once a step gains less than this fraction of χ² (project choice). */
+const WINDOW_STALL = 1e-6
+
+/**
+ * A part of the model that lives in one window (broad Hα, Na I D) fitted in that window alone with the
+ * narrow kinematics held at those of `cur` (project choice, README §13.7): its start for the joint fit,
+ * and the χ² of that window with and without it. The windows share no pixels and their continua and
+ * fluxes are solved window by window, so χ² of the whole spectrum with the part and these kinematics is
+ * χ²(cur) − χ²_window(without) + χ²_window(with): an upper bound on the joint fit's χ².
+ */
+function windowFit(cur: FitOutcome, wi: number, config: SpectrumModel['config'], pixels: FitSetup['pixels'], groupKind: 'broad' | 'absorption', candidates: [number, number, number][], covariance = false): { model: SpectrumModel; names: string[]; p: Float64Array; covariance: Float64Array; chi2With: number; chi2Without: number } {
+  const held = narrowKinematics(cur)
+  const sub = windowPixels(pixels, wi)
+  const without = createSpectrumModel(withoutAbsorption(sub), { ...cur.model.config, broad: false }, held)
+  const chi2Without = variableProjection(without.separable, transfer(cur, without), { covariance: false }).chi2
+  const model = createSpectrumModel(sub, config, held)
+  const gi = model.groups.findIndex((g) => g.kind === groupKind)
+  const r = variableProjection(model.separable, gridSearch(model, transfer(cur, model), gi, candidates), { covariance, stallTolerance: WINDOW_STALL })
+  return { model, names: model.names, p: r.p, covariance: r.covariance, chi2With: r.chi2, chi2Without }
+}
+
+/**
+ * Broad Hα in the Hα window first (windowFit); the joint fit only when that alone gains at least half
+ * the Δχ² the BIC test asks for (project choice, README §13.7: the joint fit can only gain more, and a
+ * real broad line gains far more than the threshold), else the narrow fit stands.
+ */
+function tryBroad(cur: FitOutcome, setup: FitSetup, makeEmission: (components: 1 | 2, broad: boolean) => SpectrumModel, minSnr: number): FitOutcome {
+  const pixels = cur.model.pixels
+  const wi = pixels.windows.findIndex((w) => w.lines.some((l) => l.id === 'halpha'))
+  if (wi < 0) return cur
+  const model = makeEmission(cur.model.config.components, true)
+  const part = windowFit(cur, wi, model.config, pixels, 'broad', broadCandidates(model.config.profile))
+  const extra = freeParameters(model) - cur.k
+  const needed = BIC_THRESHOLD + extra * Math.log(setup.pixels.n)
+  if (part.chi2Without - part.chi2With < 0.5 * needed) return cur
+  const cand = runFit(model, overlay(transfer(cur, model), model, part.names, part.p))
+  return prefersRicher(cur, cand, broadDetected(cand, minSnr)) ? cand : cur
+}
+
+/** W(D2) + W(D1) detected in a fit: S/N ≥ minSnr from its covariance. */
+function absorptionDetected(model: SpectrumModel, p: Float64Array, covariance: Float64Array, minSnr: number): boolean {
+  if (!model.ewParam) return false
+  const { d2, d1 } = model.ewParam
+  const k = p.length
+  const ew = p[d2] + p[d1]
+  const variance = covariance[d2 * k + d2] + covariance[d1 * k + d1] + 2 * covariance[d2 * k + d1]
+  return ew > 0 && variance > 0 && ew >= minSnr * Math.sqrt(variance)
+}
+
+/**
+ * Na I D in its window first (windowFit), then the joint fit of everything from there (README §13.7).
+ * Where the window finds no Na I D, its velocity and width are held in the joint fit at the window's
+ * values (without absorption they shape nothing, and a fit of them only wanders): the equivalent widths
+ * stay free and give the limit; should they still come out detected, the joint fit is rerun with all free.
+ */
+function addAbsorption(cur: FitOutcome, setup: FitSetup, make: (components: 1 | 2, broad: boolean, held?: ReadonlyMap<string, number>) => SpectrumModel, minSnr: number): FitOutcome {
+  const wi = setup.pixels.windows.findIndex((w) => w.absorption.length > 0)
+  const model = make(cur.model.config.components, cur.model.config.broad)
+  if (wi < 0 || !model.ewParam) return cur
+  const part = windowFit(cur, wi, { ...model.config, broad: false }, setup.pixels, 'absorption', ABSORPTION_CANDIDATES, true)
+  const start = overlay(transfer(cur, model), model, part.names, part.p)
+  if (absorptionDetected(part.model, part.p, part.covariance, minSnr)) return runFit(model, start)
+  const g = model.groups.find((x) => x.kind === 'absorption') as SpectrumModel['groups'][number]
+  const heldModel = make(cur.model.config.components, cur.model.config.broad, new Map([g.v, g.s].map((j) => [model.names[j], start[j]])))
+  const held = runFit(heldModel, start)
+  return absorptionDetected(held.model, held.p, held.covariance, minSnr) ? runFit(model, held.p) : held
+}
+
+/**
+ * Choose components and broad Hα as the options ask (README §13.7): the emission lines first (Na I D
+ * taken out of its window), broad Hα, then Na I D and the joint fit, then a second component.
+ */
+function chooseModel(setup: FitSetup, opts: ResolvedFitOptions, minSnr: number): FitOutcome {
+  const emissionPixels = withoutAbsorption(setup.pixels)
+  const config = (components: 1 | 2, broad: boolean) => ({ profile: opts.profile, components, broad: broad && setup.broadAllowed, hasInstrument: setup.hasInstrument })
+  const make = (components: 1 | 2, broad: boolean, held?: ReadonlyMap<string, number>): SpectrumModel => createSpectrumModel(setup.pixels, config(components, broad), held)
+  const makeEmission = (components: 1 | 2, broad: boolean): SpectrumModel => createSpectrumModel(emissionPixels, config(components, broad))
+  const narrow = fitFromScratch(makeEmission(1, opts.broadHalpha === 'on'))
+  const withBroad = opts.broadHalpha === 'auto' && setup.broadAllowed ? tryBroad(narrow, setup, makeEmission, minSnr) : narrow
+  let cur = addAbsorption(withBroad, setup, make, minSnr)
+  const joint = cur
+  // the one-component fit without broad Hα, the second route below
+  const first = (): FitOutcome => (withBroad === narrow ? joint : addAbsorption(narrow, setup, make, minSnr))
   if (opts.components === 2) cur = withTwoComponents(cur, make)
   else if (opts.components === 'auto') {
     const cand = withTwoComponents(cur, make)
@@ -260,7 +346,7 @@ function chooseModel(setup: FitSetup, opts: ResolvedFitOptions, minSnr: number):
   if (opts.broadHalpha === 'auto' && cur.model.config.components === 2 && cur.model.config.broad) {
     // two narrow components without broad Hα, from both routes (the broad line can hold a local minimum)
     const a = withoutBroad(cur, make)
-    const b = withTwoComponents(first, make)
+    const b = withTwoComponents(first(), make)
     const cand = b.chi2 < a.chi2 ? b : a
     if (!prefersRicher(cand, cur, broadDetected(cur, minSnr))) cur = cand
   }

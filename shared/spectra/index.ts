@@ -17,7 +17,7 @@ export {
 } from './lines.ts'
 export { isCovered, sidebandContinuum } from './windows.ts'
 export { chiSquare, levenbergMarquardt, type LeastSquaresProblem, type LeastSquaresResult } from './levenberg-marquardt.ts'
-export { createSpectrumModel, KINEMATIC_BOUNDS, type ModelConfig, type ProfileKind, type SpectrumModel } from './model.ts'
+export { createSpectrumModel, KINEMATIC_BOUNDS, windowPixels, withoutAbsorption, type ModelConfig, type ProfileKind, type SpectrumModel } from './model.ts'
 export { prepareSpectrum, setupFit } from './prepare.ts'
 export { instrumentalSigmaAngstrom } from './resolution.ts'
 export {

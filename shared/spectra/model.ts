@@ -209,10 +209,11 @@ interface PixelWork {
   /** columns of the non-linear parameters, as many as the largest model needed so far */
   columns: Float64Array[]
 }
-const pixelWork = new WeakMap<FitPixels, PixelWork>()
+/** keyed by the wavelength array, so that views of the same pixels (withoutAbsorption) share their work arrays */
+const pixelWork = new WeakMap<Float64Array, PixelWork>()
 
 function workOf(pixels: FitPixels): PixelWork {
-  let w = pixelWork.get(pixels)
+  let w = pixelWork.get(pixels.lambda)
   if (!w) {
     const n = pixels.n
     const buffer = new ArrayBuffer(8 * 9 * n)
@@ -220,7 +221,7 @@ function workOf(pixels: FitPixels): PixelWork {
     for (const win of pixels.windows) for (let j = win.start; j < win.end; j++) t[j] = (pixels.lambda[j] - win.mid) / win.half
     damp.fill(1)
     w = { t, dCentre, dSigma, damp, model, weighted, fd: [f0, f1, f2], columns: [] }
-    pixelWork.set(pixels, w)
+    pixelWork.set(pixels.lambda, w)
   }
   return w
 }
@@ -231,13 +232,29 @@ function workColumns(work: PixelWork, n: number, count: number): Float64Array[] 
   return work.columns
 }
 
+/** The same fit pixels with the Na I D lines taken out of their window (its continuum and He I 5876 stay): an emission-only model. */
+export function withoutAbsorption(pixels: FitPixels): FitPixels {
+  return { ...pixels, windows: pixels.windows.map((w) => (w.absorption.length ? { ...w, absorption: [] } : w)) }
+}
+
+/** One window of the fit pixels on its own (views, not copies): a model of that window alone. */
+export function windowPixels(pixels: FitPixels, wi: number): FitPixels {
+  const w = pixels.windows[wi]
+  const view = (a: Float64Array): Float64Array => a.subarray(w.start, w.end)
+  return {
+    n: w.end - w.start, lambda: view(pixels.lambda), lo: view(pixels.lo), hi: view(pixels.hi), y: view(pixels.y), sigma: view(pixels.sigma), weight: view(pixels.weight),
+    windows: [{ ...w, start: 0, end: w.end - w.start }],
+  }
+}
+
 /**
  * Build the model of a configuration.
  *
  * @param pixels  fit pixels and windows
  * @param config  profile, number of narrow components, broad Hα, whether a resolution is known
+ * @param held    parameters held at a value by name (bounds [x, x]: neither iterated nor counted as free)
  */
-export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): SpectrumModel {
+export function createSpectrumModel(pixels: FitPixels, config: ModelConfig, held?: ReadonlyMap<string, number>): SpectrumModel {
   const { n, windows } = pixels
   const names: string[] = []
   const lower: number[] = []
@@ -317,6 +334,12 @@ export function createSpectrumModel(pixels: FitPixels, config: ModelConfig): Spe
     }
   }
   const k = names.length
+  if (held) {
+    names.forEach((name, j) => {
+      const x = held.get(name)
+      if (x !== undefined) lower[j] = upper[j] = x
+    })
+  }
   const { lo, hi, lambda } = pixels
   const shared = workOf(pixels)
   const { t, dCentre, dSigma } = shared
@@ -696,7 +719,7 @@ function separableOf(m: SeparableParts): SeparableProblem {
   const { weight, y } = pixels
   const nonlinearList: number[] = []
   for (const gr of groups) for (const idx of [gr.v, gr.s, gr.g]) if (idx >= 0 && upper[idx] > lower[idx]) nonlinearList.push(idx)
-  if (ewParam) nonlinearList.push(ewParam.d2, ewParam.d1)
+  if (ewParam) for (const idx of [ewParam.d2, ewParam.d1]) if (upper[idx] > lower[idx]) nonlinearList.push(idx)
   const nonlinear = Int32Array.from(nonlinearList)
   const nk = nonlinear.length
   const position = new Int32Array(k).fill(-1)

@@ -11,7 +11,8 @@
  * g = DᵀW(y − m) (BᵀW(y − m) = 0 at the projection). Levenberg–Marquardt on α: (S + λ diag S) δ = g,
  * λ ÷10 after a better step and ×10 after a worse one (Marquardt 1963), bounds on α held or clipped
  * as in levenberg-marquardt.ts. Stop when the undamped Gauss–Newton step would gain less than
- * 10⁻¹² χ² (its predicted gain is the decrement gᵀS⁻¹g over the free parameters), or when no step helps.
+ * 10⁻¹² χ² (its predicted gain is the decrement gᵀS⁻¹g over the free parameters), or when no step helps:
+ * a damped step is tried only while the gain it predicts, 2gᵀδ − δᵀSδ, is above that tolerance.
  *
  * The errors are those of the full model, not the conditional ones given α: at the solution the full
  * α = JᵀWJ over every parameter (linear and non-linear, one Jacobian) is assembled and inverted
@@ -41,6 +42,8 @@ export interface ProjectionOptions {
   relativeTolerance?: number
   /** compute the covariance at the end (default true; the Monte Carlo refits need only p) */
   covariance?: boolean
+  /** also stop when an accepted step gains less than this fraction of χ² (default 0: off; for starts, not for results) */
+  stallTolerance?: number
 }
 
 /**
@@ -52,6 +55,7 @@ export function variableProjection(problem: SeparableProblem, p0: Float64Array, 
   const maxIterations = options.maxIterations ?? 200
   const tol = options.relativeTolerance ?? 1e-12
   const wantCovariance = options.covariance ?? true
+  const stall = options.stallTolerance ?? 0
   const { lower, upper, nonlinear } = problem
   const k = p0.length
   const nk = nonlinear.length
@@ -101,9 +105,19 @@ export function variableProjection(problem: SeparableProblem, p0: Float64Array, 
         if (trial[j] !== p[j]) moved = true
       }
       if (!moved) break
+      // the gain the quadratic model predicts for this step, 2gᵀδ − δᵀSδ: once below the tolerance a
+      // smaller step cannot help beyond rounding, so p is the minimum (no more damped trials)
+      let predicted = 0
+      for (let a = 0; a < nk; a++) {
+        let sd = 0
+        for (let b = 0; b < nk; b++) sd += s[a * nk + b] * delta[b]
+        predicted += delta[a] * (2 * g[a] - sd)
+      }
+      if (!(predicted > tol * Math.max(chi2, 1))) break
       const chi2Trial = problem.project(trial)
       atP = false
       if (chi2Trial <= chi2) {
+        if (chi2 - chi2Trial < stall * chi2) converged = true
         chi2 = chi2Trial
         p.set(trial)
         atP = true
@@ -113,7 +127,7 @@ export function variableProjection(problem: SeparableProblem, p0: Float64Array, 
       }
       lambda *= 10
     }
-    if (!accepted) {
+    if (!accepted || converged) {
       converged = true
       break
     }
