@@ -2,6 +2,7 @@
 // per spectrum, so a batch spreads over every thread. Pure: the same function runs in-process.
 import { fitSpectrum, SPECTRUM_FIT_METHOD_VERSION } from '../../shared/spectra/fit.ts'
 import { modelOf as redraw } from '../../shared/spectra/redraw.ts'
+import { flagName } from '../../shared/vocabulary/flags.ts'
 import type { Resolution, SpectrumFitResult, SpectrumInput } from '../../shared/spectra/types.ts'
 import type { FitOptionsDto } from '../../shared/schemas/fit-options.schema.ts'
 
@@ -10,6 +11,8 @@ export interface StoredSpectrumArrays {
   galaxyId: string
   redshift: number
   fluxUnit: number
+  /** no flux unit was given: the fit carries flux-unit-assumed */
+  fluxUnitAssumed?: boolean
   wavelengthMedium: 'air' | 'vacuum'
   resolution: Resolution | null
   wavelength: Float64Array
@@ -41,8 +44,11 @@ export function spectrumInput(s: StoredSpectrumArrays): SpectrumInput {
 export function fitSpectrumTask(task: FitSpectrumTask): FitSpectrumOutput {
   const { minSnr, ...options } = task.settings
   try {
-    const input = 'noiseKind' in task.spectrum ? spectrumInput(task.spectrum) : task.spectrum
-    return { ok: true, result: fitSpectrum(input, options, { minSnr }) }
+    const stored = 'noiseKind' in task.spectrum ? task.spectrum : null
+    const result = fitSpectrum(stored ? spectrumInput(stored) : task.spectrum as SpectrumInput, options, { minSnr })
+    // a stored spectrum's fluxes rest on the unit it was stored with (a request's spectrum says its own)
+    if (stored?.fluxUnitAssumed) result.flags.push(flagName('flux-unit-assumed'))
+    return { ok: true, result }
   } catch (err) {
     // a spectrum the fit cannot take (the upload's checks should have refused it): reported, not thrown,
     // so one spectrum does not stop a batch

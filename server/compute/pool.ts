@@ -7,7 +7,7 @@ import { diagnoseTask, isFailure, type DiagnoseTask, type OutputMode, type TaskF
 import { GALAXY_COST } from './budget.ts'
 import { encodeDiagramTask, type DiagramTask } from './diagram.task.ts'
 import { parseBodyTask, type ParseBodyOutput, type ParseBodyTask } from './parse-body.task.ts'
-import { readSpectraTask, type ReadSpectraOutput, type ReadSpectraTask } from './read-spectra.task.ts'
+import { readSpectraTask, type DeflatedEntry, type ReadSpectraOutput, type ReadSpectraTask } from './read-spectra.task.ts'
 import { fitSpectrumTask, type FitSpectrumOutput, type FitSpectrumTask } from './fit-spectra.task.ts'
 
 /** The pool's part of the configuration (server/config.ts). */
@@ -29,7 +29,7 @@ export interface ComputeOptions {
 export interface ComputePool {
   readonly threads: number
   readonly closed: boolean
-  /** chunks waiting for a thread */
+  /** chunks waiting for a thread ahead of the background spectrum fits (what a new request would queue behind) */
   readonly queued: number
   /** Runs the science chain over `galaxies` in chunks; one output per chunk, in order. */
   run(mode: OutputMode, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<TaskOutput[]>
@@ -41,10 +41,10 @@ export interface ComputePool {
    * like background work (no 503 for a full queue), under the time budget of one chunk.
    */
   parseBody(task: Omit<ParseBodyTask, 'kind'>, signal?: AbortSignal): Promise<ParseBodyOutput>
-  /** Reads one spectrum file (FITS or text) and checks its spectra; the bytes are handed over, not copied. */
-  readSpectra(bytes: Uint8Array): Promise<ReadSpectraOutput>
+  /** Reads one spectrum file (FITS or text; a deflated zip entry is expanded first) and checks its spectra; the bytes are handed over (a view into a larger buffer is copied first). */
+  readSpectra(bytes: Uint8Array, deflated?: DeflatedEntry): Promise<ReadSpectraOutput>
   /**
-   * Fits one spectrum. Background work waits its turn; `interactive` (a request waiting for the
+   * Fits one spectrum. Background work waits behind all other work; `interactive` (a request waiting for the
    * answer) is refused with 503 when the queue is full and stopped at the time budget.
    */
   fitSpectrum(task: Omit<FitSpectrumTask, 'kind'>, opts?: { interactive?: boolean }): Promise<FitSpectrumOutput>
@@ -132,27 +132,30 @@ export function createComputePool(s: ComputeSettings): ComputePool {
   // Our own first-come-first-served queue: piscina keeps abortable tasks in a queue that, under steady
   // load, serves them out of order (bench:liveness saw p50 5 ms beside p99 1–10 s), so a chunk goes to
   // piscina only when a thread is free.
+  // Two lanes: work someone waits for (requests, the diagnostics of a chunk being written) goes before
+  // the background spectrum fits of jobs, which can queue by the thousand.
   interface Job { task: object; signal?: AbortSignal; transferList?: ArrayBuffer[]; ok: (v: unknown) => void; fail: (e: unknown) => void; dequeued: () => void }
   const waiting: Job[] = []
+  const background: Job[] = []
   let running = 0
   const pump = () => {
-    while (running < threads && waiting.length > 0) {
-      const job = waiting.shift()!
+    while (running < threads && (waiting.length > 0 || background.length > 0)) {
+      const job = (waiting.length > 0 ? waiting : background).shift()!
       job.dequeued()
       if (job.signal?.aborted) { job.fail(job.signal.reason); continue }
       running++
       piscina.run(job.task, { signal: job.signal, transferList: job.transferList as never }).then(job.ok, job.fail).finally(() => { running--; pump() })
     }
   }
-  const submit = <T>(task: object, signal?: AbortSignal, transferList?: ArrayBuffer[]) => new Promise<T>((ok, fail) => {
+  const submit = <T>(task: object, signal?: AbortSignal, transferList?: ArrayBuffer[], lane: Job[] = waiting) => new Promise<T>((ok, fail) => {
     // a request's deadline is shared by all its chunks: the listener goes when the chunk leaves the queue
     const onAbort = () => {
-      const i = waiting.indexOf(job)
-      if (i >= 0) { waiting.splice(i, 1); job.dequeued(); fail(signal!.reason) }
+      const i = lane.indexOf(job)
+      if (i >= 0) { lane.splice(i, 1); job.dequeued(); fail(signal!.reason) }
     }
     const job: Job = { task, signal, transferList, ok: ok as (v: unknown) => void, fail, dequeued: () => signal?.removeEventListener('abort', onAbort) }
     signal?.addEventListener('abort', onAbort)
-    waiting.push(job)
+    lane.push(job)
     pump()
   })
   let closed = false
@@ -171,21 +174,24 @@ export function createComputePool(s: ComputeSettings): ComputePool {
         whole ? [task.bytes.buffer as ArrayBuffer] : undefined)
         .catch((err: unknown) => { throw deadline?.aborted ? tooLong(s.computeTimeoutMs) : signal?.aborted ? gone() : err })
     },
-    readSpectra: (bytes) => {
-      const whole = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength && bytes.buffer instanceof ArrayBuffer
+    readSpectra: (view, deflated) => {
+      // a view into a larger buffer (a zip entry in its archive) is copied: posted as it is, the whole
+      // buffer underneath would be cloned for every entry
+      const whole = view.byteOffset === 0 && view.byteLength === view.buffer.byteLength && view.buffer instanceof ArrayBuffer
+      const bytes = whole ? view : new Uint8Array(view)
       const deadline = timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined
-      return submit<ReadSpectraOutput>({ kind: 'read-spectra', bytes } satisfies ReadSpectraTask, deadline, whole ? [bytes.buffer as ArrayBuffer] : undefined)
+      return submit<ReadSpectraOutput>({ kind: 'read-spectra', bytes, ...(deflated ? { deflated } : {}) } satisfies ReadSpectraTask, deadline, [bytes.buffer as ArrayBuffer])
         .catch((err: unknown) => { throw deadline?.aborted ? tooLong(s.computeTimeoutMs) : err })
     },
     fitSpectrum: (task, opts = {}) => {
       if (opts.interactive && waiting.length >= s.computeQueue) return Promise.reject(busy())
       const deadline = timed ? AbortSignal.timeout(s.computeTimeoutMs) : undefined
-      return submit<FitSpectrumOutput>({ kind: 'fit-spectrum', ...task } satisfies FitSpectrumTask, deadline)
+      return submit<FitSpectrumOutput>({ kind: 'fit-spectrum', ...task } satisfies FitSpectrumTask, deadline, undefined, opts.interactive ? waiting : background)
         .catch((err: unknown) => { throw deadline?.aborted ? tooLong(s.computeTimeoutMs) : err })
     },
     async close() {
       closed = true
-      for (const job of waiting.splice(0)) job.fail(new Error('the compute pool was closed'))
+      for (const job of [...waiting.splice(0), ...background.splice(0)]) job.fail(new Error('the compute pool was closed'))
       await piscina.destroy()
     },
   }
@@ -198,7 +204,7 @@ export function inProcessCompute(s: ComputeSettings = { computeThreads: 1, compu
     threads: 1, closed: false, queued: 0, run: runner(1, exec, () => 0, s),
     encodeDiagram: async (json) => encodeDiagramTask({ kind: 'diagram', json }),
     parseBody: async (task) => parseBodyTask({ kind: 'parse-body', ...task }),
-    readSpectra: async (bytes) => readSpectraTask({ kind: 'read-spectra', bytes }),
+    readSpectra: async (bytes, deflated) => readSpectraTask({ kind: 'read-spectra', bytes, ...(deflated ? { deflated } : {}) }),
     fitSpectrum: async (task) => fitSpectrumTask({ kind: 'fit-spectrum', ...task }),
     async close() {},
   }

@@ -293,6 +293,8 @@ export const spectra = pgTable('spectra', {
   wavelengthMedium: text().notNull(), // 'air' | 'vacuum'
   /** erg s⁻¹ cm⁻² Å⁻¹ per flux unit */
   fluxUnit: doublePrecision().notNull().default(1),
+  /** neither the file nor the upload's defaults gave a flux unit: 1 was assumed (the fits carry flux-unit-assumed) */
+  fluxUnitAssumed: boolean().notNull().default(false),
   /** the instrument's line-spread FWHM: { fwhmAngstrom } | { fwhmKmPerS } | { resolvingPower } */
   resolution: jsonb(),
   pixels: integer().notNull(),

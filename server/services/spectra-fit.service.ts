@@ -25,8 +25,14 @@ type Executor = Db | Tx
 type SpectrumRow = typeof spectra.$inferSelect
 type JobRow = typeof jobs.$inferSelect
 
-/** Spectra fitted and written together: one committed step of the job (its progress and resume point). */
-const FIT_CHUNK = 16
+/**
+ * Spectra fitted and written together: one committed step of the job (its progress and resume point).
+ * The first chunk is small, so the first galaxies show soon; each next one doubles up to the largest,
+ * whose writes cost little per spectrum (the project is locked while a chunk is written). The next
+ * chunk is fitted while one is written, so the threads keep fitting through the writes.
+ */
+const FIT_CHUNK_FIRST = 16
+const FIT_CHUNK_MAX = 128
 
 /** The fit result as stored (the science library's shape; a fit that failed keeps only its error). */
 interface StoredFit {
@@ -177,11 +183,24 @@ async function runFitJob(lease: JobLease, job: JobRow, ctx: GalaxyContext) {
   let lastId = job.lastId, done = job.done
   const [{ n }] = await db.select({ n: sql<number>`count(*)::int` }).from(spectra).where(and(eq(spectra.uploadId, uploadId), gt(spectra.id, lastId)))
   await lease.db.update(jobs).set({ total: done + n }).where(eq(jobs.id, job.id))
-  for (;;) {
-    const rows = await db.select().from(spectra).where(and(eq(spectra.uploadId, uploadId), gt(spectra.id, lastId))).orderBy(asc(spectra.id)).limit(FIT_CHUNK)
-    if (!rows.length) break
+  let size = FIT_CHUNK_FIRST
+  const fitAfter = async (after: number) => {
+    const limit = size
+    size = Math.min(FIT_CHUNK_MAX, 2 * size)
+    const rows = await db.select().from(spectra).where(and(eq(spectra.uploadId, uploadId), gt(spectra.id, after))).orderBy(asc(spectra.id)).limit(limit)
+    if (!rows.length) return null
     const planned = await revisionsToCompute(db, projectId)
-    let fits = await fitsFor(db, ctx.compute, rows, planned)
+    return { rows, planned, fits: await fitsFor(db, ctx.compute, rows, planned) }
+  }
+  let next = fitAfter(lastId)
+  for (;;) {
+    const chunk = await next
+    if (!chunk) break
+    const { rows, planned } = chunk
+    let { fits } = chunk
+    next = fitAfter(rows[rows.length - 1].id)
+    // should the write below fail, the job stops there and this chunk's fits are never awaited
+    next.catch(() => {})
     await writingGalaxies(ctx, projectId, () => lease.db.transaction(async (tx) => {
       await tx.select({ id: projects.id }).from(projects).where(eq(projects.id, projectId)).for('update')
       const plans = await revisionsToCompute(tx, projectId)

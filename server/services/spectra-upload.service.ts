@@ -4,12 +4,13 @@ import { randomUUID } from 'node:crypto'
 import { mkdirSync } from 'node:fs'
 import { readFile, rm } from 'node:fs/promises'
 import { basename, extname, join } from 'node:path'
+import { crc32 } from 'node:zlib'
 import yauzl from 'yauzl'
 import type { z } from 'zod'
 import { HttpProblem } from '../http/problem.ts'
 import { parseRequest } from '../http/parse-request.ts'
 import type { ComputePool } from '../compute/pool.ts'
-import type { ReadProblem, ReadSpectrum } from '../compute/read-spectra.task.ts'
+import type { DeflatedEntry, ReadProblem, ReadSpectraOutput, ReadSpectrum } from '../compute/read-spectra.task.ts'
 import { CONTROL_MESSAGE, isCleanText, textLine } from '../../shared/schemas/text.ts'
 import { SPECTRA_PER_UPLOAD_MAX, SPECTRUM_FILE_EXTENSIONS, SPECTRUM_PIXELS_MAX } from '../../shared/schemas/project-spectra.schema.ts'
 
@@ -88,13 +89,41 @@ const isSpectrumFile = (name: string) => (SPECTRUM_FILE_EXTENSIONS as readonly s
 const isArchiveClutter = (path: string) => path.endsWith('/') || path.startsWith('__MACOSX/') || basename(path).startsWith('.')
 const wrongKind = (name: string) => ({ path: '', message: `"${name}" is not a spectrum file: send ${SPECTRUM_FILE_EXTENSIONS.join(' ')} files, or a .zip of them` })
 
-interface RawFile { name: string; size: number; bytes?: Uint8Array; problem?: ReadProblem }
+/** A file of the upload: its bytes (a zip entry's as stored, deflated ones expanded on the compute thread that reads them) or why it is refused. */
+interface RawFile { name: string; size: number; bytes?: Promise<Uint8Array>; deflated?: DeflatedEntry; problem?: ReadProblem }
+
+const expansionProblem = (err: unknown): ReadProblem => ({ path: '', message: `the file cannot be read: ${(err as Error).message}` })
+
+/**
+ * An entry's data as stored, sliced from the archive in memory after its local header (APPNOTE.TXT
+ * 4.3.7: signature, then the name and extra lengths at offsets 26 and 28). Only "stored" (0) and
+ * "deflate" (8), unencrypted, are taken.
+ */
+function entryData(zip: Buffer, entry: yauzl.Entry): { bytes: Uint8Array; deflated?: DeflatedEntry } | ReadProblem {
+  if (entry.isEncrypted()) return { path: '', message: 'the entry is encrypted; send the archive without a password' }
+  if (entry.compressionMethod !== 0 && entry.compressionMethod !== 8) return { path: '', message: `the entry is compressed with method ${entry.compressionMethod}; use deflate (the usual zip compression) or none` }
+  const h = entry.relativeOffsetOfLocalHeader
+  if (h + 30 > zip.length || zip.readUInt32LE(h) !== 0x04034b50) return { path: '', message: 'the archive is damaged: the entry\'s local header is missing' }
+  const start = h + 30 + zip.readUInt16LE(h + 26) + zip.readUInt16LE(h + 28)
+  if (start + entry.compressedSize > zip.length) return { path: '', message: 'the archive is damaged: the entry runs past its end' }
+  const bytes = zip.subarray(start, start + entry.compressedSize)
+  if (entry.compressionMethod === 0) {
+    if (entry.compressedSize !== entry.uncompressedSize) return { path: '', message: 'the archive is damaged: a stored entry\'s sizes differ' }
+    if (crc32(bytes) !== entry.crc32) return { path: '', message: 'the entry is damaged: its CRC-32 does not match its archive\'s' }
+    return { bytes }
+  }
+  return { bytes, deflated: { size: entry.uncompressedSize, crc32: entry.crc32 } }
+}
 
 /** A zip's spectrum files, their sizes checked from the central directory before any is expanded. */
 async function* zipEntries(file: UploadedFile, fileLimitBytes: number): AsyncGenerator<RawFile> {
   let zip: yauzl.ZipFile
+  let buffer: Buffer
   try {
-    zip = await yauzl.openPromise(file.path, { autoClose: false, decodeStrings: true, validateEntrySizes: true, strictFileNames: false })
+    // in memory: yauzl reads the directory, each entry's data is sliced out (entryData) — its streams
+    // cost about a millisecond an entry on the event loop
+    buffer = await readFile(file.path)
+    zip = await yauzl.fromBufferPromise(buffer, { autoClose: false, decodeStrings: true, validateEntrySizes: true, strictFileNames: false })
   } catch (err) {
     yield { name: file.originalname, size: file.size, problem: { path: '', message: `the archive cannot be opened: ${(err as Error).message}` } }
     return
@@ -122,19 +151,18 @@ async function* zipEntries(file: UploadedFile, fileLimitBytes: number): AsyncGen
       const name = `${file.originalname}/${printable(entry.fileName)}`
       if (!isCleanText(entry.fileName)) { yield { name, size: entry.uncompressedSize, problem: { path: '', message: `the name of "${name}" in the archive ${CONTROL_MESSAGE}` } }; continue }
       if (!isSpectrumFile(entry.fileName)) { yield { name, size: entry.uncompressedSize, problem: wrongKind(entry.fileName) }; continue }
-      try {
-        const chunks: Buffer[] = []
-        for await (const chunk of await zip.openReadStreamPromise(entry)) chunks.push(chunk as Buffer)
-        yield { name, size: entry.uncompressedSize, bytes: new Uint8Array(Buffer.concat(chunks)) }
-      } catch (err) {
-        // sizes that differ from the directory's (validateEntrySizes), a broken deflate stream
-        yield { name, size: entry.uncompressedSize, problem: { path: '', message: `the entry cannot be expanded: ${(err as Error).message}` } }
-      }
+      const data = entryData(buffer, entry)
+      if ('message' in data) { yield { name, size: entry.uncompressedSize, problem: data }; continue }
+      yield { name, size: entry.uncompressedSize, bytes: Promise.resolve(data.bytes), ...(data.deflated ? { deflated: data.deflated } : {}) }
     }
   } finally {
     zip.close()
   }
 }
+
+/** Files expanded and read ahead of the one being stored: expansion waits on zlib's threads, reading on ours. */
+const READ_AHEAD = 16
+const READ_AHEAD_BYTES = 32 * 1024 * 1024
 
 /**
  * Every spectrum file of an upload, in order, each read and checked on a compute thread. More than
@@ -142,18 +170,29 @@ async function* zipEntries(file: UploadedFile, fileLimitBytes: number): AsyncGen
  * answers 413 at once (`counted` is the spectra read so far).
  */
 export async function* readUpload(pool: ComputePool, files: UploadedFile[], fileLimitBytes: number): AsyncGenerator<FileOutcome> {
-  let index = 0, count = 0
-  for (const file of files) {
-    const raws: AsyncIterable<RawFile> = isZip(file.originalname)
-      ? zipEntries(file, fileLimitBytes)
-      : (async function* () {
-        if (!isSpectrumFile(file.originalname)) yield { name: file.originalname, size: file.size, problem: wrongKind(file.originalname) }
-        else yield { name: file.originalname, size: file.size, bytes: new Uint8Array(await readFile(file.path)) }
-      })()
-    for await (const raw of raws) {
-      const i = index++
+  let count = 0
+  // files are expanded and read on the compute threads ahead of the one being stored (up to READ_AHEAD
+  // files and READ_AHEAD_BYTES), and yielded in order
+  const queue: Array<{ i: number; raw: RawFile; out?: Promise<ReadSpectraOutput> }> = []
+  const source = rawFiles(files, fileLimitBytes)
+  let index = 0, drained = false
+  const queuedBytes = () => queue.reduce((a, q) => a + q.raw.size, 0)
+  try {
+    for (;;) {
+      while (!drained && (queue.length === 0 || (queue.length < READ_AHEAD && queuedBytes() < READ_AHEAD_BYTES))) {
+        const next = await source.next()
+        if (next.done) { drained = true; break }
+        const raw = next.value
+        const out = raw.problem ? undefined : raw.bytes!.then((b) => pool.readSpectra(b, raw.deflated), (err: unknown) => ({ ok: false as const, problems: [expansionProblem(err)] }))
+        // a read that is never awaited (the upload was refused first) must not reject unhandled
+        out?.catch(() => {})
+        queue.push({ i: index++, raw, out })
+      }
+      const item = queue.shift()
+      if (!item) break
+      const { i, raw } = item
       if (raw.problem) { yield { index: i, name: raw.name, size: raw.size, problems: [raw.problem] }; continue }
-      const out = await pool.readSpectra(raw.bytes!)
+      const out = await item.out!
       if (out.ok) {
         count += out.spectra.length
         if (count > SPECTRA_PER_UPLOAD_MAX) throw tooLarge(`more than ${SPECTRA_PER_UPLOAD_MAX} spectra; one upload takes at most ${SPECTRA_PER_UPLOAD_MAX}`)
@@ -164,6 +203,17 @@ export async function* readUpload(pool: ComputePool, files: UploadedFile[], file
         yield { index: i, name: raw.name, size: raw.size, problems: out.problems }
       }
     }
+  } finally {
+    await source.return(undefined)
+  }
+}
+
+/** Every file of the upload as bytes or a problem: plain files, and the entries of zips. */
+async function* rawFiles(files: UploadedFile[], fileLimitBytes: number): AsyncGenerator<RawFile> {
+  for (const file of files) {
+    if (isZip(file.originalname)) yield* zipEntries(file, fileLimitBytes)
+    else if (!isSpectrumFile(file.originalname)) yield { name: file.originalname, size: file.size, problem: wrongKind(file.originalname) }
+    else yield { name: file.originalname, size: file.size, bytes: readFile(file.path).then((b) => new Uint8Array(b)) }
   }
 }
 

@@ -56,6 +56,7 @@ export const UploadFileSchema = z.object({
   spectra: z.array(z.object({
     galaxyId: z.string(), pixels: z.number().int(), source: z.string(),
     spectrumId: z.number().int().nullable().meta({ description: 'null when skipped' }), stored: StoredAsSchema,
+    fluxUnitAssumed: z.literal(true).optional().meta({ description: 'neither the file nor `defaults` gave a flux unit: 1 erg s⁻¹ cm⁻² Å⁻¹ was assumed (its fits carry the flux-unit-assumed caution)' }),
   })).optional(),
   error: z.object({ message: z.string(), line: z.number().int().optional() }).optional().meta({ description: 'why the file was refused (only with skipInvalid)' }),
 }).meta({ id: 'SpectrumUploadFile' })

@@ -30,7 +30,12 @@ export type FlagSeverity = 'caution' | 'info'
 export interface FlagFamily {
   severity: FlagSeverity
   text: (arg: string) => string
+  /** what the flag's argument names (`not-covered:halpha` → a line), for families written with one */
+  argument?: FlagArgument
 }
+
+/** What a family's argument names: the family's text reads it into the sentence. */
+export type FlagArgument = 'line' | 'diagram' | 'curve' | 'ratio' | 'doublet' | 'ion'
 
 /** One flag in words, for a galaxy page. */
 export interface FlagCaution { flag: string; text: string; severity: FlagSeverity }
@@ -64,8 +69,8 @@ function curveOnDiagram(key: string): string {
   return `${curve === undefined ? key : curveName(curve)} ${diagram ? diagramShortLabel(diagram) : ''}`.trim()
 }
 
-const caution = (text: FlagFamily['text']): FlagFamily => ({ severity: 'caution', text })
-const info = (text: FlagFamily['text']): FlagFamily => ({ severity: 'info', text })
+const caution = (text: FlagFamily['text'], argument?: FlagArgument): FlagFamily => ({ severity: 'caution', text, ...(argument ? { argument } : {}) })
+const info = (text: FlagFamily['text'], argument?: FlagArgument): FlagFamily => ({ severity: 'info', text, ...(argument ? { argument } : {}) })
 
 // ── the families ─────────────────────────────────────────────────────────────────────────────────
 
@@ -76,14 +81,14 @@ const FAMILIES = {
   'no-balmer-decrement': caution(() => 'No usable Balmer line pair, so E(B−V) is unknown and fluxes are not dereddened.'),
   // diagrams (§2.2–2.5, §9)
   'curve-crossing-region': info(() => `The point lies where the ${curveName('ka03')} curve runs above ${curveName('ke01')} (far left of the ${diagramLabel('nii')}); it was called star-forming by convention.`),
-  'beyond-asymptote': info((a) => `The point lies at or right of the asymptote of the ${curveOnDiagram(a)} curve, which puts it on the AGN side of that curve whatever its [O III]/Hβ.`),
-  'missing-line': info((a) => `Not on the ${diagramLabel(a)}: one of its lines was not measured.`),
+  'beyond-asymptote': info((a) => `The point lies at or right of the asymptote of the ${curveOnDiagram(a)} curve, which puts it on the AGN side of that curve whatever its [O III]/Hβ.`, 'curve'),
+  'missing-line': info((a) => `Not on the ${diagramLabel(a)}: one of its lines was not measured.`, 'diagram'),
   'limit-not-decisive': caution((a) => a === 'nii-subtype'
     ? 'A limit leaves open whether this AGN is Seyfert-like or LINER-like on the [N II] diagram.'
-    : `On the ${diagramLabel(a)}, an upper or lower limit leaves the class open: the point could fall on either side of a line, so it is unclassified there.`),
+    : `On the ${diagramLabel(a)}, an upper or lower limit leaves the class open: the point could fall on either side of a line, so it is unclassified there.`, 'diagram'),
   'nonpositive-flux': caution((a) => a === 'balmer'
     ? 'A Balmer line flux is zero or negative, so no dust correction was possible.'
-    : `Not on the ${diagramLabel(a)}: a line flux is zero or negative, so its ratio has no logarithm.`),
+    : `Not on the ${diagramLabel(a)}: a line flux is zero or negative, so its ratio has no logarithm.`, 'diagram'),
   'whan-needs-ew-halpha': info(() => 'Not on the WHAN diagram: it needs the Hα equivalent width, which was not given.'),
   'whan-passive-needs-ew-nii': info(() => `EW(Hα) is below ${numberInWords(WHAN.passiveMaxEw)} Å but there is no [N II] equivalent width, so passive could not be told from retired; reported as retired.`),
   'overall-needs-nii': caution(() => 'No overall class: the [N II] diagram is required and could not be placed.'),
@@ -91,11 +96,11 @@ const FAMILIES = {
   'overall-without-oi': info(() => 'The overall class uses the [N II] and [S II] diagrams only: [O I] was not available.'),
   'overall-from-nii-only': caution(() => `The overall class rests on the [N II] diagram alone (neither [S II] nor [O I] available); AGN were split into Seyfert and LINER by the ${curveName('s07')} line.`),
   // limits (§9)
-  'below-min-snr': caution((a) => `${lineLabel(a)} is below the project's minimum signal-to-noise, so it is treated as an upper limit (S/N threshold × error).`),
+  'below-min-snr': caution((a) => `${lineLabel(a)} is below the project's minimum signal-to-noise, so it is treated as an upper limit (S/N threshold × error).`, 'line'),
   'ratio-limit': info((a) => {
     const [key, kind] = a.split(':')
     return `${ratioLabel(key)} is ${kind === 'lower' ? 'a lower limit' : 'an upper limit'}, because one of its lines is not detected.`
-  }),
+  }, 'ratio'),
   // metallicity, SFR (§5, §6)
   'metallicity-not-star-forming': info(() => 'No metallicity: the strong-line calibrations hold only for star-forming nuclei, and this one is not classed star-forming.'),
   'sfr-not-star-forming': caution(() => 'The Hα star-formation rate assumes all Hα comes from young stars. This nucleus is not classed star-forming, so treat the rate as an upper bound at most.'),
@@ -103,35 +108,41 @@ const FAMILIES = {
   'sfr-needs-halpha': info(() => 'No star-formation rate: Hα is not detected.'),
   'luminosity-needs-redshift': info(() => 'No luminosity or star-formation rate: the redshift is missing or not positive.'),
   // density (§3)
-  'low-density-limit': caution((a) => `The ${doublet(a)} doublet ratio is at its low-density limit: the electron density is only known to be low (below about ${numberInWords(DENSITY_FIT_MIN_CM3)} cm⁻³ in the fit), so no value is given.`),
-  'high-density-limit': caution((a) => `The ${doublet(a)} doublet ratio is at its high-density limit: the density is only known to be very high (above about ${numberInWords(DENSITY_FIT_MAX_CM3)} cm⁻³), so no value is given.`),
-  'density-needs-lines': info((a) => `No ${doublet(a)} density: both lines of the doublet must be detected.`),
+  'low-density-limit': caution((a) => `The ${doublet(a)} doublet ratio is at its low-density limit: the electron density is only known to be low (below about ${numberInWords(DENSITY_FIT_MIN_CM3)} cm⁻³ in the fit), so no value is given.`, 'doublet'),
+  'high-density-limit': caution((a) => `The ${doublet(a)} doublet ratio is at its high-density limit: the density is only known to be very high (above about ${numberInWords(DENSITY_FIT_MAX_CM3)} cm⁻³), so no value is given.`, 'doublet'),
+  'density-needs-lines': info((a) => `No ${doublet(a)} density: both lines of the doublet must be detected.`, 'doublet'),
   // temperature (§4)
-  'te-out-of-range': caution((a) => `The ${ionLabel(a)} auroral-line ratio has no temperature solution between ${numberInWords(TEMPERATURE_MIN_K)} and ${numberInWords(TEMPERATURE_MAX_K)} K.`),
-  'te-upper-limit': info((a) => `The ${ionLabel(a)} auroral line is not detected, so the temperature is only an upper limit and no value is given.`),
-  'te-density-assumed': info((a) => `The ${ionLabel(a)} temperature was solved with an assumed density of ${numberInWords(ASSUMED_DENSITY_CM3)} cm⁻³, because no [S II] density was available.`),
-  'te-from-fixed-doublet-ratio': info((a) => `The weaker ${ionLabel(a)} nebular line was missing and was taken from the fixed theoretical ratio to the stronger one.`),
-  'te-needs-lines': info((a) => `No ${ionLabel(a)} temperature: the auroral and nebular lines are needed.`),
+  'te-out-of-range': caution((a) => `The ${ionLabel(a)} auroral-line ratio has no temperature solution between ${numberInWords(TEMPERATURE_MIN_K)} and ${numberInWords(TEMPERATURE_MAX_K)} K.`, 'ion'),
+  'te-upper-limit': info((a) => `The ${ionLabel(a)} auroral line is not detected, so the temperature is only an upper limit and no value is given.`, 'ion'),
+  'te-density-assumed': info((a) => `The ${ionLabel(a)} temperature was solved with an assumed density of ${numberInWords(ASSUMED_DENSITY_CM3)} cm⁻³, because no [S II] density was available.`, 'ion'),
+  'te-from-fixed-doublet-ratio': info((a) => `The weaker ${ionLabel(a)} nebular line was missing and was taken from the fixed theoretical ratio to the stronger one.`, 'ion'),
+  'te-needs-lines': info((a) => `No ${ionLabel(a)} temperature: the auroral and nebular lines are needed.`, 'ion'),
   // black hole (§7)
   'black-hole-needs-fwhm': info(() => 'No black-hole mass: the broad Hα line width (FWHM) was not given.'),
   'black-hole-needs-redshift': info(() => 'No black-hole mass: it needs a redshift for the luminosity.'),
   'black-hole-broad-halpha-limit': info(() => 'Broad Hα is only an upper limit, so no black-hole mass is given.'),
 } as const satisfies Record<string, FlagFamily>
 
+/** What a family's argument names, or undefined for a family written without one. */
+export function flagArgument(family: string): FlagArgument | undefined {
+  return (FLAG_FAMILIES as Readonly<Record<string, FlagFamily>>)[family]?.argument
+}
+
 /** Flags of line fits of 1-D spectra (shared/spectra/; shared/science/README.md §13, §14). */
 const SPECTRUM_FAMILIES = {
   'not-covered': info((a) => a === 'nad'
     ? `Na I D is not measured: good pixels do not span ±${numberInWords(COVERAGE_KM_PER_S)} km/s around both D lines.`
-    : `${lineLabel(a)} is not measured: good pixels do not span ±${numberInWords(a === 'halpha_broad' ? BROAD_COVERAGE_KM_PER_S : COVERAGE_KM_PER_S)} km/s around its expected place.`),
-  'unresolved': info((a) => `${lineLabel(a)} is not wider than the instrument: its intrinsic σ is reported as 0.`),
+    : `${lineLabel(a)} is not measured: good pixels do not span ±${numberInWords(a === 'halpha_broad' ? BROAD_COVERAGE_KM_PER_S : COVERAGE_KM_PER_S)} km/s around its expected place.`, 'line'),
+  'unresolved': info((a) => `${lineLabel(a)} is not wider than the instrument: its intrinsic σ is reported as 0.`, 'line'),
   'no-instrumental-correction': caution(() => 'No instrumental resolution was given, so the line widths include the instrument\'s own broadening.'),
-  'blended': caution((a) => `${lineLabel(a)} emission lies inside the Na I D absorption; both were fitted together, but their equivalent widths depend on each other.`),
+  'blended': caution((a) => `${lineLabel(a)} emission lies inside the Na I D absorption; both were fitted together, but their equivalent widths depend on each other.`, 'line'),
   'fit-not-converged': caution(() => 'The line fit stopped before it converged; its numbers and errors are doubtful.'),
   'fit-failed': caution(() => 'The stored spectrum could not be fitted, so it has no measurements and the galaxy\'s lines were left as they were.'),
   'doublet-ratio-linear': info(() => 'The Na I D doublet ratio is at its optically thin value: the column density uses the linear part of the curve of growth, and the Doppler parameter b is not constrained.'),
   'doublet-ratio-saturated': caution(() => 'The Na I D lines are saturated (doublet ratio near 1): only a lower limit on the column density follows, so none is given.'),
   'doublet-ratio-undefined': caution(() => 'The Na I D doublet ratio is outside the range the curve of growth allows (noise, or the stellar part), so no column density is given.'),
   'stellar-absorption-not-separated': caution(() => 'Na I D includes stellar (photospheric) absorption as well as the gas; without a stellar-population model the two are not separated, so the equivalent width and column density are upper bounds for the gas.'),
+  'flux-unit-assumed': caution(() => 'The spectrum file gave no flux unit (no BUNIT keyword or unit column) and the upload set none, so 1 erg s⁻¹ cm⁻² Å⁻¹ was assumed: fluxes, luminosities and star-formation rates scale with it; ratios, classes and densities do not.'),
   'balmer-absorption-corrected': info(() => 'A fixed stellar absorption equivalent width was added back to the Balmer lines (a setting of the fit); the dust correction rests on it.'),
 } as const satisfies Record<string, FlagFamily>
 

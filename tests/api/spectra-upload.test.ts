@@ -92,6 +92,25 @@ describe('uploading spectra', () => {
     expect((await get('/galaxies/SYN-1/spectrum')).body.spectrum).toMatchObject({ redshift: 0.03, wavelengthMedium: 'air', fluxUnit: 1 })
   })
 
+  it('says when no flux unit was given: the report marks the spectrum and its fit carries the flux-unit-assumed caution', async () => {
+    const csv = (seed: number) => syntheticCsv({ redshift: 0.03, lines: STAR_FORMING, seed })
+    // the FITS file has BUNIT; the first CSV has no unit anywhere; the second takes the form's
+    const a = await upload([['image-linear-air.fits', fits('image-linear-air.fits')], ['UNIT-NONE.csv', csv(71)]], { defaults: JSON.stringify({ redshift: 0.03 }), onExisting: 'replace' })
+    const b = await upload([['UNIT-FORM.csv', csv(72)]], { defaults: JSON.stringify({ redshift: 0.03, fluxUnit: 1e-17 }) })
+    expect(a.status, JSON.stringify(a.body)).toBe(202)
+    expect(b.status, JSON.stringify(b.body)).toBe(202)
+    expect(a.body.upload.files[0].spectra[0].fluxUnitAssumed).toBeUndefined()
+    expect(a.body.upload.files[1].spectra[0].fluxUnitAssumed).toBe(true)
+    expect(b.body.upload.files[0].spectra[0].fluxUnitAssumed).toBeUndefined()
+    await untilDone(a.body.job.id)
+    await untilDone(b.body.job.id)
+    const flagsOf = async (id: string) => ((await get(`/spectra?q=${id}`)).body.items[0] as { flags: string[] }).flags
+    expect(await flagsOf('UNIT-NONE')).toContain('flux-unit-assumed')
+    expect(await flagsOf('UNIT-FORM')).not.toContain('flux-unit-assumed')
+    expect(await flagsOf('FIX-IMAGE-1')).not.toContain('flux-unit-assumed')
+    expect((await get('/galaxies/UNIT-FORM/spectrum')).body.spectrum.fluxUnit).toBe(1e-17)
+  })
+
   it('reads JSON spectrum files (one object or a request body) with their own resolution, which wins over the form\'s', async () => {
     const sp = (id: string) => ({ id, redshift: 0.025, fluxUnit: 1e-17, resolution: { resolvingPower: 2500 }, ...syntheticSpectrumArrays({ redshift: 0.025, lines: STAR_FORMING, seed: 5 }) })
     const res = await upload([['one.json', JSON.stringify(sp('JSON-A'))], ['body.json', JSON.stringify({ spectra: [sp('JSON-B')] })]],
@@ -221,6 +240,20 @@ describe('limits and bad archives', () => {
     expect(r4.status).toBe(413)
     expect(r4.body.detail).toMatch(/more than 1000 files/)
     expect(await counts()).toEqual(before)
+  })
+
+  it('refuses a damaged zip entry by its CRC-32 (APPNOTE 4.4.7) and takes the undamaged one beside it', async () => {
+    const good = syntheticCsv({ redshift: 0.02, lines: STAR_FORMING, seed: 81 })
+    const zip = await zipOf([['GOOD-ZIP.csv', good], ['BAD-ZIP.csv', syntheticCsv({ redshift: 0.02, lines: STAR_FORMING, seed: 82 })]])
+    // flip a byte inside the second entry's deflated data (after its local header and name)
+    const at = zip.indexOf('BAD-ZIP.csv') + 'BAD-ZIP.csv'.length + 40
+    zip[at] ^= 0xff
+    const res = await upload([['pair.zip', zip]], { defaults: JSON.stringify({ redshift: 0.02 }), skipInvalid: 'true' })
+    expect(res.status, JSON.stringify(res.body)).toBe(202)
+    const [a, b] = res.body.upload.files
+    expect(a.spectra[0]).toMatchObject({ galaxyId: 'GOOD-ZIP', stored: 'created' })
+    expect(b.error.message).toMatch(/cannot be expanded|damaged/)
+    await untilDone(res.body.job.id)
   })
 
   it('refuses a zip with a path that leaves the archive (..) and one that is not a zip, by the file\'s index', async () => {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { requireFinite, requirePositiveFinite, ScienceInputError } from '../../../shared/flags.ts'
-import { belowMinSnrFlag, FLAG_WORDS, flagBit, ratioLimitFlag, ROW_FLAGS } from '../../../shared/vocabulary/flags.ts'
+import { belowMinSnrFlag, FLAG_FAMILIES, FLAG_WORDS, flagArgument, flagBit, ratioLimitFlag, ROW_FLAGS } from '../../../shared/vocabulary/flags.ts'
 
 describe('flag vocabulary and input guards', () => {
   it('has unique kebab-case flags that fit the kernel words', () => {
@@ -22,5 +22,29 @@ describe('flag vocabulary and input guards', () => {
     } catch (e) {
       expect((e as ScienceInputError).path).toBe('/redshift')
     }
+  })
+})
+
+describe('flag families and their arguments (the registry in shared/vocabulary/flags.ts)', () => {
+  // a sample argument of each kind, as flags carry them
+  const SAMPLES: Record<string, [string, string]> = {
+    line: ['halpha', 'hbeta'], diagram: ['nii', 'sii'], curve: ['nii-ka03', 'sii-ke01'], ratio: ['niiHa:upper', 'oiiiHb:lower'], doublet: ['sii', 'oii'], ion: ['oiii', 'nii'],
+  }
+  it('a family marked with an argument reads it into its text; the others do not depend on one', () => {
+    for (const [name, family] of Object.entries(FLAG_FAMILIES)) {
+      if (family.argument) {
+        const [a, b] = SAMPLES[family.argument]
+        expect(family.text(a), name).not.toBe(family.text(b))
+        expect(flagArgument(name), name).toBe(family.argument)
+      } else {
+        expect(family.text('halpha'), name).toBe(family.text('nii'))
+        expect(flagArgument(name), name).toBeUndefined()
+      }
+    }
+  })
+  it('the spectrum families that name a line say so', () => {
+    expect(flagArgument('not-covered')).toBe('line')
+    expect(flagArgument('unresolved')).toBe('line')
+    expect(flagArgument('fit-not-converged')).toBeUndefined()
   })
 })

@@ -1,0 +1,1 @@
+ALTER TABLE "spectra" ADD COLUMN "flux_unit_assumed" boolean DEFAULT false NOT NULL;
