@@ -50,7 +50,10 @@ export function spectraFitRoutes(r: Routes, deps: RouteDeps) {
     const over = spectraOverBudget(body.spectra.length, body.fit, body.settings.monteCarlo.draws, anonymous ? anonymousComputeBudget : computeBudget,
       { anonymous, authenticatedBudget: computeBudget })
     if (over) throw new HttpProblem(422, 'Unprocessable Content', over.message, [over])
-    const results = await service.fit(body)
+    // a client that goes away stops the fits not yet started
+    const gone = new AbortController()
+    res.on('close', () => { if (!res.writableEnded) gone.abort() })
+    const results = await service.fit(body, gone.signal)
     res.json({ methodVersion: `${METHOD_VERSION}+${SPECTRUM_FIT_METHOD_VERSION}`, fit: body.fit, settings: body.settings, results })
   })
 }

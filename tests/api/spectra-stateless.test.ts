@@ -111,3 +111,16 @@ describe('POST /spectra/fit', () => {
     expect(ok.body.results).toHaveLength(21)
   })
 })
+
+describe('POST /spectra/fit on a short compute queue', () => {
+  let small: TestApp
+  beforeAll(async () => { small = await startTestApp({ COMPUTE_THREADS: '1', COMPUTE_QUEUE: '2' }) })
+  afterAll(async () => { await small.close() })
+  it('fits more spectra than the queue holds: a request keeps one fit per thread in flight, so it is not refused by its own fits', async () => {
+    const spectra = Array.from({ length: 8 }, (_, i) => tinySpectrum(`Q-${i}`))
+    const res = await request(small.app).post('/api/v1/spectra/fit').send({ fit: { broadHalpha: 'off', absorption: [] }, spectra })
+    expect(res.status, JSON.stringify(res.body).slice(0, 300)).toBe(200)
+    expect(res.body.results.map((r: { id: string }) => r.id)).toEqual(spectra.map((s) => s.id))
+    expect(res.body.results.every((r: { lines: { halpha?: { detected: boolean } } }) => r.lines.halpha?.detected)).toBe(true)
+  })
+})
