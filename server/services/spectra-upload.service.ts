@@ -90,9 +90,7 @@ const isArchiveClutter = (path: string) => path.endsWith('/') || path.startsWith
 const wrongKind = (name: string) => ({ path: '', message: `"${name}" is not a spectrum file: send ${SPECTRUM_FILE_EXTENSIONS.join(' ')} files, or a .zip of them` })
 
 /** A file of the upload: its bytes (a zip entry's as stored, deflated ones expanded on the compute thread that reads them) or why it is refused. */
-interface RawFile { name: string; size: number; bytes?: Promise<Uint8Array>; deflated?: DeflatedEntry; problem?: ReadProblem }
-
-const expansionProblem = (err: unknown): ReadProblem => ({ path: '', message: `the file cannot be read: ${(err as Error).message}` })
+interface RawFile { name: string; size: number; bytes?: Uint8Array; deflated?: DeflatedEntry; problem?: ReadProblem }
 
 /**
  * An entry's data as stored, sliced from the archive in memory after its local header (APPNOTE.TXT
@@ -153,7 +151,7 @@ async function* zipEntries(file: UploadedFile, fileLimitBytes: number): AsyncGen
       if (!isSpectrumFile(entry.fileName)) { yield { name, size: entry.uncompressedSize, problem: wrongKind(entry.fileName) }; continue }
       const data = entryData(buffer, entry)
       if ('message' in data) { yield { name, size: entry.uncompressedSize, problem: data }; continue }
-      yield { name, size: entry.uncompressedSize, bytes: Promise.resolve(data.bytes), ...(data.deflated ? { deflated: data.deflated } : {}) }
+      yield { name, size: entry.uncompressedSize, bytes: data.bytes, ...(data.deflated ? { deflated: data.deflated } : {}) }
     }
   } finally {
     zip.close()
@@ -183,7 +181,7 @@ export async function* readUpload(pool: ComputePool, files: UploadedFile[], file
         const next = await source.next()
         if (next.done) { drained = true; break }
         const raw = next.value
-        const out = raw.problem ? undefined : raw.bytes!.then((b) => pool.readSpectra(b, raw.deflated), (err: unknown) => ({ ok: false as const, problems: [expansionProblem(err)] }))
+        const out = raw.problem ? undefined : pool.readSpectra(raw.bytes!, raw.deflated)
         // a read that is never awaited (the upload was refused first) must not reject unhandled
         out?.catch(() => {})
         queue.push({ i: index++, raw, out })
@@ -213,7 +211,7 @@ async function* rawFiles(files: UploadedFile[], fileLimitBytes: number): AsyncGe
   for (const file of files) {
     if (isZip(file.originalname)) yield* zipEntries(file, fileLimitBytes)
     else if (!isSpectrumFile(file.originalname)) yield { name: file.originalname, size: file.size, problem: wrongKind(file.originalname) }
-    else yield { name: file.originalname, size: file.size, bytes: readFile(file.path).then((b) => new Uint8Array(b)) }
+    else yield { name: file.originalname, size: file.size, bytes: new Uint8Array(await readFile(file.path)) }
   }
 }
 
