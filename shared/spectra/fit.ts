@@ -31,7 +31,7 @@ import type {
 const C = SPEED_OF_LIGHT_KM_PER_S
 
 /** Version of the measuring method (changes whenever a result could change). */
-export const SPECTRUM_FIT_METHOD_VERSION = 'spectra-2'
+export const SPECTRUM_FIT_METHOD_VERSION = 'spectra-3'
 
 /** Defaults of the `fit` options (shared/science/README.md §13.10). */
 export const DEFAULT_FIT_OPTIONS: Readonly<ResolvedFitOptions> = Object.freeze({
@@ -79,9 +79,43 @@ function freeParameters(model: SpectrumModel): number {
 
 /** Variable projection from the non-linear parameters of p0 (README §13.7), with BIC (Schwarz 1978). */
 export function runFit(model: SpectrumModel, p0: Float64Array): FitOutcome {
-  const r = variableProjection(model.separable, p0)
+  let r = variableProjection(model.separable, p0)
+  const wider = widerStart(model, r.p)
+  if (wider) {
+    const again = variableProjection(model.separable, wider)
+    if (again.chi2 < r.chi2) r = again
+  }
   const k = freeParameters(model)
   return { model, p: r.p, chi2: r.chi2, covariance: r.covariance, converged: r.converged, k, bic: r.chi2 + k * Math.log(model.pixels.n) }
+}
+
+/** Trial intrinsic widths, km/s, for a width that ended at zero (project choice, README §13.7). */
+const ZERO_WIDTH_PROBES = [20, 60, 150]
+
+/**
+ * σ_λ² = (λσ/c)² + σ_inst² has no slope in σ at σ = 0, so a fit that steps onto zero width stops
+ * there even when wider lines fit better (zero is then a saddle that Gauss–Newton cannot see). For
+ * each free width at zero, probe wider ones with the linear parameters solved; the best probe that
+ * lowers χ² is a new start, else null.
+ */
+function widerStart(model: SpectrumModel, p: Float64Array): Float64Array | null {
+  const { lower, upper } = model.problem
+  let start: Float64Array | null = null
+  model.groups.forEach((g, gi) => {
+    if (g.s < 0 || !(upper[g.s] > lower[g.s]) || lower[g.s] !== 0 || !(p[g.s] < 1)) return
+    const base = Float64Array.from(start ?? p)
+    let best = model.solveLinear(Float64Array.from(base), gi)
+    for (const w of ZERO_WIDTH_PROBES) {
+      const trial = Float64Array.from(base)
+      trial[g.s] = Math.min(w, upper[g.s])
+      const chi2 = model.solveLinear(trial, gi, best)
+      if (chi2 < best) {
+        best = chi2
+        start = trial
+      }
+    }
+  })
+  return start
 }
 
 /** Set one group's kinematics at each candidate, solve the linear parameters, keep the lowest χ². */

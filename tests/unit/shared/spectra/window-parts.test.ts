@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest'
 import { createSpectrumModel, prepareSpectrum, setupFit, sodiumExample, windowPixels, withoutAbsorption } from '../../../../shared/spectra/index.ts'
 import { variableProjection } from '../../../../shared/spectra/variable-projection.ts'
+import { runFit } from '../../../../shared/spectra/fit.ts'
+import { syntheticSpectrum } from '../../../../shared/spectra/synthetic.ts'
 
 /**
  * The pieces the staged fit rests on (shared/science/README.md §13.7, project choice): held parameters,
@@ -43,5 +45,31 @@ describe('window parts of the spectrum fit (README §13.7)', () => {
       sum += variableProjection(part.separable, part.initial(), { covariance: false }).chi2
     })
     expect(sum).toBeCloseTo(fit.chi2, 6)
+  })
+})
+
+describe('a width that reaches zero (README §13.7)', () => {
+  // σ_λ² = (λσ/c)² + σ_inst² is flat in σ at σ = 0: a start there is a stationary point of the fit
+  const wide = syntheticSpectrum({
+    seed: 11, redshift: 0.2, wavelength: { start: 6400 * 1.2, end: 6800 * 1.2, step: 1.5 }, continuum: { level: 9 }, noise: 1.7,
+    resolution: { fwhmAngstrom: 2.8 }, lines: [{ id: 'halpha', flux: 170, sigma: 63 }, { id: 'nii_6584', flux: 100, sigma: 63 }],
+  })
+  const ws = setupFit(prepareSpectrum(wide.spectrum), wide.spectrum, false, false, 1)
+  const model = createSpectrumModel(ws.pixels, { profile: 'gaussian', components: 1, broad: false, hasInstrument: true })
+  const is = model.names.indexOf('n0.s')
+
+  it('Gauss–Newton alone stays at zero width from a start there', () => {
+    const p0 = model.initial()
+    p0[is] = 0
+    expect(variableProjection(model.separable, p0).p[is]).toBe(0)
+  })
+
+  it('the fit probes wider widths and finds the drawn one (σ = 63 km/s, seeded synthetic truth) within 3σ', () => {
+    const p0 = model.initial()
+    p0[is] = 0
+    const r = runFit(model, p0)
+    const sd = Math.sqrt(r.covariance[is * r.p.length + is])
+    expect(r.p[is]).toBeGreaterThan(30)
+    expect(Math.abs(r.p[is] - 63)).toBeLessThan(3 * sd)
   })
 })
