@@ -1,5 +1,6 @@
 import type { FittedLine, SpectrumFitResult } from '../../api/spectra-types'
 import { LINE_IDS, lineLabel } from '../../../shared/vocabulary/index.ts'
+import { fmtMeasured } from '../../utils/format'
 
 /** The fitted numbers beside the spectrum and the before/after table of a refit. */
 
@@ -58,6 +59,15 @@ export function fitNumberRows(result: Pick<SpectrumFitResult, 'lines'>): FitNumb
     }
   }
   return out
+}
+
+/**
+ * The σ cell: "unresolved" for a detected line no wider than the instrument (its intrinsic σ is 0 and
+ * its error only rounding at the bound), else σ ± error.
+ */
+export function sigmaText(r: Pick<FitNumberRow, 'detected' | 'sigmaIntrinsic' | 'sigmaError'>): string {
+  if (r.detected && r.sigmaIntrinsic === 0) return 'unresolved'
+  return fmtMeasured(r.sigmaIntrinsic, r.sigmaError)
 }
 
 /** χ²/dof of a fit, null without degrees of freedom. */

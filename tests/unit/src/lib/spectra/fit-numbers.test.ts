@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import type { SpectrumFitResult } from '../../../../../src/api/spectra-types'
-import { chi2PerDof, compareLines, compareSummary, detectionCount, fitNumberRows, orderedLineIds } from '../../../../../src/lib/spectra/fit-numbers'
+import { chi2PerDof, compareLines, compareSummary, detectionCount, fitNumberRows, orderedLineIds, sigmaText } from '../../../../../src/lib/spectra/fit-numbers'
 import { lineLabel } from '../../../../../shared/vocabulary/index.ts'
 
 const detected = (flux: number, velocity: number, sigmaIntrinsic: number) => ({
@@ -50,6 +50,13 @@ describe('fitted numbers', () => {
     expect(chi2PerDof({ chi2: 5, dof: 0 })).toBeNull()
     expect(chi2PerDof({ chi2: null, dof: 10 })).toBeNull()
     expect(detectionCount(before)).toBe(3)
+  })
+})
+
+describe('the σ cell', () => {
+  it('says "unresolved" for a detected line at zero intrinsic width, not 0.000000 ± 0.000000', () => {
+    expect(sigmaText({ detected: true, sigmaIntrinsic: 0, sigmaError: 3.55e-11 })).toBe('unresolved')
+    expect(sigmaText({ detected: true, sigmaIntrinsic: 71.6, sigmaError: 2.4 })).toBe('71.6 ± 2.4')
   })
 })
 
