@@ -10,7 +10,7 @@ import { writingGalaxies } from './diagrams.service.ts'
 import type { GalaxyContext } from './galaxy-context.ts'
 import type { ComputePool } from '../compute/pool.ts'
 import { registerJobRunner, registerRecomputeStage, type JobLease } from './jobs.service.ts'
-import { arraysOf, fitSettingsKey, fitSettingsOf } from './spectra.service.ts'
+import { arraysOf, fitSettingsKey, fitSettingsOf, selectSpectra } from './spectra.service.ts'
 
 /**
  * The `fit` job of an upload and the refits of a recompute. Each spectrum is fitted under the fit
@@ -187,7 +187,7 @@ async function runFitJob(lease: JobLease, job: JobRow, ctx: GalaxyContext) {
   const fitAfter = async (after: number) => {
     const limit = size
     size = Math.min(FIT_CHUNK_MAX, 2 * size)
-    const rows = await db.select().from(spectra).where(and(eq(spectra.uploadId, uploadId), gt(spectra.id, after))).orderBy(asc(spectra.id)).limit(limit)
+    const rows = await selectSpectra(db, and(eq(spectra.uploadId, uploadId), gt(spectra.id, after))!, limit)
     if (!rows.length) return null
     const planned = await revisionsToCompute(db, projectId)
     return { rows, planned, fits: await fitsFor(db, ctx.compute, rows, planned) }
@@ -244,7 +244,7 @@ registerRecomputeStage(async (ctx, job, rows, inputs, settings) => {
     from galaxies g join spectra s on s.project_id = g.project_id and s.galaxy_id = g.key and s.id = (g.provenance->>'spectrumId')::bigint
     where g.id = any(${'{' + ids.join(',') + '}'}::bigint[]) and g.provenance->>'source' = 'line-fit'`)).rows
   if (!found.length) return undefined
-  const specRows = await db.select().from(spectra).where(sql`${spectra.id} = any(${'{' + found.map((f) => f.spectrum_id).join(',') + '}'}::bigint[])`)
+  const specRows = await selectSpectra(db, sql`${spectra.id} = any(${'{' + found.map((f) => f.spectrum_id).join(',') + '}'}::bigint[])`)
   const byId = new Map(specRows.map((s) => [s.id, s]))
   const plan: RevisionPlan = { revision: job.revision!, settings }
   const fits = await fitsFor(db, ctx.compute, specRows, [plan])

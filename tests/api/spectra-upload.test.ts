@@ -291,3 +291,17 @@ describe('access', () => {
     expect((await owner.agent.get(`/api/v1/projects/${other}/spectra`)).status).toBe(404)
   })
 })
+
+describe('stored arrays read back by a binary COPY', () => {
+  it('binaryCopyRows reads PostgreSQL\'s own binary COPY: an int8, bytes and a NULL (PostgreSQL documentation, COPY, "Binary Format")', async () => {
+    const { to: copyTo } = await import('pg-copy-streams')
+    const { binaryCopyRows } = await import('../../server/services/spectra.service.ts')
+    const client = await t.db.$client.connect()
+    const chunks: Buffer[] = []
+    try {
+      for await (const c of client.query(copyTo("copy (select 7::bigint, '\\x01ff02'::bytea, null::bytea union all select 9, ''::bytea, '\\x00'::bytea) to stdout with (format binary)"))) chunks.push(c as Buffer)
+    } finally { client.release() }
+    const rows = binaryCopyRows(Buffer.concat(chunks))
+    expect(rows.map((r) => [Number(r[0]!.readBigInt64BE(0)), r[1] && [...r[1]], r[2] && [...r[2]]])).toEqual([[7, [1, 255, 2], null], [9, [], [0]]])
+  })
+})
