@@ -253,6 +253,7 @@ export async function storeUpload(
   const seen = new Map<string, number>()
   const defaults = form.defaults ?? {}
   let bad = 0, stored = 0
+  let storing: Promise<number> = Promise.resolve(0)
   const batch: Pending[] = []
   for await (const f of files) {
     let problems: FieldError[] = []
@@ -278,8 +279,14 @@ export async function storeUpload(
       batch.push({ p, fileName: f.name, entry })
     }
     report.push({ name: f.name, size: f.size, spectra: entries })
-    if (batch.length >= STORE_BATCH) stored += await storeBatch(tx, projectId, upload.id, batch.splice(0), defaults, form.onExisting)
+    if (batch.length >= STORE_BATCH) {
+      // one batch's INSERT runs while the next batch's files are read (the connection runs its queries in order)
+      stored += await storing
+      storing = storeBatch(tx, projectId, upload.id, batch.splice(0), defaults, form.onExisting)
+      storing.catch(() => {})
+    }
   }
+  stored += await storing
   if (bad && !form.skipInvalid) throw new SpectraFileProblems(errors, bad)
   stored += await storeBatch(tx, projectId, upload.id, batch.splice(0), defaults, form.onExisting)
   const [intake] = await tx.insert(intakes).values({
