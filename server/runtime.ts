@@ -14,6 +14,7 @@ import { galaxyContext } from './services/galaxy-context.ts'
 import { logger } from './lib/logger.ts'
 import { startJobQueue, startRecomputeWorker } from './services/jobs.service.ts'
 import { expireStagedIntakes } from './services/intake.service.ts'
+import { convertStoredDocuments } from './services/stored-results.ts'
 import { forgetOldSignInFailures } from './services/sign-in-throttle.ts'
 
 export interface Runtime {
@@ -79,6 +80,10 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
   }
   const db = connect(databaseUrl, 20)
   await runMigrations(db)
+  // results stored as documents by earlier versions become typed columns in the background (they
+  // are read either way meanwhile)
+  const stopConverting = new AbortController()
+  const converting = convertStoredDocuments(db, log, stopConverting.signal).catch((err) => logger.warn({ err }, 'converting stored result documents failed'))
 
   let catcher: Awaited<ReturnType<typeof startMailCatcher>> | undefined
   let smtpUrl = config.smtpUrl
@@ -125,6 +130,8 @@ export async function startRuntime(opts: StartOptions = {}): Promise<Runtime> {
     clearInterval(sweeper)
     await new Promise<void>((ok) => { server.close(() => ok()); server.closeAllConnections() })
     await jobs.queue.stop().catch(() => {})
+    stopConverting.abort()
+    await converting
     // let queued mail reach the relay (or the catcher, which closes next), but never hang the stop
     await Promise.race([mailer.idle?.(), new Promise((ok) => setTimeout(ok, 5000).unref())])
     diagrams.close()

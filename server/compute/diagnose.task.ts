@@ -2,17 +2,18 @@
 // function runs in-process when no pool is given, so both paths give identical answers.
 import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
 import { diagnoseMany, ScienceInputError, type GalaxyInput, type GalaxyResult } from '../../shared/science.ts'
+import { runChain } from '../../shared/diagnostics/pipeline.ts'
 import { ScienceSettingsError } from '../../shared/diagnostics/settings.ts'
-import { resultRow } from '../services/result-columns.ts'
+import { encodeStoredRows } from '../services/result-copy.ts'
 
 /**
  * What a chunk returns:
  * - `objects`: the results (structured-cloned back);
  * - `json`: the results as UTF-8 JSON array members without the brackets, ready to be sent;
- * - `rows`: one JSON object per galaxy for `upsertResults` (stored columns and result), without
- *   `galaxy_id`, which only the database knows.
+ * - `stored`: the binary COPY fields of each galaxy's `results` row (server/services/result-copy.ts),
+ *   without the galaxy id and the constants, which the caller puts in front; no document is built.
  */
-export type OutputMode = 'objects' | 'json' | 'rows'
+export type OutputMode = 'objects' | 'json' | 'stored'
 
 export interface DiagnoseTask {
   mode: OutputMode
@@ -25,16 +26,18 @@ export type TaskFailure =
   | { failed: 'input'; index: number; rest: string; message: string }
   | { failed: 'settings'; path: string; message: string }
 
-export type TaskOutput = GalaxyResult[] | Uint8Array | string[]
+export type TaskOutput = GalaxyResult[] | Uint8Array
 
 export function isFailure(v: unknown): v is TaskFailure {
   return typeof v === 'object' && v !== null && !Array.isArray(v) && !(v instanceof Uint8Array) && 'failed' in v
 }
 
 export function diagnoseTask(task: DiagnoseTask): TaskOutput | TaskFailure {
-  let results: GalaxyResult[]
+  let results: GalaxyResult[] = []
+  let stored: Uint8Array | undefined
   try {
-    results = diagnoseMany(task.galaxies as GalaxyInput[], task.settings)
+    if (task.mode === 'stored') stored = encodeStoredRows(runChain(task.galaxies as GalaxyInput[], task.settings), task.galaxies, task.settings)
+    else results = diagnoseMany(task.galaxies as GalaxyInput[], task.settings)
   } catch (err) {
     if (err instanceof ScienceInputError) {
       // diagnoseMany's path starts with the galaxy's index: /3/lines/hbeta/error
@@ -46,13 +49,8 @@ export function diagnoseTask(task: DiagnoseTask): TaskOutput | TaskFailure {
     if (err instanceof RangeError) return { failed: 'settings', path: '/settings', message: err.message }
     throw err
   }
+  if (stored) return stored
   if (task.mode === 'objects') return results
-  if (task.mode === 'rows') {
-    return results.map((r, i) => {
-      const { galaxy_id: _id, ...row } = resultRow(undefined, task.galaxies[i], r)
-      return JSON.stringify(row)
-    })
-  }
   // an own ArrayBuffer (not Node's shared Buffer pool), so it can be transferred instead of copied
   const json = new TextEncoder().encode(JSON.stringify(results))
   return json.subarray(1, json.length - 1)

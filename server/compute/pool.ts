@@ -234,7 +234,7 @@ export async function diagnoseJson(pool: ComputePool, galaxies: GalaxyInputDto[]
   return await pool.run('json', galaxies, settings, opts) as Uint8Array[]
 }
 
-/** One JSON object per galaxy for `upsertResults`, without `galaxy_id`. */
-export async function diagnoseRows(pool: ComputePool, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<string[]> {
-  return (await pool.run('rows', galaxies, settings, opts) as string[][]).flat()
+/** The binary COPY fields of each galaxy's `results` row, one buffer per chunk (server/services/result-copy.ts). */
+export async function diagnoseStored(pool: ComputePool, galaxies: GalaxyInputDto[], settings: Settings, opts?: ComputeOptions): Promise<Uint8Array[]> {
+  return await pool.run('stored', galaxies, settings, opts) as Uint8Array[]
 }

@@ -4,6 +4,7 @@ import pg from 'pg'
 import { join } from 'node:path'
 import { PROJECT_ROOT } from '../config.ts'
 import * as schema from './schema.ts'
+import { registerLayout } from '../services/stored-results.ts'
 
 export type Db = NodePgDatabase<typeof schema> & { $client: pg.Pool }
 
@@ -22,4 +23,7 @@ export function connect(url: string, max = 10): Db {
 
 export async function runMigrations(db: Db) {
   await migrate(db, { migrationsFolder: join(PROJECT_ROOT, 'drizzle') })
+  // the stored results' layout, before any write needs its id (registering it inside a long
+  // transaction would hold every other writer at the unique index until that one commits)
+  await registerLayout(db)
 }

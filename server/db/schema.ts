@@ -1,7 +1,7 @@
 import { sql } from 'drizzle-orm'
 import {
   bigint, bigserial, boolean, customType, doublePrecision, index, integer, json, jsonb, pgEnum, pgTable, primaryKey,
-  real, smallint, text, timestamp, uniqueIndex, uuid,
+  real, smallint, smallserial, text, timestamp, uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core'
 import { RESULTS_COLUMNS } from '../../shared/results/storage.ts'
 
@@ -221,8 +221,22 @@ const resultCopies = Object.fromEntries(RESULTS_COLUMNS.map((c) => {
 })) as Record<string, ReturnType<typeof real> | ReturnType<typeof smallint>>
 
 /**
- * Everything derived for a galaxy under one assumptions revision and one method version. The full
- * result is JSON; the columns beside it are copies for filtering, sorting and the diagram endpoint.
+ * The element names of a stored result layout (shared/results/stored-row.ts `StoredLayout`): rows
+ * written by an older layout are read by name.
+ */
+export const resultLayouts = pgTable('result_layouts', {
+  id: smallserial().primaryKey(),
+  fingerprint: text().notNull().unique(),
+  spec: jsonb().notNull(),
+  createdAt: createdAt(),
+})
+
+/**
+ * Everything derived for a galaxy under one assumptions revision and one method version, as typed
+ * columns: the kernel's numbers (`measures`), codes and flags (`codes`), the Monte Carlo summary,
+ * named by `layout`; the document is rebuilt from them on read (server/services/stored-results.ts).
+ * The copies beside them serve filters, sorting and the diagram endpoint. `result` holds the document
+ * of rows stored before the typed columns that could not be turned into them (another method version).
  */
 export const results = pgTable('results', {
   galaxyId: bigint({ mode: 'number' }).notNull().references(() => galaxies.id, { onDelete: 'cascade' }),
@@ -231,8 +245,15 @@ export const results = pgTable('results', {
   methodVersion: text().notNull(),
   computedAt: createdAt(),
   ...resultCopies,
-  /** The full result as `json` text (lz4-compressed by migration 0001): written in bulk, read whole. */
-  result: json().notNull(),
+  layout: smallint(),
+  measures: real().array(),
+  /** `measures` as doubles, only for a row with a number a real cannot hold (beyond ±3.4·10³⁸, or a non-zero below 1.2·10⁻³⁸) */
+  measuresExact: doublePrecision().array(),
+  codes: bytea(),
+  mcPercentiles: real().array(),
+  mcClasses: real().array(),
+  /** the document of a row stored before the typed columns (lz4-compressed by migration 0001) */
+  result: json(),
 }, (t) => [
   primaryKey({ columns: [t.galaxyId, t.revision] }),
   index('results_project_revision').on(t.projectId, t.revision),

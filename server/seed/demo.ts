@@ -4,7 +4,7 @@ import type { Db } from '../db/client.ts'
 import { intakes, memberships, projects, seedRuns, users, assumptionRevisions } from '../db/schema.ts'
 import { SettingsSchema } from '../../shared/schemas/galaxy.schema.ts'
 import { BCRYPT_COST } from '../services/accounts.service.ts'
-import { computeAll, writeGalaxies } from '../services/galaxy-ingest.service.ts'
+import { computeRows, writeGalaxies } from '../services/galaxy-ingest.service.ts'
 import { inProcessCompute } from '../compute/pool.ts'
 import { checkSpectra } from '../compute/read-spectra.task.ts'
 import type { GalaxyContext } from '../services/galaxy-context.ts'
@@ -41,7 +41,7 @@ export async function seedDemo(db: Db, log: (m: string) => void = () => {}, opts
   const galaxies = survey.map(({ population: _p, ...g }) => g)
   // the second narrow component is fitted where it is needed (the demo has outflow-like wings)
   const settings = SettingsSchema.parse({ fit: { components: 'auto' } })
-  const results = await computeAll(compute, galaxies, settings)
+  const results = await computeRows(compute, galaxies, settings)
   const spectra = opts.spectra === false ? undefined : demoSpectraFile(survey)
   const seeded = await db.transaction(async (tx) => {
     await tx.execute(sql`lock table seed_runs in exclusive mode`)

@@ -8,6 +8,7 @@ import { EXPORT_COLUMNS, type ExportColumn, type ExportGalaxy } from '../../shar
 import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
 import { filterSql, projectRevisionForQueries } from './galaxy-filters.ts'
 import { revisionSettings } from './projects.service.ts'
+import { STORED_SELECT, documentReader, type StoredColumns } from './stored-results.ts'
 import { METHOD_VERSION } from '../../shared/science.ts'
 import { APP_VERSION } from '../lib/version.ts'
 
@@ -30,8 +31,15 @@ export function pickColumns(names: string[] | undefined): ExportColumn[] {
 export const safeCell = (v: string | number | null) =>
   (typeof v === 'string' ? v.replace(/(^|;)(?=[\s"]*[=+\-@]|[\t\r])/g, "$1'") : v)
 
+/**
+ * A number as exports write it: 15 significant digits, which every decimal input survives, while a
+ * stored real scaled to its unit (8.371114 × 10⁻¹⁷ · 10 → 8.371114000000001e-16) loses the noise of
+ * the product.
+ */
+export const exportNumber = (v: number) => String(Number(v.toPrecision(15)))
+
 /** The CSV writer's options: fields holding `;` are quoted as well as those holding `,`. */
-export const CSV_OPTIONS = { quoted_match: [';'], cast: { number: (v: number) => String(v) } }
+export const CSV_OPTIONS = { quoted_match: [';'], cast: { number: exportNumber } }
 
 /** Settings as `key=value` words, so the provenance line needs no CSV quoting and stays a `#` line. */
 export function settingsWords(settings: Record<string, unknown>, prefix = ''): string {
@@ -63,13 +71,14 @@ type ExportRow = { id: number; key: string; redshift: number | null; ra: number 
 
 async function* rowsOf(db: Db, projectId: string, revision: number, f: GalaxyFilter): AsyncGenerator<ExportRow> {
   const where = filterSql(projectId, revision, { ...f, revision })
+  const reader = await documentReader(db, projectId, [revision])
   let lastId = 0
   for (;;) {
-    const res = await db.execute<ExportRow>(sql`
-      select g.id, g.key, g.redshift, g.ra, g.dec, g.flux_unit, r.result from galaxies g join results r on r.galaxy_id = g.id
+    const res = await db.execute<ExportRow & StoredColumns & Record<string, unknown>>(sql`
+      select g.id, g.key, g.redshift, g.ra, g.dec, g.flux_unit, ${STORED_SELECT} from galaxies g join results r on r.galaxy_id = g.id
       where ${where} and g.id > ${lastId} order by g.id limit ${CHUNK}`)
     if (!res.rows.length) return
-    for (const row of res.rows) yield row
+    for (const row of res.rows) yield { id: row.id, key: row.key, redshift: row.redshift, ra: row.ra, dec: row.dec, flux_unit: row.flux_unit, result: reader.document(row.key, row) }
     lastId = res.rows[res.rows.length - 1].id
   }
 }
@@ -156,7 +165,7 @@ ${fields.join('\n')}
 `)
   let buf = ''
   for await (const row of doc.rows) {
-    buf += '        <TR>' + doc.columns.map((c) => { const v = c.get(row.galaxy, row.result); return v === null ? '<TD/>' : `<TD>${xml(String(v))}</TD>` }).join('') + '</TR>\n'
+    buf += '        <TR>' + doc.columns.map((c) => { const v = c.get(row.galaxy, row.result); return v === null ? '<TD/>' : `<TD>${xml(typeof v === 'number' ? exportNumber(v) : String(v))}</TD>` }).join('') + '</TR>\n'
     if (buf.length > 1 << 16) { if (!res.write(buf)) await new Promise((ok) => res.once('drain', ok)); buf = '' }
   }
   res.end(buf + '      </TABLEDATA></DATA>\n    </TABLE>\n  </RESOURCE>\n</VOTABLE>\n')

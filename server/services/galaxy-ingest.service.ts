@@ -8,9 +8,10 @@ import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schem
 import type { IntakeCounts, OnExisting } from '../../shared/schemas/intake.schema.ts'
 import { mergeGalaxy, type StoredGalaxy } from '../../shared/galaxy-merge.ts'
 import { METHOD_VERSION, type GalaxyResult } from '../../shared/science.ts'
-import { diagnose, diagnoseRows, type ComputeOptions, type ComputePool } from '../compute/pool.ts'
+import { diagnose, diagnoseStored, type ComputeOptions, type ComputePool } from '../compute/pool.ts'
 import { overBudget } from '../compute/budget.ts'
-import { RESULT_COLUMN_SQL, resultRow } from './result-columns.ts'
+import { StoredRows, storeResults } from './result-copy.ts'
+import { currentLayoutId } from './stored-results.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import type { GalaxyContext } from './galaxy-context.ts'
 import { addCounts, zeroCounts } from './intake-counts.ts'
@@ -60,21 +61,9 @@ export async function computeAll(pool: ComputePool, gals: GalaxyInputDto[], sett
   return diagnose(pool, gals, settings, { prefix, ...opts })
 }
 
-/** Result rows serialised by the compute threads (stored columns and result, without galaxy_id). */
-export class PreparedResults {
-  constructor(readonly rows: string[]) {}
-  get length() { return this.rows.length }
-  /** The recordset for `upsertResultsJson`: rows from `start`, one per id. */
-  json(ids: ReadonlyArray<number | undefined>, start: number): string {
-    const parts: string[] = []
-    for (let j = 0; j < ids.length; j++) if (ids[j] !== undefined) parts.push(`{"galaxy_id":${ids[j]},${this.rows[start + j].slice(1)}`)
-    return '[' + parts.join(',') + ']'
-  }
-}
-
-/** `computeAll` for storage: the threads also build and serialise the stored rows, so the event loop only joins strings. */
-export async function computeRows(pool: ComputePool, gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies', opts: ComputeOptions = {}): Promise<PreparedResults> {
-  return new PreparedResults(await diagnoseRows(pool, gals, settings, { prefix, ...opts }))
+/** `computeAll` for storage: the threads encode each galaxy's `results` row for COPY (no document is built). */
+export async function computeRows(pool: ComputePool, gals: GalaxyInputDto[], settings: Settings, prefix = '/galaxies', opts: ComputeOptions = {}): Promise<StoredRows> {
+  return new StoredRows(await diagnoseStored(pool, gals, settings, { prefix, ...opts }))
 }
 
 const storedInput = (g: GalaxyInputDto) => ({ lines: g.lines, ...(g.ew ? { ew: g.ew } : {}), ...(g.fwhm ? { fwhm: g.fwhm } : {}) })
@@ -120,9 +109,10 @@ export interface WriteOptions {
  * request between the two statements answers 409 rather than being overwritten without a copy.
  */
 export async function writeGalaxies(tx: Executor, projectId: string, intakeId: string, gals: GalaxyInputDto[],
-  computed: Array<{ revision: number; results: unknown[] | PreparedResults }>, opts: WriteOptions = {}) {
+  computed: Array<{ revision: number; results: StoredRows }>, opts: WriteOptions = {}) {
   const onExisting = opts.onExisting ?? 'replace'
   let inserted = 0, updated = 0, skipped = 0
+  const layoutId = computed.length ? await currentLayoutId(tx) : 0
   const CHUNK = 5000
   for (let start = 0; start < gals.length; start += CHUNK) {
     const part = gals.slice(start, start + CHUNK)
@@ -152,9 +142,10 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
     const idByKey = new Map<string, number>()
     const links: Array<{ id: number; change: string }> = []
     const change = onExisting === 'merge' ? 'merged' : 'replaced'
+    const overwritten: number[] = []
     for (const r of ids.rows) {
       idByKey.set(r.key, r.id)
-      if (r.inserted) inserted++; else updated++
+      if (r.inserted) inserted++; else { updated++; overwritten.push(r.id) }
       links.push({ id: r.id, change: r.inserted ? 'created' : change })
     }
     if (idByKey.size < part.length) {
@@ -167,19 +158,11 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
     await tx.execute(sql`insert into galaxy_intakes (galaxy_id, intake_id, change)
       select t.id, ${intakeId}::uuid, t.change from json_to_recordset(${JSON.stringify(links)}::json) as t(id bigint, change text)
       on conflict do nothing`)
-    for (const c of computed) {
-      const res = c.results
-      if (res instanceof PreparedResults) {
-        // skipped IDs have no row here: json() leaves them out
-        const json = res.json(part.map((g) => idByKey.get(g.id)), start)
-        if (json !== '[]') await upsertResultsJson(tx, projectId, c.revision, json, opts.bumpVersion ?? true)
-      } else {
-        const resultRows: Array<Record<string, unknown>> = []
-        part.forEach((g, j) => { const id = idByKey.get(g.id); if (id !== undefined) resultRows.push(resultRow(id, g, res[start + j])) })
-        if (resultRows.length) await upsertResults(tx, projectId, c.revision, resultRows, opts.bumpVersion ?? true)
-      }
-    }
+    // skipped IDs have no row: their id is undefined
+    const partIds = part.map((g) => idByKey.get(g.id))
+    for (const c of computed) await storeResults(tx, { projectId, revision: c.revision, layoutId }, c.results, partIds, start, overwritten)
   }
+  if (computed.length && (opts.bumpVersion ?? true) && inserted + updated > 0) await bumpDataVersion(tx, projectId)
   return { inserted, updated, skipped }
 }
 
@@ -220,7 +203,7 @@ export async function writeIntakeChunk(tx: Executor, ctx: IntakeChunkContext, ga
     write.push(old && ctx.onExisting === 'merge' ? mergeGalaxy(old, g) : g)
     at.push(i)
   })
-  const computed: Array<{ revision: number; results: PreparedResults }> = []
+  const computed: Array<{ revision: number; results: StoredRows }> = []
   for (const r of ctx.revisions) computed.push({ revision: r.revision, results: await computeAt(ctx.compute, write, r.settings, (i) => ctx.where(at[i]), ctx.interactive) })
   const counts = await writeGalaxies(tx, ctx.projectId, ctx.intakeId, write, computed, { onExisting: ctx.onExisting, bumpVersion: ctx.bumpVersion })
   return {
@@ -242,27 +225,6 @@ async function computeAt(pool: ComputePool, gals: GalaxyInputDto[], settings: Se
     }
     throw err
   }
-}
-
-const RESULT_COLS = RESULT_COLUMN_SQL.map(([c]) => c)
-const RESULT_RECORD = sql.raw(RESULT_COLUMN_SQL.map(([c, t]) => `${c} ${t}`).join(', '))
-const RESULT_LIST = sql.raw(RESULT_COLS.join(', '))
-const RESULT_T_LIST = sql.raw(RESULT_COLS.map((c) => `t.${c}`).join(', '))
-const RESULT_UPDATE = sql.raw(RESULT_COLS.map((c) => `${c} = excluded.${c}`).join(', '))
-
-export async function upsertResults(tx: Executor, projectId: string, revision: number, rows: Array<Record<string, unknown>>, bumpVersion = true) {
-  await upsertResultsJson(tx, projectId, revision, JSON.stringify(rows), bumpVersion)
-}
-
-/** `upsertResults` for rows already serialised as a JSON array (see `PreparedResults`). */
-export async function upsertResultsJson(tx: Executor, projectId: string, revision: number, rowsJson: string, bumpVersion = true) {
-  await tx.execute(sql`
-    insert into results (galaxy_id, project_id, revision, method_version, computed_at, ${RESULT_LIST}, result)
-    select t.galaxy_id, ${projectId}::uuid, ${revision}, ${METHOD_VERSION}, now(), ${RESULT_T_LIST}, t.result
-    from json_to_recordset(${rowsJson}::json) as t(galaxy_id bigint, ${RESULT_RECORD}, result json)
-    on conflict (galaxy_id, revision) do update set method_version = excluded.method_version, computed_at = now(),
-      ${RESULT_UPDATE}, result = excluded.result`)
-  if (bumpVersion) await bumpDataVersion(tx, projectId)
 }
 
 /** Every write of results bumps it: the diagram cache key (also across processes). */

@@ -7,6 +7,7 @@ import type { GalaxyFilter } from '../../shared/schemas/query.schema.ts'
 import { isWellFormed } from '../../shared/schemas/text.ts'
 import { galaxySummary } from '../../shared/results/list.ts'
 import { SORT_FIELDS, filterSql, projectRevisionForQueries } from './galaxy-filters.ts'
+import { STORED_SELECT, documentReader, type StoredColumns } from './stored-results.ts'
 
 /** A list item: the registry's list fields of one row (shared/results/list.ts). */
 export const summary = galaxySummary
@@ -48,10 +49,11 @@ export function galaxiesService(db: Db) {
         page = sql`${where} and (${key}, g.id) ${desc ? sql`<` : sql`>`} (${val}, ${id})`
       }
       const rows = await db.execute<Record<string, unknown>>(sql`
-        select g.id, g.key, g.redshift, r.result, ${key} as sort_value from galaxies g join results r on r.galaxy_id = g.id
+        select g.id, g.key, g.redshift, ${STORED_SELECT}, ${key} as sort_value from galaxies g join results r on r.galaxy_id = g.id
         where ${page} order by ${key} ${desc ? sql`desc` : sql`asc`}, g.id ${desc ? sql`desc` : sql`asc`} limit ${f.limit + 1}`)
       const [{ n }] = (await db.execute<{ n: number }>(sql`select count(*)::int as n from galaxies g join results r on r.galaxy_id = g.id where ${where}`)).rows
-      const items = rows.rows.slice(0, f.limit)
+      const reader = await documentReader(db, projectId, [revision])
+      const items: Array<Record<string, unknown>> = rows.rows.slice(0, f.limit).map((row) => ({ ...row, result: reader.document(row.key as string, row as unknown as StoredColumns) }))
       const last = items[items.length - 1]
       const sv = last ? (typeof last.sort_value === 'number' && !Number.isFinite(last.sort_value) ? null : last.sort_value) : null
       return {
@@ -67,8 +69,10 @@ export function galaxiesService(db: Db) {
       const revs = await db.select({ revision: results.revision, methodVersion: results.methodVersion, computedAt: results.computedAt })
         .from(results).where(eq(results.galaxyId, g.id)).orderBy(results.revision)
       const want = revision ?? (revs.some((r) => r.revision === shown) ? shown : revs[revs.length - 1]?.revision)
-      const [res] = want === undefined ? [] : await db.select({ revision: results.revision, methodVersion: results.methodVersion, computedAt: results.computedAt, result: results.result })
-        .from(results).where(and(eq(results.galaxyId, g.id), eq(results.revision, want)))
+      const [res] = want === undefined ? [] : await db.select({
+        revision: results.revision, methodVersion: results.methodVersion, computedAt: results.computedAt,
+        layout: results.layout, measures: results.measures, measures_exact: results.measuresExact, codes: results.codes, mc_percentiles: results.mcPercentiles, mc_classes: results.mcClasses, result: results.result,
+      }).from(results).where(and(eq(results.galaxyId, g.id), eq(results.revision, want)))
       if (revision !== undefined && !res) throw notFound('result for that revision')
       const history = await db.select({ i: intakes, byName: users.name, change: galaxyIntakes.change }).from(galaxyIntakes)
         .innerJoin(intakes, eq(intakes.id, galaxyIntakes.intakeId)).leftJoin(users, eq(users.id, intakes.userId))
@@ -80,7 +84,7 @@ export function galaxiesService(db: Db) {
         // where the lines came from when not from an intake's rows: { source: 'line-fit', spectrumId, revision }
         provenance: g.provenance ?? null,
         revision: res?.revision ?? null, methodVersion: res?.methodVersion ?? null, computedAt: res?.computedAt.toISOString() ?? null,
-        results: res?.result ?? null,
+        results: res ? (await documentReader(db, projectId, [res.revision])).document(g.key, res) : null,
         // change: what the intake did (created, replaced, merged); earlier records: GET …/versions
         history: history.map((h) => ({ intakeId: h.i.id, kind: h.i.kind, fileName: h.i.fileName, createdAt: h.i.createdAt.toISOString(), by: h.byName, change: h.change })),
         revisions: revs.map((r) => ({ revision: r.revision, methodVersion: r.methodVersion, computedAt: r.computedAt.toISOString() })),

@@ -11,7 +11,7 @@ import { HttpProblem, conflict, notFound } from '../http/problem.ts'
 import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
 import { IntakeOptionsSchema, type IntakeCounts, type IntakeOptions, type IntakeProblem } from '../../shared/schemas/intake.schema.ts'
 import {
-  anyKey, bumpDataVersion, computeAll, negativeFluxErrors, revisionsToCompute, upsertResults, writeIntakeChunk, type RevisionPlan,
+  anyKey, bumpDataVersion, computeRows, negativeFluxErrors, revisionsToCompute, writeIntakeChunk, type RevisionPlan,
 } from './galaxy-ingest.service.ts'
 import { writingGalaxies } from './diagrams.service.ts'
 import type { GalaxyContext } from './galaxy-context.ts'
@@ -19,7 +19,8 @@ import type { ComputePool } from '../compute/pool.ts'
 import { intakeDto, revisionSettings } from './projects.service.ts'
 import { CSV_PARSE_OPTIONS, columnFor, rowToGalaxy, suggestMapping } from './csv-rows.ts'
 import { dispatchJob, errorText, jobDto, registerJobRunner, reportProgress, runJob, type JobLease } from './jobs.service.ts'
-import { resultRow } from './result-columns.ts'
+import { storeResults } from './result-copy.ts'
+import { currentLayoutId } from './stored-results.ts'
 import { audit } from './audit.ts'
 import { addCounts, zeroCounts } from './intake-counts.ts'
 import { CONTROL_MESSAGE, isCleanText } from '../../shared/schemas/text.ts'
@@ -232,8 +233,8 @@ async function computeIntakeUnder(tx: Tx, pool: ComputePool, projectId: string, 
     if (!rows.length) return
     const inputs: GalaxyInputDto[] = rows.map((r) => ({ id: r.key, ...(r.redshift !== null ? { redshift: r.redshift } : {}), fluxUnit: r.flux_unit, ...r.input }))
     for (const p of plans) {
-      const out = await computeAll(pool, inputs, p.settings)
-      await upsertResults(tx, projectId, p.revision, rows.map((r, i) => resultRow(r.id, inputs[i], out[i])), false)
+      const ids = rows.map((r) => r.id)
+      await storeResults(tx, { projectId, revision: p.revision, layoutId: await currentLayoutId(tx) }, await computeRows(pool, inputs, p.settings), ids, 0, ids)
     }
     lastId = rows[rows.length - 1].id
   }
@@ -535,9 +536,8 @@ async function recomputeRestored(tx: Tx, pool: ComputePool, projectId: string, i
     for (const p of plans) {
       const ids = have.get(p.revision)
       if (!ids?.size) continue
-      const out = await computeAll(pool, inputs, p.settings)
-      const resultRows = rows.flatMap((r, k) => (ids.has(r.id) ? [resultRow(r.id, inputs[k], out[k])] : []))
-      await upsertResults(tx, projectId, p.revision, resultRows, false)
+      const stored = rows.map((r) => (ids.has(r.id) ? r.id : undefined))
+      await storeResults(tx, { projectId, revision: p.revision, layoutId: await currentLayoutId(tx) }, await computeRows(pool, inputs, p.settings), stored, 0, [...ids])
     }
     lastId = rows[rows.length - 1].id
     await progress?.(restored)

@@ -8,7 +8,9 @@ import { galaxies, jobs, projects } from '../db/schema.ts'
 import { notFound } from '../http/problem.ts'
 import { logger } from '../lib/logger.ts'
 import { revisionSettings } from './projects.service.ts'
-import { computeRows, upsertResultsJson } from './galaxy-ingest.service.ts'
+import { computeRows } from './galaxy-ingest.service.ts'
+import { storeResults } from './result-copy.ts'
+import { currentLayoutId } from './stored-results.ts'
 import { warmDiagramSoon } from './diagrams.service.ts'
 import type { GalaxyContext } from './galaxy-context.ts'
 import type { GalaxyInputDto, Settings } from '../../shared/schemas/galaxy.schema.ts'
@@ -254,8 +256,8 @@ export function registerRecomputeStage(stage: RecomputeStage) { recomputeStages.
 /**
  * Recomputes every galaxy of a project under one revision, in chunks by id. Each chunk's results
  * and the job's cursor (`lastId`, `done`) are committed together on the lease's connection, so a
- * resumed job continues after the last committed chunk; results are upserted, so a repeated chunk
- * only overwrites what it wrote.
+ * resumed job continues after the last committed chunk; a chunk's earlier results of the revision are
+ * deleted before its own are copied in, so a repeated chunk only overwrites what it wrote.
  */
 async function recompute(lease: JobLease, job: JobRow, ctx: GalaxyContext) {
   const { db } = ctx
@@ -265,7 +267,7 @@ async function recompute(lease: JobLease, job: JobRow, ctx: GalaxyContext) {
     .where(and(eq(galaxies.projectId, job.projectId), gt(galaxies.id, lastId)))
   await lease.db.update(jobs).set({ total: done + n }).where(eq(jobs.id, job.id))
   for (;;) {
-    const rows = await db.select({ id: galaxies.id, key: galaxies.key, redshift: galaxies.redshift, ra: galaxies.ra, dec: galaxies.dec, fluxUnit: galaxies.fluxUnit, input: galaxies.input })
+    const rows = await db.select({ id: galaxies.id, key: galaxies.key, redshift: galaxies.redshift, ra: galaxies.ra, dec: galaxies.dec, fluxUnit: galaxies.fluxUnit, input: galaxies.input, version: sql<string>`galaxies.xmin::text` })
       .from(galaxies).where(and(eq(galaxies.projectId, job.projectId), gt(galaxies.id, lastId))).orderBy(asc(galaxies.id)).limit(CHUNK)
     if (!rows.length) break
     const inputs: GalaxyInputDto[] = rows.map((r) => ({
@@ -273,13 +275,18 @@ async function recompute(lease: JobLease, job: JobRow, ctx: GalaxyContext) {
     }))
     const writes: Array<Awaited<ReturnType<RecomputeStage>>> = []
     for (const stage of recomputeStages) writes.push(await stage(ctx, job, rows, inputs, settings))
-    // the compute threads also serialise the stored rows: the event loop only joins strings
+    // the compute threads encode the stored rows: the event loop only puts the ids in front
     const results = await computeRows(ctx.compute, inputs, settings)
     done += rows.length
     lastId = rows[rows.length - 1].id
     await lease.db.transaction(async (tx) => {
+      // a galaxy written since it was read (an intake replaced it, and stored its results under this
+      // revision too) keeps those: only the galaxies still as read get this chunk's results
+      const ids = '{' + rows.map((r) => r.id).join(',') + '}'
+      const now = new Map((await tx.execute<{ id: number; version: string }>(sql`select id, xmin::text as version from galaxies where id = any(${ids}::bigint[]) for share`)).rows.map((r) => [r.id, r.version]))
+      const fresh = rows.map((r) => (now.get(r.id) === r.version ? r.id : undefined))
       for (const write of writes) await write?.(tx)
-      await upsertResultsJson(tx, job.projectId, job.revision!, results.json(rows.map((r) => r.id), 0))
+      await storeResults(tx, { projectId: job.projectId, revision: job.revision!, layoutId: await currentLayoutId(tx) }, results, fresh, 0, fresh.filter((id): id is number => id !== undefined))
       await tx.update(jobs).set({ done, lastId, heartbeatAt: sql`now()` }).where(eq(jobs.id, job.id))
     })
   }

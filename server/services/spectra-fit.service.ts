@@ -5,7 +5,8 @@ import { logger } from '../lib/logger.ts'
 import { flagName } from '../../shared/vocabulary/flags.ts'
 import { GalaxyInputSchema, type GalaxyInputDto } from '../../shared/schemas/galaxy.schema.ts'
 import { FIT_METHOD_VERSION, type FitSettings } from '../compute/fit-spectra.task.ts'
-import { bumpDataVersion, computeRows, revisionsToCompute, writeGalaxies, type PreparedResults, type RevisionPlan } from './galaxy-ingest.service.ts'
+import type { StoredRows } from './result-copy.ts'
+import { bumpDataVersion, computeRows, revisionsToCompute, writeGalaxies, type RevisionPlan } from './galaxy-ingest.service.ts'
 import { writingGalaxies } from './diagrams.service.ts'
 import type { GalaxyContext } from './galaxy-context.ts'
 import type { ComputePool } from '../compute/pool.ts'
@@ -155,7 +156,7 @@ async function writeFitChunk(tx: Tx, compute: ComputePool, projectId: string, in
     if (gal) written.push({ row, gal })
   }
   if (!written.length) return 0
-  const computed: Array<{ revision: number; results: PreparedResults }> = []
+  const computed: Array<{ revision: number; results: StoredRows }> = []
   for (const plan of plans) {
     // each revision's diagnostics come from its own fit (its fit settings may differ)
     const inputs = written.map(({ row, gal }) => (plan === current ? gal : galaxyFromFit(row, fits.get(plan.revision)!.get(row.id), pos.get(row.galaxyId)) ?? gal))

@@ -147,7 +147,25 @@ function probabilities<T extends ClassName>(names: readonly T[], fractions: Floa
   return Object.fromEntries(names.map((n) => [n, fractions[CLASS_CODE[n]]])) as Record<T, number>
 }
 
-function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelOutput, prep: PreparedSettings, mc: MonteCarloSummary | null): GalaxyResult {
+/** What a result needs of its galaxy's input beside the kernel row: which lines were given, the broad-line FWHM. */
+export interface RowInput {
+  id: string
+  /** kind of line l as given (0 not given, 1 flux, 2 upper limit) */
+  kind(l: number): number
+  /** FWHM of the broad Hα component in km/s (NaN when not given) */
+  fwhmBroad: number
+}
+
+/** The input of galaxy i of a packed batch. */
+export function packedRowInput(id: string, input: KernelInput, i: number): RowInput {
+  return { id, kind: (l) => input.kind[l][i], fwhmBroad: input.fwhmBroad[i] }
+}
+
+/**
+ * The result document of row i of a kernel output (and its Monte Carlo summary): the same document
+ * whether the row was just computed or read back from storage (server/services/stored-results).
+ */
+export function buildResult(g: RowInput, out: KernelOutput, i: number, prep: PreparedSettings, mc: MonteCarloSummary | null): GalaxyResult {
   const r = new RowReader(out, i, mc)
   const flags = rowFlags(out, i)
   const sourceCode = r.int(INT.source)
@@ -164,7 +182,7 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
 
   const dereddened: Partial<Record<LineId, DereddenedLine>> = {}
   for (let l = 0; l < LINE_COUNT; l++) {
-    if (input.kind[l][i] === 0) continue
+    if (g.kind(l) === 0) continue
     const id = LINE_IDS[l]
     const state = r.int(INT.state[l])
     const entry: Record<string, unknown> = {}
@@ -287,7 +305,7 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
     r.put(d, 'log10Mass', FLOAT.bhLog10Mass)
     r.put(d, 'log10MassError', FLOAT.bhLog10MassError)
     r.put(d, 'luminosityBroadHalpha', FLOAT.bhLBroad)
-    d.fwhmKmPerS = input.fwhmBroad[i]
+    d.fwhmKmPerS = g.fwhmBroad
     d.flags = []
     blackHoleMass = d as BlackHoleResult
   }
@@ -312,7 +330,20 @@ function buildResult(g: GalaxyInput, input: KernelInput, i: number, out: KernelO
 
 // ── public entry points ──────────────────────────────────────────────────────────────────────────
 
-function run(galaxies: GalaxyInput[], settings: DiagnosticSettings, prefix: (i: number) => string): GalaxyResult[] {
+/** A batch through the chain: its packed input, the kernel's rows and each galaxy's Monte Carlo summary (null without draws). */
+export interface ChainRun {
+  prep: PreparedSettings
+  input: KernelInput
+  out: KernelOutput
+  mc: Array<MonteCarloSummary | null>
+}
+
+/**
+ * Validates and packs the galaxies, runs the kernel and the Monte Carlo: everything but the result
+ * documents (storage keeps the rows themselves; `buildResult` makes a document of any row).
+ * @throws {ScienceInputError} with `path` prefixed by `prefix(i)`
+ */
+export function runChain(galaxies: GalaxyInput[], settings: DiagnosticSettings, prefix: (i: number) => string = (i) => `/${i}`): ChainRun {
   validateSettings(settings)
   if (!Array.isArray(galaxies)) throw new ScienceInputError('/', 'galaxies must be an array')
   const prep = prepareSettings(settings)
@@ -322,11 +353,15 @@ function run(galaxies: GalaxyInput[], settings: DiagnosticSettings, prefix: (i: 
   const out = createKernelOutput(n)
   runKernel(input, out, prep, { thresholdSnr: true, errors: true })
   const draws = settings.monteCarlo.draws
-  const results: GalaxyResult[] = new Array(n)
-  for (let i = 0; i < n; i++) {
-    const mc = draws > 0 ? monteCarloGalaxy(input, i, out, prep, galaxySeed(settings.monteCarlo.seed, galaxies[i].id), draws) : null
-    results[i] = buildResult(galaxies[i], input, i, out, prep, mc)
-  }
+  const mc: Array<MonteCarloSummary | null> = new Array(n)
+  for (let i = 0; i < n; i++) mc[i] = draws > 0 ? monteCarloGalaxy(input, i, out, prep, galaxySeed(settings.monteCarlo.seed, galaxies[i].id), draws) : null
+  return { prep, input, out, mc }
+}
+
+function run(galaxies: GalaxyInput[], settings: DiagnosticSettings, prefix: (i: number) => string): GalaxyResult[] {
+  const { prep, input, out, mc } = runChain(galaxies, settings, prefix)
+  const results: GalaxyResult[] = new Array(galaxies.length)
+  for (let i = 0; i < galaxies.length; i++) results[i] = buildResult(packedRowInput(galaxies[i].id, input, i), out, i, prep, mc[i])
   return results
 }
 

@@ -176,8 +176,9 @@ describe('jobs whose worker has gone', () => {
     expect(first.job.status).toBe('done')
     const total = first.job.total as number
     const revision = change.body.revision.revision as number
-    const full = await q('select galaxy_id, result::text as result from results where project_id = $1 and revision = $2 order by galaxy_id', [projectId, revision])
+    const full = await q(`select galaxy_id, measures::text as measures, measures_exact::text as exact, encode(codes, 'hex') as codes, result::text as result from results where project_id = $1 and revision = $2 order by galaxy_id`, [projectId, revision])
     expect(full).toHaveLength(total)
+    expect(full[0].measures).toMatch(/^\{/)
 
     // the state a SIGKILL at 2,000 of the galaxies leaves: the job running, its cursor after the first
     // committed chunk, results of that chunk only, and nobody holding its lease
@@ -202,7 +203,7 @@ describe('jobs whose worker has gone', () => {
     expect(marked.resumedAt).not.toBeNull()
     const { job } = await follow(jobId)
     expect(job).toMatchObject({ status: 'done', done: total, total, resumeCount: 1, resumedFrom: 2000, error: null })
-    const after = await q('select galaxy_id, result::text as result from results where project_id = $1 and revision = $2 order by galaxy_id', [projectId, revision])
+    const after = await q(`select galaxy_id, measures::text as measures, measures_exact::text as exact, encode(codes, 'hex') as codes, result::text as result from results where project_id = $1 and revision = $2 order by galaxy_id`, [projectId, revision])
     expect(after).toEqual(full) // the same results as the uninterrupted run
     const firstChunk = await q('select galaxy_id, computed_at from results where project_id = $1 and revision = $2 and galaxy_id <= $3 order by galaxy_id', [projectId, revision, cut])
     expect(firstChunk).toEqual(kept) // continued after the committed chunk, not from the start

@@ -176,13 +176,14 @@ describe('backups', () => {
     const dump = async (url: string) => {
       const c = new pg.Client({ connectionString: url }); await c.connect()
       const g = (await c.query('select key, redshift, input from galaxies order by key')).rows
-      const r = (await c.query('select g.key, r.revision, r.method_version, r.result from results r join galaxies g on g.id = r.galaxy_id order by g.key, r.revision')).rows
+      const r = (await c.query(`select g.key, r.revision, r.method_version, r.layout, r.measures::text as measures, r.measures_exact::text as exact, encode(r.codes, 'hex') as codes, r.result from results r join galaxies g on g.id = r.galaxy_id order by g.key, r.revision`)).rows
       await c.end()
       return { g, r }
     }
     const a = await dump(src), b = await dump(dst)
     expect(a.g).toHaveLength(50)
     expect(a.r).toHaveLength(50)
+    expect(a.r[0].measures).toMatch(/^\{/) // typed columns, restored as such
     expect(b).toEqual(a)
   }, 60_000)
 })

@@ -11,6 +11,7 @@ import { RESULT_FIELDS, type ResultField } from '../../shared/results/registry.t
 import { EXPORT_COLUMNS } from '../../shared/results/export-columns.ts'
 import { storedSql } from '../../shared/results/storage.ts'
 import { at, rawValue } from '../../shared/results/values.ts'
+import { documentReader, type StoredColumns } from '../../server/services/stored-results.ts'
 
 // Walks the result-field registry (shared/results/registry.ts) against the running app: every field
 // is found in the database, in both exports (with unit and UCD), in the list's filters and sort,
@@ -45,8 +46,12 @@ afterAll(async () => { await t.close() })
 /** Each galaxy's stored copy of a field (as float8 for numbers) beside its key, its input and its result. */
 async function stored(f: ResultField) {
   const cast = f.stored!.type === 'text' ? '' : '::float8'
-  return q<{ key: string; v: number | string | null; input: GalaxyInputDto; result: unknown }>(`select g.key, ${storedSql(f)}${cast} as v, g.input, r.result
+  const rows = await q<{ key: string; v: number | string | null; input: GalaxyInputDto } & StoredColumns>(`select g.key, ${storedSql(f)}${cast} as v, g.input,
+    r.revision, r.layout, r.measures, r.measures_exact, r.codes, r.mc_percentiles, r.mc_classes, r.result
     from galaxies g join results r on r.galaxy_id = g.id where g.project_id = $1 and r.revision = 1 order by g.id`, [projectId])
+  // the document the API serves, rebuilt from the row's typed columns
+  const reader = await documentReader(t.db, projectId, [1])
+  return rows.map((r) => ({ key: r.key, v: r.v, input: r.input, result: reader.document(r.key, r) }))
 }
 const FROM_SENT = new Map(sent.map((g) => [g.id, g]))
 
@@ -97,8 +102,9 @@ describe('exports', () => {
     for (const f of exported) if (f.unit) expect(units, f.key).toContain(` ${f.export!.name}=${f.unit}`)
     const row = records.find((x) => x.galaxy_id === 'REG-KNOWN')!
     // shared/science/README.md §2.1: log of observed ratios (Baldwin, Phillips & Terlevich 1981, PASP 93, 5)
-    expect(Number(row.niiHa)).toBeCloseTo(Math.log10(60 / 300), 10)
-    expect(Number(row.oiiiHb)).toBeCloseTo(Math.log10(50 / 80), 10)
+    // results are stored as float4: about 7 significant digits
+    expect(Number(row.niiHa)).toBeCloseTo(Math.log10(60 / 300), 6)
+    expect(Number(row.oiiiHb)).toBeCloseTo(Math.log10(50 / 80), 6)
     expect([row.ra, row.dec]).toEqual(['150.1', '2.2'])
     expect(records.find((x) => x.galaxy_id === 'REG-LIMIT')!.oiiiHb_limit).toBe('upper') // README §9: a limit in the numerator
     const detail = (await get('/galaxies/REG-KNOWN')).body

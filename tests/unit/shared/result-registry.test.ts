@@ -14,7 +14,7 @@ import { galaxySummary } from '../../../shared/results/list.ts'
 import { at } from '../../../shared/results/values.ts'
 import { GalaxySummarySchema } from '../../../shared/results/responses.ts'
 import { galaxies, results } from '../../../server/db/schema.ts'
-import { LIMIT_BITS, resultRow } from '../../../server/services/result-columns.ts'
+import { LIMIT_BITS, resultColumns } from '../../../server/services/result-columns.ts'
 
 // The registry (shared/results/registry.ts) is the one list of result fields; these checks walk it
 // and find every field where it must appear. tests/api/result-registry.test.ts does the same
@@ -70,13 +70,13 @@ describe('storage', () => {
       expect(col!.notNull, f.key).toBe(f.stored!.table === 'results' ? !!f.stored!.notNull : col!.notNull)
     }
     // (drizzle names columns declared without a name by their keys; the database by snake_case)
-    const bookkeeping = ['galaxyId', 'projectId', 'revision', 'methodVersion', 'computedAt', 'result']
+    const bookkeeping = ['galaxyId', 'projectId', 'revision', 'methodVersion', 'computedAt', 'result', 'layout', 'measures', 'measuresExact', 'codes', 'mcPercentiles', 'mcClasses']
     const copies = results_.columns.map((c) => c.name).filter((n) => !bookkeeping.includes(n))
     expect(copies.sort()).toEqual(RESULTS_COLUMNS.map((c) => c.column).sort())
   })
 
   it('the stored copies of a real result hold its values (observed ratios, S/N, limit bits, class codes)', () => {
-    const row = resultRow(1, g, r)
+    const row = resultColumns(g, r)
     // shared/science/README.md §2.1: log ratios of observed fluxes (Baldwin, Phillips & Terlevich 1981, PASP 93, 5)
     expect(row.x_nii).toBeCloseTo(Math.log10(60 / 300), 6) // −0.69897
     expect(row.y_oiii).toBeCloseTo(Math.log10(50 / 80), 6) // −0.20412
@@ -94,7 +94,7 @@ describe('storage', () => {
     expect(row.ne_sii).toBe(r.density.sii!.ne)
     // shared/science/README.md §9: a limit in the numerator makes an upper limit on the ratio
     expect(rLimited.ratioLimits.oiiiHb).toBe('upper')
-    const lim = resultRow(2, limited, rLimited)
+    const lim = resultColumns(limited, rLimited)
     expect(lim.limits).toBe(LIMIT_BITS.oiiiHb.upper)
     expect(LIMIT_BITS).toEqual({ niiHa: { upper: 1, lower: 2 }, oiiiHb: { upper: 64, lower: 128 }, siiHa: { upper: 4, lower: 8 }, oiHa: { upper: 16, lower: 32 } })
   })
