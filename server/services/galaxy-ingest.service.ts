@@ -155,8 +155,9 @@ export async function writeGalaxies(tx: Executor, projectId: string, intakeId: s
         throw conflict(`galaxy "${lost.id}" was created by another request while this one was being stored; nothing was stored, send it again`)
       }
     }
+    // two arrays, not a JSON document per row: the server parses one number and one word per galaxy
     await tx.execute(sql`insert into galaxy_intakes (galaxy_id, intake_id, change)
-      select t.id, ${intakeId}::uuid, t.change from json_to_recordset(${JSON.stringify(links)}::json) as t(id bigint, change text)
+      select t.id, ${intakeId}::uuid, t.change from unnest(${idArray(links.map((l) => l.id))}, ${`{${links.map((l) => l.change).join(',')}}`}::text[]) as t(id, change)
       on conflict do nothing`)
     // skipped IDs have no row: their id is undefined
     const partIds = part.map((g) => idByKey.get(g.id))
