@@ -12,6 +12,7 @@ import { EXPORT_COLUMNS } from '../../shared/results/export-columns.ts'
 import { storedSql } from '../../shared/results/storage.ts'
 import { at, rawValue } from '../../shared/results/values.ts'
 import { documentReader, type StoredColumns } from '../../server/services/stored-results.ts'
+import { exportNumber } from '../../server/services/exports.service.ts'
 
 // Walks the result-field registry (shared/results/registry.ts) against the running app: every field
 // is found in the database, in both exports (with unit and UCD), in the list's filters and sort,
@@ -111,7 +112,7 @@ describe('exports', () => {
     const g = { key: 'REG-KNOWN', ...pick(known) }
     for (const c of EXPORT_COLUMNS) {
       const v = c.get(g, detail.results)
-      expect(row[c.name], c.name).toBe(v === null ? '' : String(v))
+      expect(row[c.name], c.name).toBe(v === null ? '' : typeof v === 'number' ? exportNumber(v) : String(v))
     }
   })
 
