@@ -13,7 +13,7 @@ import type { Settings } from '../../shared/schemas/galaxy.schema.ts'
 import { RESULTS_COLUMNS } from '../../shared/results/storage.ts'
 import { copyColumnReaders } from '../../shared/results/document-map.ts'
 import {
-  CODES_BYTES, MC_CLASS_COUNT, MEASURE_COUNT, PERCENTILE_COUNT, classFractionsOf, codesOf, fitsReal, measuresOf, percentilesOf,
+  CODES_BYTES, FLOAT4_MAX, MC_CLASS_COUNT, MEASURE_COUNT, PERCENTILE_COUNT, classFractionsOf, codesOf, fitsReal, measuresOf, percentilesOf,
 } from '../../shared/results/stored-row.ts'
 import { METHOD_VERSION } from '../../shared/science.ts'
 
@@ -22,7 +22,6 @@ type Executor = Db | Tx
 
 const FLOAT4_OID = 700
 const FLOAT8_OID = 701
-const FLOAT4_MAX = 3.4028234663852886e38
 
 /** Columns of a COPY into `results`, in the order the tuples hold them. */
 export const COPY_COLUMNS = ['galaxy_id', 'project_id', 'revision', 'method_version', 'layout', ...RESULTS_COLUMNS.map((c) => c.column),

@@ -5,7 +5,7 @@ import { sql } from 'drizzle-orm'
 import type { Db } from '../db/client.ts'
 import { prepareSettings, type PreparedSettings } from '../../shared/diagnostics/kernel.ts'
 import { buildResult } from '../../shared/diagnostics/pipeline.ts'
-import { CURRENT_LAYOUT, classFractionsOf, codesOf, decodeStored, fitsReal, layoutReader, measuresOf, percentilesOf, type DecodedRow, type LayoutReader, type StoredLayout } from '../../shared/results/stored-row.ts'
+import { CURRENT_LAYOUT, asReal, classFractionsOf, codesOf, decodeStored, fitsReal, layoutReader, measuresOf, percentilesOf, type DecodedRow, type LayoutReader, type StoredLayout } from '../../shared/results/stored-row.ts'
 import { rowFromDocument } from '../../shared/results/document-map.ts'
 import type { GalaxyResult } from '../../shared/science.ts'
 import { revisionSettings } from './projects.service.ts'
@@ -45,6 +45,8 @@ export interface StoredColumns {
 /** Turns stored rows of one project into documents (prepared for the revisions it will be given). */
 export interface DocumentReader {
   document(key: string, row: StoredColumns): GalaxyResult | null
+  /** the prepared settings of one of its revisions */
+  prepared(revision: number): PreparedSettings | undefined
 }
 
 /**
@@ -58,6 +60,7 @@ export async function documentReader(db: Executor, projectId: string, revisions:
   for (const revision of new Set(revisions)) preps.set(revision, prepareSettings((await revisionSettings(db, projectId, revision)).settings))
   let scratch: DecodedRow | undefined
   return {
+    prepared: (revision) => preps.get(revision),
     document(key, row) {
       if (row.measures === null || row.codes === null || row.layout === null) return (row.result ?? null) as GalaxyResult | null
       const reader = layouts.get(row.layout)
@@ -110,7 +113,6 @@ export async function convertStoredDocuments(db: Db, log?: (m: string) => void, 
       log?.(`converting ${n} stored result documents to typed columns`)
       const layoutId = await currentLayoutId(db)
       const readers = new Map<string, DocumentReader>()
-      const settingsOf = new Map<string, PreparedSettings>()
       let after: [number, number] = [0, 0]
       while (!signal?.aborted) {
         const { rows } = await client.query<{ galaxy_id: number; revision: number; project_id: string; key: string; result: GalaxyResult }>(
@@ -121,13 +123,10 @@ export async function convertStoredDocuments(db: Db, log?: (m: string) => void, 
         const updates: Array<{ galaxy_id: number; revision: number; measures: Array<number | null>; measures_exact: Array<number | null> | null; codes: string; mc_percentiles: Array<number | null> | null; mc_classes: Array<number | null> | null }> = []
         for (const row of rows) {
           const at = `${row.project_id}/${row.revision}`
-          if (!settingsOf.has(at)) {
-            settingsOf.set(at, prepareSettings((await revisionSettings(db, row.project_id, row.revision)).settings))
-            readers.set(at, await documentReader(db, row.project_id, [row.revision]))
-          }
-          const prep = settingsOf.get(at)!
-          const stored = storedOfDocument(row.result, prep)
-          const rebuilt = stored && readers.get(at)!.document(row.key, { revision: row.revision, layout: layoutId, ...stored.columns, result: null })
+          if (!readers.has(at)) readers.set(at, await documentReader(db, row.project_id, [row.revision]))
+          const reader = readers.get(at)!
+          const stored = storedOfDocument(row.result, reader.prepared(row.revision)!)
+          const rebuilt = stored && reader.document(row.key, { revision: row.revision, layout: layoutId, ...stored.columns, result: null })
           if (!stored || !sameDocument(rebuilt, row.result)) { kept++; continue }
           updates.push({ galaxy_id: row.galaxy_id, revision: row.revision, ...stored.json })
         }
@@ -152,7 +151,7 @@ export async function convertStoredDocuments(db: Db, log?: (m: string) => void, 
 function storedOfDocument(doc: GalaxyResult, prep: PreparedSettings) {
   const row = rowFromDocument(doc, prep.settings.sfrCalibration, prep.settings.monteCarlo.draws)
   if (!row) return null
-  const toList = (a: Float64Array) => Array.from(a, (v) => (Number.isFinite(v) ? Math.fround(Math.max(-3.4028234663852886e38, Math.min(3.4028234663852886e38, v))) : null))
+  const toList = (a: Float64Array) => Array.from(a, asReal)
   const m = measuresOf(row.out, 0, row.input.fwhmBroad)
   const measures = toList(m)
   const exact = fitsReal(m) ? null : Array.from(m, (v) => (Number.isFinite(v) ? v : null))

@@ -20,7 +20,7 @@ import type { GalaxyInputDto } from '../schemas/galaxy.schema.ts'
 import { RESULTS_COLUMNS } from './storage.ts'
 import { at, finite, rawValue } from './values.ts'
 import type { ResultField } from './registry.ts'
-import { MC_DIAGRAMS } from './stored-row.ts'
+import { FLOAT4_MAX, FLOAT4_MIN_NORMAL, MC_DIAGRAMS } from './stored-row.ts'
 
 type SfrCalibration = PreparedSettings['settings']['sfrCalibration']
 const PROBE_BASE = 1000
@@ -76,8 +76,6 @@ export function documentMap(sfrCalibration: SfrCalibration): DocumentMap {
 /** How each `results` copy column is read off a kernel row (built once per SFR calibration). */
 type CopyReader = (out: KernelOutput, i: number, g: GalaxyInputDto) => number | null
 
-const FLOAT4_MAX = 3.4028234663852886e38
-const FLOAT4_MIN_NORMAL = 1.1754943508222875e-38
 /** A number as a `real` copy column holds it: saturated at float4's largest, flushed to 0 below its smallest normal. */
 export function float4(v: number | null | undefined): number | null {
   const n = finite(v)

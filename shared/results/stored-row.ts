@@ -111,8 +111,14 @@ export function classFractionsOf(mc: MonteCarloSummary, into = new Float64Array(
   return into
 }
 
-const FLOAT4_MAX = 3.4028234663852886e38
-const FLOAT4_MIN_NORMAL = 1.1754943508222875e-38
+/** float4's largest finite value and its smallest normal one (the bounds of a `real`). */
+export const FLOAT4_MAX = 3.4028234663852886e38
+export const FLOAT4_MIN_NORMAL = 1.1754943508222875e-38
+
+/** A number as a `real` array element holds it: rounded to float4, saturated at its largest; NaN and ±∞ are NULL. */
+export function asReal(v: number): number | null {
+  return Number.isFinite(v) ? Math.fround(v > FLOAT4_MAX ? FLOAT4_MAX : v < -FLOAT4_MAX ? -FLOAT4_MAX : v) : null
+}
 /** Whether a `real` holds every number of the measures to float4's relative precision. */
 export function fitsReal(measures: ArrayLike<number>): boolean {
   for (let k = 0; k < measures.length; k++) {

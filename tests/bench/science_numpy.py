@@ -163,6 +163,12 @@ def hyperbola_distance(A, X0, C, x, y, sx, sy):
 
     best_t = np.where(largest > 0, largest, 1.0)
     best = d2_of(largest, slice(None))
+
+    def keep_closer(root, r):
+        """Rows r take root where it lies closer than their best point so far."""
+        d2 = d2_of(root, r)
+        take = d2 < best[r]
+        best[r[take]], best_t[r[take]] = d2[take], root[take]
     # (2) the concave part: p rises from p(0) = -A^2 to a local maximum and stays below -A v tm - A^2 there
     cand = np.flatnonzero((u < 0) & (-av * tm - a2 > 0))
     if cand.size:
@@ -176,18 +182,12 @@ def hyperbola_distance(A, X0, C, x, y, sx, sy):
             r_hit = r_two[hit]
             if r_hit.size:
                 c1h = c1[hit]
-                root = bracketed_root(p, dp, np.zeros_like(c1h), c1h, 0.5 * c1h, (pu[hit], pav[hit]))
-                d2 = d2_of(root, r_hit)
-                take = d2 < best[r_hit]
-                best[r_hit[take]], best_t[r_hit[take]] = d2[take], root[take]
+                keep_closer(bracketed_root(p, dp, np.zeros_like(c1h), c1h, 0.5 * c1h, (pu[hit], pav[hit])), r_hit)
         one = ~two & (largest[cand] < 0)  # p' >= 0 throughout: the single root is in the concave part
         r_one = cand[one]
         if r_one.size:
             otm = ctm[one]
-            root = bracketed_root(p, dp, np.zeros_like(otm), otm, 0.5 * otm, (cu[one], cav[one]))
-            d2 = d2_of(root, r_one)
-            take = d2 < best[r_one]
-            best[r_one[take]], best_t[r_one[take]] = d2[take], root[take]
+            keep_closer(bracketed_root(p, dp, np.zeros_like(otm), otm, 0.5 * otm, (cu[one], cav[one])), r_one)
     miss = np.flatnonzero(np.isinf(best))  # not reached for A > 0 (p(0) < 0 < p(bound)); safe fallback
     if miss.size:
         mb = bound[miss]
